@@ -1,0 +1,116 @@
+import type { Split } from '../engine/types.js';
+
+/** A rate with its confidence interval; `n` is the effective number of rows (Kish) behind it. */
+export interface Rate {
+  readonly value: number;
+  readonly lo: number;
+  readonly hi: number;
+  readonly n: number;
+}
+
+/** A gap between two rates (or a rate and the floor), with interval, two-sided p and FDR-adjusted q. */
+export interface Gap {
+  readonly value: number;
+  readonly lo: number | null;
+  readonly hi: number | null;
+  readonly p: number | null;
+  /** null when the slice is not part of the test family (thin slices) */
+  readonly q: number | null;
+}
+
+export type Focus = 'bias' | 'variance' | 'mismatch' | 'at-floor' | 'below-floor' | 'thin' | 'unclear';
+export const FOCI: readonly Focus[] = ['bias', 'variance', 'mismatch', 'at-floor', 'below-floor', 'thin', 'unclear'];
+
+export type FloorSource = 'default' | 'table' | 'mixed' | 'annotators';
+
+export interface SliceFloor {
+  /** weighted mean floor over the slice's train rows (used for bias and headroom) */
+  readonly value: number;
+  /** weighted mean floor over the slice's dev rows (information only) */
+  readonly dev: number | null;
+  /** interval of the floor when its estimate has a sample size, else null */
+  readonly lo: number | null;
+  readonly hi: number | null;
+  /** effective number of human-labelled rows behind the floor, null when the floor is taken as exact */
+  readonly n: number | null;
+  readonly source: FloorSource;
+}
+
+export interface Headroom {
+  readonly total: number;
+  readonly bias: number;
+  readonly variance: number;
+  readonly mismatch: number | null;
+}
+
+export interface SliceReport {
+  /** column → value; empty for the overall slice */
+  readonly key: Readonly<Record<string, string>>;
+  /** "col=value · col=value", or "overall" */
+  readonly label: string;
+  readonly rows: Readonly<Record<Split, number | null>>;
+  /** weighted dev rows of the slice / all weighted dev rows */
+  readonly share: number;
+  readonly floor: SliceFloor;
+  readonly error: Readonly<Record<Split, Rate | null>>;
+  readonly gaps: {
+    readonly avoidable_bias: Gap | null;
+    readonly variance: Gap | null;
+    readonly mismatch: Gap | null;
+    readonly dev_overfit: Gap | null;
+  };
+  readonly headroom: Headroom | null;
+  readonly yield: number | null;
+  readonly focus: Focus;
+  readonly flagged: boolean;
+  readonly rank: number;
+}
+
+export interface InputInfo {
+  readonly path: string;
+  readonly bytes: number;
+  readonly modified: string;
+  readonly split?: Split;
+}
+
+/** The slice report: the JSON contract `floorgap.report/1` (docs/formats.md). */
+export interface Report {
+  readonly schema: 'floorgap.report/1';
+  readonly by: readonly string[] | null;
+  readonly confidence: number;
+  readonly fdr: number;
+  readonly fdr_method: 'bh' | 'by';
+  readonly source: {
+    readonly inputs: readonly InputInfo[];
+    readonly roles: Readonly<Record<string, string | null>>;
+    readonly where: string | null;
+    readonly version: string;
+  };
+  readonly overall: SliceReport;
+  readonly slices: readonly SliceReport[];
+  /** notes for the reader (e.g. "no floor given: bias is measured against perfection") */
+  readonly warnings: readonly string[];
+}
+
+/** Options of triage: every threshold the report depends on. */
+export interface TriageOptions {
+  readonly confidence: number;
+  readonly fdr: number;
+  readonly fdrMethod: 'bh' | 'by';
+  readonly minRows: number;
+  readonly floorMargin: number;
+  readonly minHeadroom: number;
+  readonly curveExponent: number;
+  readonly labelCost: number;
+}
+
+export const DEFAULT_TRIAGE_OPTIONS: TriageOptions = {
+  confidence: 0.95,
+  fdr: 0.05,
+  fdrMethod: 'bh',
+  minRows: 30,
+  floorMargin: 0.01,
+  minHeadroom: 0.001,
+  curveExponent: 0.5,
+  labelCost: 1,
+};
