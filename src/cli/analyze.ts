@@ -1,0 +1,41 @@
+import { openDuck } from '../engine/duck.js';
+import { loadCells, type Loaded } from '../engine/load.js';
+import { buildReport } from '../triage/report.js';
+import type { Report } from '../triage/types.js';
+import { VERSION } from '../version.js';
+import { toLoadOptions, toTriageOptions, type AnalysisArgs } from './options.js';
+
+/** read → cells → slices → triage: the shared path of every analysing command. */
+export async function analyze(args: AnalysisArgs): Promise<{ report: Report; loaded: Loaded }> {
+  const triageOptions = toTriageOptions(args);
+  const loadOptions = toLoadOptions(args);
+  const duck = await openDuck({ threads: args.threads, memoryLimit: args['memory-limit'] });
+  try {
+    const loaded = await loadCells(duck, loadOptions);
+    const roles: Record<string, string | null> = {
+      label: loaded.roles.label,
+      pred: loaded.roles.pred,
+      error: loaded.roles.error,
+      split: loaded.roles.split,
+      id: loaded.roles.id,
+      score: loaded.roles.score,
+      weight: loaded.roles.weight,
+    };
+    const report = buildReport(
+      loaded.cells,
+      loaded.by,
+      loaded.overviewColumns,
+      {
+        inputs: loaded.source.inputs.map((i) => ({ path: i.path, bytes: i.bytes, modified: i.modified, ...(i.split ? { split: i.split } : {}) })),
+        roles,
+        where: loadOptions.where,
+        version: VERSION,
+        warnings: loaded.warnings,
+      },
+      triageOptions,
+    );
+    return { report, loaded };
+  } finally {
+    duck.close();
+  }
+}

@@ -1,0 +1,32 @@
+import type { Argv } from 'yargs';
+import { DEMO_DEFAULTS } from '../../demo/generate.js';
+import { writeDemo } from '../../demo/write-demo.js';
+import { sanitize } from '../../render/index.js';
+import type { CliIO } from '../io.js';
+import { writeOut } from '../io.js';
+
+export interface DemoArgs {
+  out: string;
+  rows: number;
+  seed: number;
+  force: boolean;
+}
+
+export function demoOptions<T>(y: Argv<T>) {
+  return y
+    .option('out', { type: 'string', demandOption: true, describe: 'folder to write the demo files into' })
+    .option('rows', { type: 'number', default: DEMO_DEFAULTS.rows, describe: 'rows to generate' })
+    .option('seed', { type: 'number', default: DEMO_DEFAULTS.seed, describe: 'random seed' })
+    .option('force', { type: 'boolean', default: false, describe: 'overwrite existing files' });
+}
+
+/** `floorgap demo`: writes the seeded solder-joint prediction table and the inspector floor table. */
+export async function runDemo(args: DemoArgs, io: CliIO): Promise<number> {
+  const result = await writeDemo(args.out, { rows: args.rows, seed: args.seed, overwrite: args.force });
+  await writeOut(
+    io,
+    `wrote ${result.rows} rows to ${sanitize(result.table)} and floors to ${sanitize(result.floors)}\n` +
+      `next: floorgap report ${sanitize(result.table)} --floor-table ${sanitize(result.floors)}\n`,
+  );
+  return 0;
+}

@@ -1,0 +1,28 @@
+import type { Argv } from 'yargs';
+import { FORMATS, render, type Format } from '../../render/index.js';
+import { analyze } from '../analyze.js';
+import type { CliIO } from '../io.js';
+import { useColor, writeOut } from '../io.js';
+import { analysisOptions, type AnalysisArgs } from '../options.js';
+
+export interface ReportArgs extends AnalysisArgs {
+  format: Format;
+}
+
+export function reportOptions<T>(y: Argv<T>) {
+  return analysisOptions(y).option('format', {
+    alias: 'f',
+    choices: FORMATS,
+    default: 'text' as Format,
+    describe: 'output format',
+    group: 'Output:',
+  });
+}
+
+/** `floorgap report`: the ranked slice report on stdout. */
+export async function runReport(args: ReportArgs, io: CliIO): Promise<number> {
+  const { report } = await analyze(args);
+  const width = Math.max(60, Math.min(100, io.stdout.columns ?? 100));
+  await writeOut(io, render(report, args.format, { color: useColor(io), width }));
+  return 0;
+}

@@ -1,0 +1,78 @@
+import yargs from 'yargs';
+import { FloorgapError } from '../util/error.js';
+import { readConfig } from '../io/config.js';
+import { sanitize } from '../render/index.js';
+import { VERSION } from '../version.js';
+import { demoOptions, runDemo, type DemoArgs } from './commands/demo.js';
+import { reportOptions, runReport, type ReportArgs } from './commands/report.js';
+import type { CliIO } from './io.js';
+
+/** Exit codes: 0 fine, 1 a check found violations, 2 bad usage or input, 3 an unexpected internal error. */
+export const EXIT = { ok: 0, violations: 1, usage: 2, internal: 3 } as const;
+
+function configPath(argv: readonly string[]): string | null {
+  for (let i = 0; i < argv.length; i++) {
+    const a = argv[i];
+    if (a === '--config') return argv[i + 1] ?? null;
+    if (a.startsWith('--config=')) return a.slice('--config='.length);
+  }
+  return null;
+}
+
+/**
+ * Parses argv and runs one command. Returns the exit code; writes results to io.stdout and one-line
+ * errors to io.stderr. A fresh yargs instance per call (no singleton), so tests can call it repeatedly.
+ */
+export async function main(argv: readonly string[], io: CliIO): Promise<number> {
+  let code: number = EXIT.ok;
+  try {
+    const config = readConfig(configPath(argv), io.cwd);
+    const parser = yargs([...argv])
+      .scriptName('floorgap')
+      .version(VERSION)
+      .config(config)
+      .env(false)
+      .strict()
+      .wrap(Math.min(100, (io.stdout.columns as number | undefined) ?? 100))
+      .exitProcess(false)
+      .fail((msg, err) => {
+        if (err) throw err;
+        throw new FloorgapError(`${msg}; see floorgap --help`, EXIT.usage);
+      })
+      .command(
+        ['report [files..]', '$0 [files..]'],
+        'rank data slices by the error they could give back, against human-level floors',
+        (y) => reportOptions(y),
+        async (args) => {
+          code = await runReport(args as unknown as ReportArgs, io);
+        },
+      )
+      .command(
+        'demo',
+        'write the seeded solder-joint demo table and its inspector floor table',
+        (y) => demoOptions(y),
+        async (args) => {
+          code = await runDemo(args as unknown as DemoArgs, io);
+        },
+      )
+      .example('floorgap report preds.csv --floor-table floors.csv', 'overview of every one-column slice')
+      .example('floorgap report preds.parquet --by station,lighting --format json', 'one grouping, as JSON')
+      .epilogue('Exit codes: 0 fine, 1 check violations, 2 bad usage or input, 3 internal error.')
+      .help();
+    let helpText = '';
+    await parser.parseAsync([...argv], {}, (err, _argv, output) => {
+      if (!err && output) helpText = output;
+    });
+    if (helpText) io.stdout.write(helpText.endsWith('\n') ? helpText : helpText + '\n');
+  } catch (e) {
+    if (e instanceof FloorgapError) {
+      io.stderr.write(`floorgap: ${sanitize(e.message)}\n`);
+      return e.exitCode;
+    }
+    const msg = e instanceof Error ? e.message : String(e);
+    io.stderr.write(`floorgap: internal error: ${sanitize(msg.split('\n')[0])}\n`);
+    if (io.env.FLOORGAP_DEBUG && e instanceof Error && e.stack) io.stderr.write(sanitize(e.stack) + '\n');
+    return EXIT.internal;
+  }
+  return code;
+}

@@ -1,0 +1,138 @@
+import type { Argv } from 'yargs';
+import { DEFAULT_MEMORY_LIMIT, DEFAULT_THREADS } from '../engine/duck.js';
+import type { LoadOptions } from '../engine/load.js';
+import type { RoleOptions } from '../engine/roles.js';
+import { DEFAULT_TRIAGE_OPTIONS, type TriageOptions } from '../triage/types.js';
+import { error } from '../util/error.js';
+
+/** Options every analysing command takes: inputs, roles, slicing, floors, statistics, engine. */
+export function analysisOptions<T>(y: Argv<T>) {
+  return y
+    .positional('files', { type: 'string', array: true, describe: 'prediction table(s) with a split column' })
+    .option('train', { type: 'string', describe: 'file holding the train split', group: 'Inputs:' })
+    .option('train-dev', { type: 'string', describe: 'file holding the train_dev split', group: 'Inputs:' })
+    .option('dev', { type: 'string', describe: 'file holding the dev split', group: 'Inputs:' })
+    .option('test', { type: 'string', describe: 'file holding the test split', group: 'Inputs:' })
+    .option('config', { type: 'string', describe: 'project file (default: ./floorgap.json when present)', group: 'Inputs:' })
+    .option('where', { type: 'string', describe: 'keep rows matching a DuckDB SQL condition (columns are text)', group: 'Inputs:' })
+    .option('label', { type: 'string', describe: 'column with the true class', group: 'Columns:' })
+    .option('pred', { type: 'string', describe: 'column with the predicted class', group: 'Columns:' })
+    .option('error', { type: 'string', describe: '0/1 error column, instead of label and pred', group: 'Columns:' })
+    .option('split', { type: 'string', describe: 'column with the split', group: 'Columns:' })
+    .option('id', { type: 'string', describe: 'column with the row id', group: 'Columns:' })
+    .option('score', { type: 'string', describe: "column with the model's confidence in its prediction", group: 'Columns:' })
+    .option('weight', { type: 'string', describe: 'column with the sample weight (>= 0)', group: 'Columns:' })
+    .option('by', { type: 'string', describe: 'slice by these columns, comma-separated (label/pred allowed)', group: 'Slices:' })
+    .option('slice-cols', { type: 'string', describe: 'candidate slice columns, comma-separated (default: detected)', group: 'Slices:' })
+    .option('bins', { type: 'number', default: 5, describe: 'bins for numeric columns (about equal frequency)', group: 'Slices:' })
+    .option('max-cells', { type: 'number', default: 200_000, describe: 'largest full cross of slice columns before grouping sets are used', group: 'Slices:' })
+    .option('floor', { type: 'number', describe: 'human-level error for every row, a fraction (default 0)', group: 'Floors:' })
+    .option('floor-table', { type: 'string', describe: 'table of floors keyed by slice columns (+ optional n)', group: 'Floors:' })
+    .option('confidence', { type: 'number', default: DEFAULT_TRIAGE_OPTIONS.confidence, describe: 'interval confidence level', group: 'Statistics:' })
+    .option('fdr', { type: 'number', default: DEFAULT_TRIAGE_OPTIONS.fdr, describe: 'false discovery rate for a significant gap', group: 'Statistics:' })
+    .option('fdr-method', { choices: ['bh', 'by'] as const, default: DEFAULT_TRIAGE_OPTIONS.fdrMethod, describe: 'Benjamini–Hochberg or Benjamini–Yekutieli', group: 'Statistics:' })
+    .option('min-rows', { type: 'number', default: DEFAULT_TRIAGE_OPTIONS.minRows, describe: 'fewer train or dev rows make a slice thin', group: 'Statistics:' })
+    .option('floor-margin', { type: 'number', default: DEFAULT_TRIAGE_OPTIONS.floorMargin, describe: 'dev − floor at most this is at-floor (fraction)', group: 'Statistics:' })
+    .option('min-headroom', { type: 'number', default: DEFAULT_TRIAGE_OPTIONS.minHeadroom, describe: 'smallest headroom worth a flag (fraction of dev error)', group: 'Statistics:' })
+    .option('curve-exponent', { type: 'number', default: DEFAULT_TRIAGE_OPTIONS.curveExponent, describe: 'β in gap ∝ n^−β, for yield', group: 'Statistics:' })
+    .option('label-cost', { type: 'number', default: DEFAULT_TRIAGE_OPTIONS.labelCost, describe: 'cost of one new labelled row, for yield', group: 'Statistics:' })
+    .option('threads', { type: 'number', default: DEFAULT_THREADS, describe: 'DuckDB worker threads', group: 'Engine:' })
+    .option('memory-limit', { type: 'string', default: DEFAULT_MEMORY_LIMIT, describe: 'DuckDB memory limit', group: 'Engine:' });
+}
+
+/** The parsed values of {@link analysisOptions}. */
+export interface AnalysisArgs {
+  files?: string[];
+  train?: string;
+  'train-dev'?: string;
+  dev?: string;
+  test?: string;
+  where?: string;
+  label?: string;
+  pred?: string;
+  error?: string;
+  split?: string;
+  id?: string;
+  score?: string;
+  weight?: string;
+  by?: string;
+  'slice-cols'?: string;
+  bins: number;
+  'max-cells': number;
+  floor?: number;
+  'floor-table'?: string;
+  confidence: number;
+  fdr: number;
+  'fdr-method': 'bh' | 'by';
+  'min-rows': number;
+  'floor-margin': number;
+  'min-headroom': number;
+  'curve-exponent': number;
+  'label-cost': number;
+  threads: number;
+  'memory-limit': string;
+}
+
+function list(value: string | undefined | string[]): string[] | null {
+  if (value === undefined) return null;
+  const text = Array.isArray(value) ? value.join(',') : String(value);
+  const items = text.split(',').map((s) => s.trim()).filter(Boolean);
+  return items.length ? items : null;
+}
+
+function checkFraction(name: string, v: number | undefined, { open = false } = {}): void {
+  if (v === undefined) return;
+  if (!Number.isFinite(v) || v < 0 || v > 1 || (open && (v === 0 || v === 1))) {
+    throw error(`--${name} ${v}: expected a fraction ${open ? 'strictly between 0 and 1' : 'in [0, 1]'} (e.g. 0.02 for 2 %)`);
+  }
+}
+
+function checkPositive(name: string, v: number, integer = false): void {
+  if (!Number.isFinite(v) || v <= 0 || (integer && !Number.isInteger(v))) {
+    throw error(`--${name} ${v}: expected a ${integer ? 'whole number' : 'number'} > 0`);
+  }
+}
+
+/** Validates and converts parsed flags to engine and triage options. */
+export function toLoadOptions(a: AnalysisArgs): LoadOptions {
+  checkFraction('floor', a.floor);
+  checkPositive('bins', a.bins, true);
+  checkPositive('max-cells', a['max-cells'], true);
+  const roles: RoleOptions = {};
+  for (const r of ['label', 'pred', 'error', 'split', 'id', 'score', 'weight'] as const) if (a[r] !== undefined) roles[r] = String(a[r]);
+  return {
+    source: {
+      files: (a.files ?? []).map(String),
+      perSplit: { train: a.train, train_dev: a['train-dev'], dev: a.dev, test: a.test },
+    },
+    roles,
+    where: a.where ?? null,
+    by: list(a.by),
+    sliceCols: list(a['slice-cols']),
+    bins: a.bins,
+    maxCells: a['max-cells'],
+    floor: a.floor ?? null,
+    floorTable: a['floor-table'] ?? null,
+  };
+}
+
+export function toTriageOptions(a: AnalysisArgs): TriageOptions {
+  checkFraction('confidence', a.confidence, { open: true });
+  checkFraction('fdr', a.fdr, { open: true });
+  checkPositive('min-rows', a['min-rows'], true);
+  checkFraction('floor-margin', a['floor-margin']);
+  checkFraction('min-headroom', a['min-headroom']);
+  checkPositive('curve-exponent', a['curve-exponent']);
+  checkPositive('label-cost', a['label-cost']);
+  checkPositive('threads', a.threads, true);
+  return {
+    confidence: a.confidence,
+    fdr: a.fdr,
+    fdrMethod: a['fdr-method'],
+    minRows: a['min-rows'],
+    floorMargin: a['floor-margin'],
+    minHeadroom: a['min-headroom'],
+    curveExponent: a['curve-exponent'],
+    labelCost: a['label-cost'],
+  };
+}

@@ -1,0 +1,231 @@
+import type { Duck } from './duck.js';
+import { binLabel, textSql } from './profile.js';
+import type { Roles } from './roles.js';
+import { normalizeSplit, SPLIT_HELP } from './roles.js';
+import { ROWS_VIEW, whereSql } from './source.js';
+import { ident, literal } from './sql.js';
+import type { Cell, SliceColumn, Split } from './types.js';
+import type { FloorEntry } from '../io/read-floor-table.js';
+import { error } from '../util/error.js';
+
+/** Everything the cell scan needs to know. */
+export interface CellPlan {
+  readonly roles: Roles;
+  /** the column holding the split (a role column, or `__fg_split` for per-split files) */
+  readonly splitColumn: string;
+  readonly columns: readonly SliceColumn[];
+  readonly floorEntries: readonly FloorEntry[];
+  readonly defaultFloor: number;
+  readonly where: string | null;
+}
+
+/** How rows are grouped into cells: the full cross of all slice columns, or grouping sets. */
+export type Grouping = { readonly kind: 'cross' } | { readonly kind: 'sets'; readonly sets: readonly (readonly string[])[] };
+
+/** Value shown for a missing slice value. */
+export const MISSING = '(missing)';
+
+/** Pseudo-split values that mark rows the scan could not use; never valid split spellings. */
+const BAD = {
+  weight: '!weight',
+  score: '!score',
+  error: '!error',
+  unlabelled: '!unlabelled',
+} as const;
+
+/** SQL for a slice column's cell key: trimmed text, or the bin label for numeric columns. */
+export function keySql(col: SliceColumn): string {
+  if (col.kind === 'category' || !col.edges || col.edges.length === 0) {
+    return `COALESCE(${textSql(col.name)}, ${literal(MISSING)})`;
+  }
+  const x = `TRY_CAST(${textSql(col.name)} AS DOUBLE)`;
+  const edges = col.edges;
+  const whens = edges.map((e, i) => `WHEN ${x} < ${e} THEN ${literal(binLabel(edges, i))}`);
+  return `CASE WHEN ${x} IS NULL OR isnan(${x}) THEN ${literal(MISSING)} ${whens.join(' ')} ELSE ${literal(binLabel(edges, edges.length))} END`;
+}
+
+const TRUE_WORDS = ['1', '1.0', 'true', 't', 'yes', 'y'];
+const FALSE_WORDS = ['0', '0.0', 'false', 'f', 'no', 'n'];
+
+function inList(words: readonly string[]): string {
+  return `(${words.map(literal).join(', ')})`;
+}
+
+/** SQL pieces that compute a row's weight, error, validity and floor entry. */
+export function rowSql(plan: CellPlan): {
+  weight: string;
+  error: string;
+  status: string;
+  floorEntry: string;
+} {
+  const { roles } = plan;
+  const weight = roles.weight ? `TRY_CAST(${textSql(roles.weight)} AS DOUBLE)` : '1';
+  const badWeight = roles.weight ? `(${weight} IS NULL OR ${weight} < 0 OR isnan(${weight}) OR isinf(${weight}))` : 'FALSE';
+  const scoreNum = roles.score ? `TRY_CAST(${textSql(roles.score)} AS DOUBLE)` : null;
+  const badScore = roles.score ? `(${textSql(roles.score)} IS NOT NULL AND (${scoreNum} IS NULL OR isnan(${scoreNum}) OR isinf(${scoreNum})))` : 'FALSE';
+  let error: string;
+  let badError: string;
+  let unlabelled: string;
+  if (roles.error) {
+    const e = `lower(${textSql(roles.error)})`;
+    const [one, zero] = roles.errorIsCorrect ? [FALSE_WORDS, TRUE_WORDS] : [TRUE_WORDS, FALSE_WORDS];
+    error = `CASE WHEN ${e} IN ${inList(one)} THEN 1 ELSE 0 END`;
+    badError = `(${e} IS NOT NULL AND ${e} NOT IN ${inList([...TRUE_WORDS, ...FALSE_WORDS])})`;
+    unlabelled = `(${e} IS NULL)`;
+  } else {
+    const label = textSql(roles.label!);
+    const pred = textSql(roles.pred!);
+    error = `CASE WHEN ${label} = ${pred} THEN 0 ELSE 1 END`;
+    badError = 'FALSE';
+    unlabelled = `(${label} IS NULL OR ${pred} IS NULL)`;
+  }
+  const status = `CASE WHEN ${badWeight} THEN ${literal(BAD.weight)} WHEN ${badScore} THEN ${literal(BAD.score)} WHEN ${badError} THEN ${literal(BAD.error)} WHEN ${unlabelled} THEN ${literal(BAD.unlabelled)} ELSE lower(COALESCE(${textSql(plan.splitColumn)}, '')) END`;
+  return { weight, error, status, floorEntry: floorEntrySql(plan.floorEntries) };
+}
+
+/**
+ * The floor-table entry a row takes: the most specific matching entry (most key columns), earlier
+ * lines first among equally specific ones; -1 (the default floor) when none matches.
+ */
+export function floorEntrySql(entries: readonly FloorEntry[]): string {
+  if (entries.length === 0) return '-1';
+  const order = entries
+    .map((e, i) => ({ e, i }))
+    .sort((a, b) => Object.keys(b.e.keys).length - Object.keys(a.e.keys).length || a.i - b.i);
+  const whens = order.map(({ e, i }) => {
+    const conds = Object.entries(e.keys).map(([col, v]) =>
+      v === MISSING ? `${textSql(col)} IS NULL` : `${textSql(col)} = ${literal(v)}`,
+    );
+    return `WHEN ${conds.length ? conds.join(' AND ') : 'TRUE'} THEN ${i}`;
+  });
+  return `CASE ${whens.join(' ')} ELSE -1 END`;
+}
+
+function listSql(values: readonly (number | null)[]): string {
+  return `[${values.map((v) => (v === null ? 'NULL' : String(v))).join(', ')}]::DOUBLE[]`;
+}
+
+/**
+ * The one-scan GROUP BY that computes cells. Keys are aliased k0, k1, … in column order.
+ * Output columns: fg_split (raw, lower-cased), k0…, fg_floor_entry, fg_floor_n, fg_rows, fg_weight,
+ * fg_weight_sq, fg_errors, fg_floor_sum.
+ */
+export function cellSql(plan: CellPlan, grouping: Grouping, table = ROWS_VIEW): string {
+  const r = rowSql(plan);
+  const keys = plan.columns.map((c, i) => `${keySql(c)} AS k${i}`);
+  const floors = listSql([plan.defaultFloor, ...plan.floorEntries.map((e) => e.floor)]);
+  const ns = listSql([null, ...plan.floorEntries.map((e) => e.n)]);
+  const inner = [
+    `${r.status} AS fg_split`,
+    ...keys,
+    `${r.weight} AS fg_w`,
+    `${r.error} AS fg_e`,
+    `${r.floorEntry} AS fg_floor_entry`,
+  ].join(',\n    ');
+  const weighted = plan.roles.weight !== null;
+  const sums = [
+    'count(*) AS fg_rows',
+    weighted ? 'sum(fg_w) AS fg_weight' : 'count(*)::DOUBLE AS fg_weight',
+    weighted ? 'sum(fg_w * fg_w) AS fg_weight_sq' : 'count(*)::DOUBLE AS fg_weight_sq',
+    weighted ? 'sum(fg_w * fg_e) AS fg_errors' : 'sum(fg_e)::DOUBLE AS fg_errors',
+    `sum(fg_w * list_extract(${floors}, fg_floor_entry + 2)) AS fg_floor_sum`,
+  ];
+  const keyNames = plan.columns.map((_, i) => `k${i}`);
+  // fg_floor_n follows from fg_floor_entry, so grouping by the entry is enough
+  const always = ['fg_split', 'fg_floor_entry'];
+  let groupBy: string;
+  if (grouping.kind === 'cross') groupBy = [...always, ...keyNames].join(', ');
+  else {
+    const sets = grouping.sets.map((set) => {
+      const idx = set.map((name) => {
+        const i = plan.columns.findIndex((c) => c.name === name);
+        if (i < 0) throw new Error(`grouping set names unknown column ${name}`);
+        return `k${i}`;
+      });
+      return `(${[...always, ...idx].join(', ')})`;
+    });
+    groupBy = `GROUPING SETS (${sets.join(', ')})`;
+  }
+  return `SELECT fg_split, ${keyNames.length ? keyNames.join(', ') + ', ' : ''}fg_floor_entry, list_extract(${ns}, fg_floor_entry + 2) AS fg_floor_n, ${sums.join(', ')}
+FROM (
+  SELECT
+    ${inner}
+  FROM ${table}
+  WHERE ${whereSql(plan.where)}
+)
+GROUP BY ${groupBy}`;
+}
+
+/** Rows the scan set aside, by reason. */
+export interface ScanIssues {
+  readonly badWeight: number;
+  readonly badScore: number;
+  readonly badError: number;
+  readonly unlabelled: number;
+  readonly unknownSplits: ReadonlyMap<string, number>;
+}
+
+/** Converts the scan's raw rows to cells, collecting rows set aside and unknown split values. */
+export function toCells(rows: readonly Record<string, unknown>[], plan: CellPlan): { cells: Cell[]; issues: ScanIssues } {
+  const cells: Cell[] = [];
+  let badWeight = 0;
+  let badScore = 0;
+  let badError = 0;
+  let unlabelled = 0;
+  const unknownSplits = new Map<string, number>();
+  for (const row of rows) {
+    const raw = String(row.fg_split);
+    const count = Number(row.fg_rows);
+    if (raw === BAD.weight) badWeight += count;
+    else if (raw === BAD.score) badScore += count;
+    else if (raw === BAD.error) badError += count;
+    else if (raw === BAD.unlabelled) unlabelled += count;
+    else {
+      const split = normalizeSplit(raw);
+      if (split === null) {
+        unknownSplits.set(raw, (unknownSplits.get(raw) ?? 0) + count);
+        continue;
+      }
+      const key: Record<string, string | null> = {};
+      plan.columns.forEach((c, i) => {
+        const v = row[`k${i}`];
+        key[c.name] = v === null || v === undefined ? null : String(v);
+      });
+      cells.push({
+        key,
+        split,
+        rows: count,
+        weight: Number(row.fg_weight),
+        weightSq: Number(row.fg_weight_sq),
+        errors: Number(row.fg_errors),
+        floorSum: Number(row.fg_floor_sum),
+        floorEntry: Number(row.fg_floor_entry),
+        floorN: row.fg_floor_n === null || row.fg_floor_n === undefined ? null : Number(row.fg_floor_n),
+      });
+    }
+  }
+  return { cells, issues: { badWeight, badScore, badError, unlabelled, unknownSplits } };
+}
+
+/** Runs the cell scan. */
+export async function scanCells(duck: Duck, plan: CellPlan, grouping: Grouping): Promise<{ cells: Cell[]; issues: ScanIssues }> {
+  const rows = await duck.all(cellSql(plan, grouping));
+  return toCells(rows, plan);
+}
+
+/** One-line error for unknown split values. */
+export function unknownSplitError(where: string, column: string, unknown: ReadonlyMap<string, number>): Error {
+  const list = [...unknown.entries()]
+    .sort((a, b) => b[1] - a[1])
+    .slice(0, 10)
+    .map(([v, n]) => `"${v === '' ? '(empty)' : v}" (${n} rows)`)
+    .join(', ');
+  return error(`${where}: column "${column}" has unknown split values ${list}; expected ${SPLIT_HELP}`);
+}
+
+/** Splits present in a set of cells, with their row counts. */
+export function splitRows(cells: readonly Cell[]): Record<Split, number> {
+  const out: Record<Split, number> = { train: 0, train_dev: 0, dev: 0, test: 0 };
+  for (const c of cells) out[c.split] += c.rows;
+  return out;
+}

@@ -1,0 +1,84 @@
+import type { Duck } from '../engine/duck.js';
+import { detectTable, readError, tableSql } from './read-table.js';
+import { error } from '../util/error.js';
+
+/** One entry of a floor table: key values (a subset of slice columns), the floor, and its sample size. */
+export interface FloorEntry {
+  /** line in the file (CSV/TSV: header is line 1) */
+  readonly line: number;
+  /** column → value; a column left empty in the file is not part of this entry's key */
+  readonly keys: Readonly<Record<string, string>>;
+  /** human-level error, a fraction in [0, 1] */
+  readonly floor: number;
+  /** rows the human estimate came from, or null when unknown (the floor is then taken as exact) */
+  readonly n: number | null;
+}
+
+export interface FloorTable {
+  readonly path: string;
+  readonly keyColumns: readonly string[];
+  readonly entries: readonly FloorEntry[];
+}
+
+/**
+ * Reads a floor table (CSV, TSV or JSON Lines): key columns + `floor` (fraction in [0, 1]) + optional
+ * `n`. Rejects floors outside [0, 1], non-positive `n`, and two entries with the same key.
+ * @example
+ * // package,floor,n
+ * // 0201,0.12,500
+ * await readFloorTable(duck, 'floors.csv'); // => { keyColumns: ['package'], entries: [{ keys: { package: '0201' }, floor: 0.12, n: 500, line: 2 }] }
+ */
+export async function readFloorTable(duck: Duck, path: string, valueColumn = 'floor'): Promise<FloorTable> {
+  const input = await detectTable(path);
+  if (input.format === 'parquet') throw error(`${path}: a floor table must be CSV, TSV or JSON Lines`);
+  const expr = await tableSql(duck, input);
+  let rows: Record<string, unknown>[];
+  try {
+    rows = await duck.all(`SELECT * FROM ${expr}`);
+  } catch (e) {
+    throw readError(path, e);
+  }
+  const columns = rows.length > 0 ? Object.keys(rows[0]) : [];
+  if (rows.length === 0) throw error(`${path}: no entries; expected a header and at least one row with a "${valueColumn}" column`);
+  if (!columns.includes(valueColumn)) {
+    throw error(`${path}: no "${valueColumn}" column; the columns are ${columns.map((c) => JSON.stringify(c)).join(', ')}`);
+  }
+  const keyColumns = columns.filter((c) => c !== valueColumn && c !== 'n');
+  if (keyColumns.length === 0) throw error(`${path}: no key columns; add slice columns (e.g. package) beside "${valueColumn}"`);
+  const lineOffset = input.format === 'jsonl' ? 1 : 2;
+  const seen = new Map<string, number>();
+  const entries: FloorEntry[] = rows.map((row, i) => {
+    const line = i + lineOffset;
+    const rawValue = String(row[valueColumn] ?? '').trim();
+    const value = Number(rawValue);
+    if (rawValue === '' || !Number.isFinite(value) || value < 0 || (valueColumn === 'floor' && value > 1)) {
+      const expected = valueColumn === 'floor' ? 'a fraction in [0, 1] (e.g. 0.02 for 2 %)' : 'a number >= 0';
+      throw error(`${path}: line ${line}, column "${valueColumn}": expected ${expected}, got "${rawValue}"`);
+    }
+    let n: number | null = null;
+    if (columns.includes('n')) {
+      const rawN = String(row.n ?? '').trim();
+      if (rawN !== '') {
+        n = Number(rawN);
+        if (!Number.isFinite(n) || n <= 0) throw error(`${path}: line ${line}, column "n": expected a number of rows > 0, got "${rawN}"`);
+      }
+    }
+    const keys: Record<string, string> = {};
+    for (const c of keyColumns) {
+      const v = row[c];
+      if (v !== null && v !== undefined && String(v).trim() !== '') keys[c] = String(v).trim();
+    }
+    const id = JSON.stringify(Object.entries(keys).sort());
+    const prev = seen.get(id);
+    if (prev !== undefined) throw error(`${path}: lines ${prev} and ${line} have the same key ${describeKey(keys)}; keep one`);
+    seen.set(id, line);
+    return { line, keys, floor: value, n };
+  });
+  return { path, keyColumns, entries };
+}
+
+/** "package=0201 · station=S5", or "(every row)" for an empty key. */
+export function describeKey(keys: Readonly<Record<string, string>>): string {
+  const parts = Object.entries(keys).map(([k, v]) => `${k}=${v}`);
+  return parts.length ? parts.join(' · ') : '(every row)';
+}

@@ -1,0 +1,159 @@
+import { open, stat } from 'node:fs/promises';
+import { gunzipSync } from 'node:zlib';
+import type { Duck } from '../engine/duck.js';
+import { ident, literal } from '../engine/sql.js';
+import type { Split } from '../engine/types.js';
+import { error } from '../util/error.js';
+
+/** File formats floorgap reads. CSV, TSV and JSON Lines may be gzip-compressed. */
+export type TableFormat = 'csv' | 'tsv' | 'jsonl' | 'parquet';
+
+/** An input file after detection: where it is, what it holds, and which split it is when given per split. */
+export interface TableInput {
+  readonly path: string;
+  readonly format: TableFormat;
+  readonly gzip: boolean;
+  readonly bytes: number;
+  readonly modified: string;
+  /** set when the file was given as `--train F`, `--dev F`, …: every row belongs to that split */
+  readonly split?: Split;
+}
+
+const EXTENSIONS: Record<string, TableFormat> = {
+  csv: 'csv',
+  tsv: 'tsv',
+  tab: 'tsv',
+  jsonl: 'jsonl',
+  ndjson: 'jsonl',
+  json: 'jsonl',
+  parquet: 'parquet',
+  pq: 'parquet',
+};
+
+function fromExtension(path: string): { format: TableFormat | null; gzip: boolean } {
+  const lower = path.toLowerCase();
+  const gzip = lower.endsWith('.gz') || lower.endsWith('.gzip');
+  const stem = gzip ? lower.replace(/\.(gz|gzip)$/, '') : lower;
+  const ext = stem.includes('.') ? stem.slice(stem.lastIndexOf('.') + 1) : '';
+  return { format: EXTENSIONS[ext] ?? null, gzip };
+}
+
+function sniffText(head: string): TableFormat | null {
+  const text = head.replace(/^\uFEFF/, '').trimStart();
+  if (text.length === 0) return null;
+  if (text.startsWith('{')) return 'jsonl';
+  const firstLine = text.split(/\r?\n/, 1)[0];
+  const tabs = firstLine.split('\t').length - 1;
+  const commas = firstLine.split(',').length - 1;
+  if (tabs > 0 && tabs >= commas) return 'tsv';
+  if (commas > 0) return 'csv';
+  return null;
+}
+
+/**
+ * Recognises a table file by its extension and its first bytes (gzip magic, Parquet's `PAR1`, a JSON
+ * object, or a header line with tabs or commas). The content wins when the extension is unknown; a
+ * contradiction (e.g. `.parquet` that is not Parquet) is an error.
+ * @param path the file
+ * @param split the split every row belongs to, when the file was given per split
+ * @example
+ * await detectTable('preds.csv.gz'); // => { path: 'preds.csv.gz', format: 'csv', gzip: true, ... }
+ */
+export async function detectTable(path: string, split?: Split): Promise<TableInput> {
+  const info = await stat(path).catch((e: NodeJS.ErrnoException) => {
+    if (e.code === 'ENOENT') throw error(`${path}: no such file`);
+    throw error(`${path}: cannot read (${e.code ?? e.message})`, e);
+  });
+  if (!info.isFile()) throw error(`${path}: not a file`);
+  if (info.size === 0) throw error(`${path}: the file is empty; expected a table with a header line`);
+  const handle = await open(path, 'r');
+  const buf = Buffer.alloc(Math.min(65536, info.size));
+  try {
+    await handle.read(buf, 0, buf.length, 0);
+  } finally {
+    await handle.close();
+  }
+  const byExt = fromExtension(path);
+  const gzipMagic = buf.length >= 2 && buf[0] === 0x1f && buf[1] === 0x8b;
+  const parquetMagic = buf.length >= 4 && buf.subarray(0, 4).toString('latin1') === 'PAR1';
+  let format: TableFormat | null = null;
+  if (parquetMagic) format = 'parquet';
+  else if (gzipMagic) {
+    let head = '';
+    try {
+      head = gunzipSync(buf, { finishFlush: 2 /* Z_SYNC_FLUSH */ }).subarray(0, 8192).toString('utf8');
+    } catch {
+      head = '';
+    }
+    format = sniffText(head);
+  } else format = sniffText(buf.toString('utf8'));
+
+  if (byExt.format === 'parquet' && !parquetMagic) {
+    throw error(`${path}: the name says Parquet but the file does not start with PAR1; expected a Parquet file`);
+  }
+  if (parquetMagic && byExt.format && byExt.format !== 'parquet') {
+    throw error(`${path}: the file is Parquet but its name says ${byExt.format}; rename it to .parquet`);
+  }
+  // A known text extension decides between csv/tsv/jsonl; the content decides when the extension is unknown.
+  const chosen = byExt.format && byExt.format !== 'parquet' && !parquetMagic ? byExt.format : format;
+  if (!chosen) {
+    throw error(
+      `${path}: unknown format; expected CSV, TSV, JSON Lines or Parquet (optionally .gz), by extension or content`,
+    );
+  }
+  return {
+    path,
+    format: chosen,
+    gzip: gzipMagic,
+    bytes: info.size,
+    modified: info.mtime.toISOString(),
+    ...(split ? { split } : {}),
+  };
+}
+
+/**
+ * The SQL table expression that reads one input with every column as text (VARCHAR), so that values
+ * such as `1` are never rewritten as `1.0` by type sniffing. Numbers are cast later, with our own errors.
+ */
+export async function tableSql(duck: Duck, input: TableInput): Promise<string> {
+  const path = literal(input.path);
+  const compression = input.gzip ? `'gzip'` : `'none'`;
+  switch (input.format) {
+    case 'csv':
+    case 'tsv': {
+      const delim = input.format === 'csv' ? `','` : `'\t'`;
+      return `read_csv(${path}, header = true, all_varchar = true, delim = ${delim}, quote = '"', escape = '"', compression = ${compression})`;
+    }
+    case 'jsonl': {
+      const base = `read_json(${path}, format = 'newline_delimited', compression = ${compression}`;
+      const cols = await describeColumns(duck, `${base})`, input.path);
+      const spec = cols.map((c) => `${literal(c)}: 'VARCHAR'`).join(', ');
+      return `${base}, columns = {${spec}})`;
+    }
+    case 'parquet':
+      return `(SELECT COLUMNS(*)::VARCHAR FROM read_parquet(${path}))`;
+  }
+}
+
+/** Column names of a table expression, in order. */
+export async function describeColumns(duck: Duck, tableExpr: string, path: string): Promise<string[]> {
+  try {
+    const rows = await duck.all(`DESCRIBE SELECT * FROM ${tableExpr}`);
+    return rows.map((r) => String(r.column_name));
+  } catch (e) {
+    throw readError(path, e);
+  }
+}
+
+/** Turns a DuckDB read failure into one user-facing line naming the file. */
+export function readError(path: string, e: unknown): Error {
+  const raw = e instanceof Error ? e.message : String(e);
+  const first = raw.split('\n').find((l) => l.trim().length > 0) ?? raw;
+  const cleaned = first.replace(/^(IO|Invalid Input|Conversion|Parser|Binder|Invalid) Error: /, '');
+  return error(`${path}: cannot read the table (${cleaned.trim()})`, e);
+}
+
+/** Quotes the names of a list of columns for a SELECT list. */
+export function selectList(columns: readonly string[]): string {
+  return columns.map(ident).join(', ');
+}

@@ -1,0 +1,15 @@
+/**
+ * Statistics for floorgap: normal distribution helpers, effective sample size, confidence
+ * intervals for proportions and their differences, tests of proportions, and false discovery
+ * rate adjustments. All functions are pure and throw `RangeError` on NaN or out-of-domain input.
+ */
+export { normalQuantile, normalCdf, zForConfidence } from './normal.js';
+export { kishEffectiveN } from './kish-effective-n.js';
+export type { Interval } from './interval.js';
+export { wilsonInterval } from './wilson-interval.js';
+export { newcombeInterval } from './newcombe-interval.js';
+export { binomialTestTwoSided } from './binomial-test.js';
+export { proportionTest } from './proportion-test.js';
+export { twoProportionTest } from './two-proportion-test.js';
+export { benjaminiHochberg } from './benjamini-hochberg.js';
+export { benjaminiYekutieli } from './benjamini-yekutieli.js';

@@ -1,0 +1,49 @@
+import { mkdtemp, readFile, readdir, rm, writeFile } from 'node:fs/promises';
+import { tmpdir } from 'node:os';
+import { join } from 'node:path';
+import { afterAll, describe, expect, it } from 'vitest';
+import { DEMO_DEFAULTS, demoFloorCsvLines, demoRowsToCsvLines, generateDemoRows } from '../../src/demo/generate.js';
+import { writeDemo } from '../../src/demo/write-demo.js';
+
+const root = await mkdtemp(join(tmpdir(), 'floorgap-demo-'));
+afterAll(() => rm(root, { recursive: true, force: true }));
+
+describe('writeDemo', () => {
+  it('creates a missing folder and writes both files', async () => {
+    const dir = join(root, 'a', 'b');
+    const out = await writeDemo(dir, { rows: 5000, seed: 3 });
+    expect(out).toEqual({ table: join(dir, 'solder-joints.csv'), floors: join(dir, 'inspector-floors.csv'), rows: 5000 });
+    const table = await readFile(out.table, 'utf8');
+    const expected = [...demoRowsToCsvLines(generateDemoRows({ rows: 5000, seed: 3 }))].join('\n') + '\n';
+    expect(table).toBe(expected);
+    expect(await readFile(out.floors, 'utf8')).toBe([...demoFloorCsvLines()].join('\n') + '\n');
+    expect((await readdir(dir)).sort()).toEqual(['inspector-floors.csv', 'solder-joints.csv']);
+  });
+
+  it('refuses to overwrite either file unless asked', async () => {
+    const dir = join(root, 'c');
+    await writeDemo(dir, { rows: 10, seed: 1 });
+    await rm(join(dir, 'solder-joints.csv'));
+    // floors file still there: nothing is written
+    await expect(writeDemo(dir, { rows: 10, seed: 1 })).rejects.toThrow(/file exists/);
+    expect((await readdir(dir)).sort()).toEqual(['inspector-floors.csv']);
+    await writeFile(join(dir, 'solder-joints.csv'), 'old\n');
+    const out = await writeDemo(dir, { rows: 10, seed: 2, overwrite: true });
+    expect((await readFile(out.table, 'utf8')).split('\n')).toHaveLength(12);
+  });
+
+  it('rejects bad options with a user-facing error', async () => {
+    await expect(writeDemo(join(root, 'd'), { rows: -1, seed: 1 })).rejects.toMatchObject({
+      name: 'FloorgapError',
+      message: expect.stringMatching(/rows must be a positive integer/),
+    });
+  });
+
+  it('matches the shipped sample in data-samples/', async () => {
+    const shipped = await readFile(new URL('../../data-samples/solder-joints.csv', import.meta.url), 'utf8');
+    const expected = [...demoRowsToCsvLines(generateDemoRows(DEMO_DEFAULTS))].join('\n') + '\n';
+    expect(shipped === expected).toBe(true);
+    const floors = await readFile(new URL('../../data-samples/inspector-floors.csv', import.meta.url), 'utf8');
+    expect(floors).toBe([...demoFloorCsvLines()].join('\n') + '\n');
+  });
+});

@@ -1,0 +1,29 @@
+import { describe, it, expect } from 'vitest';
+import * as stats from '../../src/stats/index.js';
+
+describe('src/stats/index.ts', () => {
+  it('re-exports the public API', () => {
+    // contract (this module): the agreed export list
+    const names = [
+      'normalQuantile',
+      'normalCdf',
+      'zForConfidence',
+      'kishEffectiveN',
+      'wilsonInterval',
+      'newcombeInterval',
+      'binomialTestTwoSided',
+      'proportionTest',
+      'twoProportionTest',
+      'benjaminiHochberg',
+      'benjaminiYekutieli',
+    ];
+    for (const name of names) expect(typeof (stats as Record<string, unknown>)[name]).toBe('function');
+    expect(Object.keys(stats).sort()).toEqual([...names].sort());
+  });
+
+  it('exports the Interval type', () => {
+    // type-level check (compiled by tsc -p tsconfig.test.json): Newcombe 1998 (17:857) Table II, 0/20 -> 0 to 0.1611
+    const ci: stats.Interval | null = stats.wilsonInterval(0, 20);
+    expect(ci?.lo).toBe(0);
+  });
+});
