@@ -117,7 +117,7 @@ export async function detectTable(path: string, split?: Split): Promise<TableInp
  */
 export async function tableSql(duck: Duck, input: TableInput): Promise<string> {
   const path = literal(input.path);
-  const compression = input.gzip ? `'gzip'` : `'none'`;
+  const compression = input.gzip ? `'gzip'` : `'uncompressed'`; // read_json rejects 'none'
   switch (input.format) {
     case 'csv':
     case 'tsv': {

@@ -48,6 +48,5 @@ export function paint(text: string, styles: readonly Style[], enabled: boolean):
  * stripAnsi('\x1b[1mtotal\x1b[22m'); // => 'total'
  */
 export function stripAnsi(text: string): string {
-  // eslint-disable-next-line no-control-regex
   return text.replace(/\x1b\[[0-9;]*m/g, '');
 }

@@ -34,7 +34,9 @@ export const CSV_COLUMNS: readonly string[] = [
 const SPLITS: readonly Split[] = ['train', 'train_dev', 'dev', 'test'];
 
 /** A cell holding a number: never neutralised, so `-0.5` stays a number. */
-type Value = { readonly kind: 'number'; readonly value: number | null } | { readonly kind: 'text'; readonly value: string };
+type Value =
+  | { readonly kind: 'number'; readonly value: number | null }
+  | { readonly kind: 'text'; readonly value: string };
 
 const num = (value: number | null | undefined): Value => ({ kind: 'number', value: value ?? null });
 const text = (value: string): Value => ({ kind: 'text', value });

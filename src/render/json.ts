@@ -7,7 +7,6 @@
 import type { Report } from '../triage/types.js';
 
 /** Characters JSON.stringify leaves raw that must not reach a terminal. */
-// eslint-disable-next-line no-control-regex
 const UNSAFE_IN_STRINGS = /[\u007f-\u009f\u061c\u200e\u200f\u2028\u2029\u202a-\u202e\u2066-\u2069]/g;
 
 function finite(_key: string, value: unknown): unknown {

@@ -45,10 +45,10 @@ function summary(report: Report): string[] {
   const flagged = report.slices.filter((s) => s.flagged).length;
   const grouping =
     report.by === null
-      ? 'overview: one-column slices'
+      ? ' (overview: one-column slices)'
       : report.by.length === 0
-        ? 'no grouping'
-        : `by ${report.by.map(escapeMarkdown).join(', ')}`;
+        ? ', no grouping'
+        : ` by ${report.by.map((c) => escapeMarkdown(c)).join(', ')}`;
   const inputs = report.source.inputs.map((i) => escapeMarkdown(i.path) + (i.split ? ` (${i.split})` : ''));
   const errors = SPLITS.filter((s) => o.error[s] !== null).map(
     (s) => `${s} ${points(o.error[s]?.value)}${mdInterval(o.error[s]?.lo, o.error[s]?.hi)} on ${count(o.rows[s])} rows`,
@@ -59,12 +59,14 @@ function summary(report: Report): string[] {
     gapText('mismatch', o.gaps.mismatch),
     gapText('dev overfit', o.gaps.dev_overfit),
   ].filter((g): g is string => g !== null);
+  const n = report.slices.length;
+  const floorSource = FLOOR_SOURCE_NAME[o.floor.source] ?? escapeMarkdown(String(o.floor.source));
   const lines = [
-    `${report.slices.length} slice${report.slices.length === 1 ? '' : 's'} ${grouping}; **${flagged} flagged**. ` +
+    `${count(n)} slice${n === 1 ? '' : 's'}${grouping}; **${count(flagged)} flagged**. ` +
       `Input: ${inputs.length > 0 ? inputs.join(', ') : NULL_MARK}.`,
     '',
     `**Overall** (error in percentage points, ${levelPercent(report.confidence)} intervals): ` +
-      `floor ${points(o.floor.value)}${mdInterval(o.floor.lo, o.floor.hi)} from ${FLOOR_SOURCE_NAME[o.floor.source] ?? escapeMarkdown(String(o.floor.source))}; ` +
+      `floor ${points(o.floor.value)}${mdInterval(o.floor.lo, o.floor.hi)} from ${floorSource}; ` +
       `${errors.join('; ')}.`,
   ];
   if (gaps.length > 0) lines.push(`Gaps: ${gaps.join('; ')}. Overall focus: ${o.focus}.`);
@@ -88,18 +90,22 @@ function columns(report: Report): MdColumn[] {
     { header: 'share', align: 'right', cell: (s) => percent(s.share) },
     { header: 'floor', align: 'right', cell: (s) => points(s.floor.value) },
     { header: 'train', align: 'right', cell: (s) => points(s.error.train?.value) },
-    any((s) => s.error.train_dev) ? { header: 'train_dev', align: 'right', cell: (s) => points(s.error.train_dev?.value) } : null,
+    any((s) => s.error.train_dev)
+      ? { header: 'train_dev', align: 'right', cell: (s) => points(s.error.train_dev?.value) }
+      : null,
     { header: 'dev', align: 'right', cell: (s) => points(s.error.dev?.value) },
     any((s) => s.error.test) ? { header: 'test', align: 'right', cell: (s) => points(s.error.test?.value) } : null,
     { header: 'bias', align: 'right', cell: (s) => signedPoints(s.gaps.avoidable_bias?.value) },
     { header: 'variance', align: 'right', cell: (s) => signedPoints(s.gaps.variance?.value) },
-    any((s) => s.gaps.mismatch) ? { header: 'mismatch', align: 'right', cell: (s) => signedPoints(s.gaps.mismatch?.value) } : null,
+    any((s) => s.gaps.mismatch)
+      ? { header: 'mismatch', align: 'right', cell: (s) => signedPoints(s.gaps.mismatch?.value) }
+      : null,
     any((s) => s.gaps.dev_overfit)
       ? { header: 'dev overfit', align: 'right', cell: (s) => signedPoints(s.gaps.dev_overfit?.value) }
       : null,
     { header: 'headroom', align: 'right', cell: (s) => points(s.headroom?.total, 2) },
     { header: 'yield', align: 'right', cell: (s) => points(s.yield, 2) },
-    { header: 'focus', align: 'left', cell: (s) => s.focus },
+    { header: 'focus', align: 'left', cell: (s) => escapeMarkdown(s.focus) },
   ];
   return list.filter((c): c is MdColumn => c !== null);
 }
@@ -130,12 +136,15 @@ export function renderMarkdown(report: Report): string {
     lines.push('Warnings:', '', ...report.warnings.map((w) => `- ${escapeMarkdown(w)}`), '');
   }
   lines.push(...table(report), '');
+  const fdrMethod = FDR_METHOD_NAME[report.fdr_method] ?? escapeMarkdown(String(report.fdr_method));
   lines.push(
     `Error, gaps and floor in percentage points (7.0 = 7% error). ` +
-      `Bias = train − floor; variance = train_dev − train (dev − train without train_dev); mismatch = dev − train_dev; ` +
+      `Bias = train − floor; variance = train_dev − train (dev − train without train_dev); ` +
+      `mismatch = dev − train_dev; ` +
       `dev overfit = test − dev. Headroom: points of overall dev error regained if the slice reached its floor; ` +
       `yield: headroom points per 1,000 new labelled rows per unit of labelling cost. ` +
-      `Flagged: significant after false-discovery control (${levelPercent(report.fdr)}, ${FDR_METHOD_NAME[report.fdr_method] ?? escapeMarkdown(String(report.fdr_method))}) and worth acting on. ${NULL_MARK} = not available.`,
+      `Flagged: significant after false-discovery control (${levelPercent(report.fdr)}, ${fdrMethod}) ` +
+      `and worth acting on. ${NULL_MARK} = not available.`,
   );
   return `${lines.join('\n')}\n`;
 }

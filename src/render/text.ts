@@ -6,7 +6,17 @@
 import type { Split } from '../engine/types.js';
 import type { Focus, Gap, Report, SliceReport } from '../triage/types.js';
 import { paint, type Style } from './ansi.js';
-import { bytes, count, levelPercent, NULL_MARK, percent, points, pointsInterval, pValue, signedPoints } from './format.js';
+import {
+  bytes,
+  count,
+  levelPercent,
+  NULL_MARK,
+  percent,
+  points,
+  pointsInterval,
+  pValue,
+  signedPoints,
+} from './format.js';
 import { displayWidth, pad, sanitize, truncate } from './sanitize.js';
 import { FDR_METHOD_NAME, FLOOR_SOURCE_NAME } from './words.js';
 
@@ -224,12 +234,13 @@ function headerBlock(report: Report, width: number, color: boolean): Line[] {
         ? ['none']
         : [`by ${report.by.map((c) => sanitize(c)).join(', ')}`];
   lines.push(...keyedLines('grouping', grouping, width, color));
+  const fdrMethod = FDR_METHOD_NAME[report.fdr_method] ?? sanitize(String(report.fdr_method));
   lines.push(
     ...keyedLines(
       'settings',
       [
         `${levelPercent(report.confidence)} intervals`,
-        `false discovery rate ${levelPercent(report.fdr)} (${FDR_METHOD_NAME[report.fdr_method] ?? sanitize(String(report.fdr_method))})`,
+        `false discovery rate ${levelPercent(report.fdr)} (${fdrMethod})`,
         `floorgap ${sanitize(report.source.version)}`,
       ],
       width,
@@ -248,9 +259,9 @@ function overallBlock(report: Report, width: number, color: boolean): Line[] {
     ['mismatch', o.gaps.mismatch],
     ['dev overfit', o.gaps.dev_overfit],
   ];
-  const floorNote = [`from ${FLOOR_SOURCE_NAME[o.floor.source] ?? sanitize(String(o.floor.source))}`];
+  const floorNote = [FLOOR_SOURCE_NAME[o.floor.source] ?? sanitize(String(o.floor.source))];
   if (o.floor.dev !== null && Math.abs(o.floor.dev - o.floor.value) >= 0.0005) {
-    floorNote.push(`${points(o.floor.dev)} over dev rows`);
+    floorNote.push(`${points(o.floor.dev)} on dev rows`);
   }
   const interval = `${levelPercent(report.confidence)} interval`;
   const name = ['floor', ...splits, '', ...gaps.map(([g]) => g)];
@@ -268,10 +279,11 @@ function overallBlock(report: Report, width: number, color: boolean): Line[] {
     ...gaps.map(([, g]) => pointsInterval(g?.lo, g?.hi, true)),
   ];
   const note = [
-    floorNote.join(', '),
+    floorNote.join('; '),
     ...splits.map(() => ''),
     '',
-    ...gaps.map(([, g]) => (g === null ? '' : g.q !== null ? `q ${pValue(g.q)}` : g.p !== null ? `p ${pValue(g.p)}` : '')),
+    // q when the overall slice was part of the tested family, else its unadjusted p
+    ...gaps.map(([, g]) => (g?.q != null ? `q ${pValue(g.q)}` : g?.p != null ? `p ${pValue(g.p)}` : '')),
   ];
   const columns: Column[] = [
     { id: 'name', header: 'overall', align: 'left', cells: name.map((s) => (s === '' ? '' : `  ${s}`)) },
@@ -341,7 +353,13 @@ function sliceColumns(report: Report, rows: readonly SliceReport[]): Column[] {
   const columns: Column[] = [
     { id: 'rank', header: '#', align: 'right', cells: rows.map((s) => (s === overall ? '' : String(s.rank))) },
     { id: 'flag', header: '', align: 'left', cells: rows.map((s) => (s.flagged ? FLAG_MARK : '')), gapBefore: 1 },
-    { id: 'slice', header: labels.header, align: 'left', cells: rows.map((s) => (s === overall ? 'overall' : labels.cell(s))), gapBefore: 1 },
+    {
+      id: 'slice',
+      header: labels.header,
+      align: 'left',
+      cells: rows.map((s) => (s === overall ? 'overall' : labels.cell(s))),
+      gapBefore: 1,
+    },
     { id: 'rows', header: 'rows', align: 'right', cells: rows.map((s) => count(s.rows.dev)) },
     { id: 'share', header: 'share', align: 'right', cells: rows.map((s) => (s === overall ? '' : percent(s.share))) },
     { id: 'floor', header: 'floor', align: 'right', cells: rows.map((s) => points(s.floor.value)) },
@@ -351,12 +369,13 @@ function sliceColumns(report: Report, rows: readonly SliceReport[]): Column[] {
     { id: 'var', header: 'var', align: 'right', cells: rows.map((s) => signedPoints(s.gaps.variance?.value)) },
   ];
   if (anyMismatch) {
-    columns.push({ id: 'mism', header: 'mism', align: 'right', cells: rows.map((s) => signedPoints(s.gaps.mismatch?.value)) });
+    const cells = rows.map((s) => signedPoints(s.gaps.mismatch?.value));
+    columns.push({ id: 'mism', header: 'mism', align: 'right', cells });
   }
   columns.push(
     { id: 'headroom', header: 'headroom', align: 'right', cells: rows.map((s) => points(s.headroom?.total, 2)) },
     { id: 'yield', header: 'yield', align: 'right', cells: rows.map((s) => points(s.yield, 2)) },
-    { id: 'focus', header: 'focus', align: 'left', cells: rows.map((s) => s.focus) },
+    { id: 'focus', header: 'focus', align: 'left', cells: rows.map((s) => sanitize(s.focus)) },
   );
   return columns;
 }
@@ -395,7 +414,15 @@ function fitColumns(all: readonly Column[], width: number): Fit {
   return last as Fit;
 }
 
-function sliceTable(report: Report, width: number, color: boolean): { lines: Line[]; shown: string[]; dropped: string[] } {
+interface SliceTable {
+  readonly lines: Line[];
+  /** ids of the columns shown */
+  readonly shown: string[];
+  /** ids of the optional columns hidden to fit the width */
+  readonly dropped: string[];
+}
+
+function sliceTable(report: Report, width: number, color: boolean): SliceTable {
   const ranked = [...report.slices].sort((a, b) => a.rank - b.rank || a.label.localeCompare(b.label));
   const rows: SliceReport[] = [report.overall, ...ranked];
   const fit = fitColumns(sliceColumns(report, rows), width);
@@ -414,8 +441,9 @@ function sliceTable(report: Report, width: number, color: boolean): { lines: Lin
   };
 }
 
-function legend(report: Report, shown: readonly string[], dropped: readonly string[], width: number, color: boolean): Line[] {
-  const withoutTrainDev = report.slices.every((s) => s.error.train_dev === null) && report.overall.error.train_dev === null;
+function legend(report: Report, table: SliceTable, width: number, color: boolean): Line[] {
+  const { shown, dropped } = table;
+  const withoutTrainDev = [report.overall, ...report.slices].every((s) => s.error.train_dev === null);
   const has = (id: string): boolean => shown.includes(id);
   const items = [
     'points of error (7.0 = 7%)',
@@ -462,6 +490,6 @@ export function renderText(report: Report, options: TextOptions): string {
     ...overallBlock(report, width, color),
   ];
   if (report.warnings.length > 0) lines.push(blank, ...warningLines(report, width, color));
-  lines.push(blank, ...table.lines, blank, ...legend(report, table.shown, table.dropped, width, color));
+  lines.push(blank, ...table.lines, blank, ...legend(report, table, width, color));
   return `${lines.map((l) => l.styled).join('\n')}\n`;
 }

@@ -1,12 +1,12 @@
 /** Display names shared by the text and markdown renderers. */
 import type { FloorSource, Report } from '../triage/types.js';
 
-/** How each floor source reads in a sentence ("floor from …"). */
+/** Where a floor came from, in words. */
 export const FLOOR_SOURCE_NAME: Readonly<Record<FloorSource, string>> = {
-  default: 'the default floor',
-  table: 'the floor table',
-  mixed: 'the floor table and the default floor',
-  annotators: 'annotators',
+  default: 'default floor',
+  table: 'floor table',
+  mixed: 'floor table and default floor',
+  annotators: 'annotator columns',
 };
 
 /** Full names of the false-discovery-rate procedures. */

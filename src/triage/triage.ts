@@ -212,7 +212,12 @@ export function triage(
         yieldValue = sliceYield(d.share, gaps.variance.value, gaps.mismatch?.value ?? null, d.error.train.n, options.curveExponent, options.labelCost);
       }
       const part = d.headroom ? (focus === 'bias' ? d.headroom.bias : focus === 'variance' ? d.headroom.variance : focus === 'mismatch' ? d.headroom.mismatch ?? 0 : 0) : 0;
-      const flagged = (focus === 'bias' || focus === 'variance' || focus === 'mismatch') && part >= options.minHeadroom;
+      // worth acting on: the lever's own part and the slice's whole gain both reach min-headroom
+      // (a slice whose dev error already sits at its floor has nothing to give back)
+      const flagged =
+        (focus === 'bias' || focus === 'variance' || focus === 'mismatch') &&
+        part >= options.minHeadroom &&
+        (d.headroom?.total ?? 0) >= options.minHeadroom;
       const report: SliceReport = {
         key: d.stats.key,
         label: d.label,

@@ -1,0 +1,167 @@
+import { copyFileSync, writeFileSync } from 'node:fs';
+import { join } from 'node:path';
+import { fileURLToPath } from 'node:url';
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { openDuck, type Duck } from '../../src/engine/duck.js';
+import { describeKey, readFloorTable } from '../../src/io/read-floor-table.js';
+import { FloorgapError } from '../../src/util/error.js';
+import { csvToParquet, makeTempDir, removeTempDir, writeGzip } from '../helpers/table-variants.js';
+
+const FLOORS = fileURLToPath(new URL('../fixtures/floors/', import.meta.url));
+
+let duck: Duck;
+let dir: string;
+
+beforeAll(async () => {
+  duck = await openDuck({ threads: 1 });
+  dir = makeTempDir();
+});
+
+afterAll(() => {
+  duck?.close();
+  if (dir) removeTempDir(dir);
+});
+
+function file(name: string, text: string): string {
+  const path = join(dir, name);
+  writeFileSync(path, text);
+  return path;
+}
+
+async function failure(p: Promise<unknown>): Promise<FloorgapError> {
+  const e = await p.then(
+    () => null,
+    (err: unknown) => err,
+  );
+  expect(e).toBeInstanceOf(FloorgapError);
+  return e as FloorgapError;
+}
+
+describe('readFloorTable', () => {
+  it('reads keys of different specificity, floors and n (CSV)', async () => {
+    const path = join(FLOORS, 'floors.csv');
+    const t = await readFloorTable(duck, path);
+    // expected: hand-copied from test/fixtures/floors/floors.csv; header is line 1, empty key cells are
+    // not part of the key, key text is trimmed, leading zeros kept, `1e3` is a number
+    expect(t.path).toBe(path);
+    expect(t.keyColumns).toEqual(['station', 'lighting']);
+    expect(t.entries).toEqual([
+      { line: 2, keys: { station: 'S1' }, floor: 0.05, n: 200 },
+      { line: 3, keys: { station: 'S1', lighting: 'dome' }, floor: 0.1, n: 50 },
+      { line: 4, keys: { lighting: 'ring' }, floor: 0.02, n: null },
+      { line: 5, keys: { station: '0201', lighting: 'ring' }, floor: 0, n: 1000 },
+    ]);
+  });
+
+  it('reads JSON Lines with line numbers starting at 1', async () => {
+    const t = await readFloorTable(duck, join(FLOORS, 'floors.jsonl'));
+    // expected: hand-copied from test/fixtures/floors/floors.jsonl (first line is line 1)
+    expect(t.keyColumns).toEqual(['station', 'lighting']);
+    expect(t.entries).toEqual([
+      { line: 1, keys: { station: 'S1' }, floor: 0.05, n: 200 },
+      { line: 2, keys: { station: 'S1', lighting: 'dome' }, floor: 0.1, n: null },
+      { line: 3, keys: { lighting: 'ring' }, floor: 0.02, n: null },
+    ]);
+  });
+
+  it('reads TSV and gzip-compressed CSV', async () => {
+    const tsv = file('floors.tsv', 'package\tfloor\n0201\t0.12\n');
+    const gz = join(dir, 'floors.csv.gz');
+    writeGzip(gz, 'package,floor\n0201,0.12\n');
+    // expected: hand-written from the two one-entry tables above
+    for (const path of [tsv, gz]) {
+      const t = await readFloorTable(duck, path);
+      expect(t.keyColumns).toEqual(['package']);
+      expect(t.entries).toEqual([{ line: 2, keys: { package: '0201' }, floor: 0.12, n: null }]);
+    }
+  });
+
+  it('reads another value column (a cost table)', async () => {
+    const path = file('costs.csv', 'station,cost\nS1,2.5\nS2,40\n');
+    const t = await readFloorTable(duck, path, 'cost');
+    // expected: hand-copied from the table above; a cost may exceed 1
+    expect(t.entries.map((e) => e.floor)).toEqual([2.5, 40]);
+  });
+
+  it('a floor of 1.5: names file, line and column', async () => {
+    const path = file('floor-too-big.csv', 'station,floor\nS1,0.1\nS2,1.5\n');
+    const e = await failure(readFloorTable(duck, path));
+    // line 3: hand-counted (header is line 1)
+    expect(e.message).toBe(`${path}: line 3, column "floor": expected a fraction in [0, 1] (e.g. 0.02 for 2 %), got "1.5"`);
+  });
+
+  it('a negative or non-numeric or empty floor', async () => {
+    for (const [bad, line] of [
+      ['-0.1', 2],
+      ['2%', 2],
+      ['', 2],
+    ] as const) {
+      const path = file(`floor-${line}-${bad.length}.csv`, `station,floor\nS1,${bad}\n`);
+      const e = await failure(readFloorTable(duck, path));
+      expect(e.message).toBe(
+        `${path}: line ${line}, column "floor": expected a fraction in [0, 1] (e.g. 0.02 for 2 %), got "${bad}"`,
+      );
+    }
+  });
+
+  it('a non-positive n', async () => {
+    const path = file('bad-n.jsonl', '{"station":"S1","floor":0.1,"n":5}\n{"station":"S2","floor":0.1,"n":0}\n');
+    const e = await failure(readFloorTable(duck, path));
+    // line 2: hand-counted (JSON Lines: first line is line 1)
+    expect(e.message).toBe(`${path}: line 2, column "n": expected a number of rows > 0, got "0"`);
+  });
+
+  it('two entries with the same key (after trimming)', async () => {
+    const path = file('dup.csv', 'station,lighting,floor\nS1,dome,0.1\nS2,,0.2\n S1 ,dome ,0.3\n');
+    const e = await failure(readFloorTable(duck, path));
+    expect(e.message).toBe(`${path}: lines 2 and 4 have the same key station=S1 · lighting=dome; keep one`);
+  });
+
+  it('no floor column lists the columns', async () => {
+    const path = file('nofloor.csv', 'station,value\nS1,0.1\n');
+    const e = await failure(readFloorTable(duck, path));
+    expect(e.message).toBe(`${path}: no "floor" column; the columns are "station", "value"`);
+  });
+
+  it('no key column', async () => {
+    const path = file('nokey.csv', 'floor,n\n0.1,20\n');
+    const e = await failure(readFloorTable(duck, path));
+    expect(e.message).toBe(`${path}: no key columns; add slice columns (e.g. package) beside "floor"`);
+  });
+
+  it('a header without rows', async () => {
+    const path = file('header-only.csv', 'station,floor\n');
+    const e = await failure(readFloorTable(duck, path));
+    expect(e.message).toBe(`${path}: no entries; expected a header and at least one row with a "floor" column`);
+  });
+
+  it('Parquet is refused', async () => {
+    const csv = file('floors-for-parquet.csv', 'station,floor\nS1,0.1\n');
+    const path = join(dir, 'floors.parquet');
+    await csvToParquet(duck, csv, path);
+    const e = await failure(readFloorTable(duck, path));
+    expect(e.message).toBe(`${path}: a floor table must be CSV, TSV or JSON Lines`);
+  });
+
+  it('a missing file names the path', async () => {
+    const path = join(dir, 'missing-floors.csv');
+    const e = await failure(readFloorTable(duck, path));
+    expect(e.message).toBe(`${path}: no such file`);
+  });
+
+  it('a floor table under a .txt name is detected by content', async () => {
+    const path = join(dir, 'floors.txt');
+    copyFileSync(join(FLOORS, 'floors.csv'), path);
+    const t = await readFloorTable(duck, path);
+    // expected: same four entries as floors.csv (hand-counted)
+    expect(t.entries).toHaveLength(4);
+  });
+});
+
+describe('describeKey', () => {
+  it('joins key parts; the empty key is every row', () => {
+    // expected: hand-written
+    expect(describeKey({ station: 'S1', lighting: 'dome' })).toBe('station=S1 · lighting=dome');
+    expect(describeKey({})).toBe('(every row)');
+  });
+});
