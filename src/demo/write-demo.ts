@@ -18,7 +18,7 @@ const CHUNK_CHARS = 64 * 1024;
  * either name stops it before anything is written.
  * @returns the two paths and the number of data rows written
  * @example
- * await writeDemo('data-samples', { rows: 20000, seed: 7, overwrite: true });
+ * await writeDemo('data-samples', { ...DEMO_DEFAULTS, overwrite: true }); // regenerates the shipped sample
  */
 export async function writeDemo(
   dir: string,

@@ -68,22 +68,45 @@ function planted(r: Pick<DemoRow, 'split' | 'station' | 'lighting' | 'package'>,
   return Math.min(p, errorCap);
 }
 
-/** mean planted error probability of the rows: the expectation of their error rate */
-const meanPlanted = (rows: readonly DemoRow[], omit?: EffectPlant) =>
-  rows.reduce((s, r) => s + planted(r, omit), 0) / rows.length;
-/** standard error of the rows' error rate: independent Bernoulli draws with their planted probabilities */
-const plantedSe = (rows: readonly DemoRow[]) =>
-  Math.sqrt(rows.reduce((s, r) => s + planted(r) * (1 - planted(r)), 0)) / rows.length;
+/**
+ * The rows' planted expectation: `mean` is their mean planted error probability (without `omit`), the
+ * expectation of their error rate; `se` the standard error of that rate (independent Bernoulli draws with
+ * their full planted probabilities).
+ */
+function plantedStats(rows: readonly DemoRow[], omit?: EffectPlant): { mean: number; se: number } {
+  let sum = 0;
+  let variance = 0;
+  for (const r of rows) {
+    const p = planted(r);
+    sum += omit === undefined ? p : planted(r, omit);
+    variance += p * (1 - p);
+  }
+  return { mean: sum / rows.length, se: Math.sqrt(variance) / rows.length };
+}
 
 /** The rows' error rate is within Z SE of `expected` (at least `minRows` rows, so the check means something). */
 function expectRate(rows: readonly DemoRow[], expected: number, se: number, label: string, minRows = 100): void {
   expect(rows.length, `${label}: rows`).toBeGreaterThanOrEqual(minRows);
-  expect(Math.abs(errorRate(rows) - expected), `${label}: error ${errorRate(rows)} vs ${expected}`).toBeLessThan(Z * se);
+  const rate = errorRate(rows);
+  expect(Math.abs(rate - expected), `${label}: error ${rate} vs ${expected} ± ${Z}·${se}`).toBeLessThan(Z * se);
 }
 
 /** The rows' error rate minus their planted rate without `plant` is within Z SE of `effect`. */
 function expectEffect(rows: readonly DemoRow[], plant: EffectPlant, effect: number, label: string): void {
-  expectRate(rows, meanPlanted(rows, plant) + effect, plantedSe(rows), label);
+  const { mean, se } = plantedStats(rows, plant);
+  expectRate(rows, mean + effect, se, label);
+}
+
+/** Groups rows by `key`, keeping the groups in first-seen order. */
+function groupBy(rows: readonly DemoRow[], key: (r: DemoRow) => string): Map<string, DemoRow[]> {
+  const groups = new Map<string, DemoRow[]>();
+  for (const r of rows) {
+    const k = key(r);
+    const group = groups.get(k);
+    if (group) group.push(r);
+    else groups.set(k, [r]);
+  }
+  return groups;
 }
 
 /** The share of rows matching `f` is within Z binomial SE of `p`. */
@@ -372,17 +395,18 @@ describe.each([
   it('draws errors with the planted probability in every one-column slice of every split', () => {
     // finish and shift carry no effect, so they too must match the planted mix of their rows
     const columns = ['station', 'lighting', 'package', 'finish', 'shift'] as const;
-    for (const split of SPLITS) {
-      const splitRows = inSplit(rows, split);
-      expectRate(splitRows, meanPlanted(splitRows), plantedSe(splitRows), split);
+    for (const [split, splitRows] of groupBy(rows, (r) => r.split)) {
+      const whole = plantedStats(splitRows);
+      expectRate(splitRows, whole.mean, whole.se, split);
       for (const column of columns) {
-        for (const value of new Set(splitRows.map((r) => r[column]))) {
-          const slice = splitRows.filter((r) => r[column] === value);
+        for (const [value, slice] of groupBy(splitRows, (r) => r[column])) {
+          const { mean, se } = plantedStats(slice);
           // only the rare training-distribution S5 slices may be small
-          expectRate(slice, meanPlanted(slice), plantedSe(slice), `${split} ${column}=${value}`, 50);
+          expectRate(slice, mean, se, `${split} ${column}=${value}`, 50);
         }
       }
     }
+    expect([...groupBy(rows, (r) => r.split).keys()].sort()).toEqual([...SPLITS].sort());
   });
 
   it('0201: the whole slice sits at its floor in every split, whatever the station or lighting', () => {
