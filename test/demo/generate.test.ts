@@ -35,8 +35,9 @@ const SHIPPED = take(DEMO_DEFAULTS.rows, DEMO_DEFAULTS.seed);
 
 /**
  * Tolerance of the statistical checks, in binomial standard errors. The samples are seeded, so the checks
- * are deterministic; 4 SE keeps them from breaking on a change of seed or sample size while a missing,
- * misplaced or wrong-sized plant is still many SE away at BIG_ROWS.
+ * are deterministic; 4 SE keeps them from breaking on a change of seed or sample size, while a missing or
+ * misplaced plant (wrong slice, wrong split, wrong station mix) is still many SE away at BIG_ROWS. Effect
+ * sizes are read from the constants here and pinned by the literal checks.
  */
 const Z = 4;
 
@@ -389,9 +390,9 @@ describe('generateDemoRows: planted parameters', () => {
 });
 
 describe.each([
-  { name: `${BIG_ROWS} rows, seed ${BIG_SEED}`, rows: BIG },
-  { name: `shipped sample (${DEMO_DEFAULTS.rows} rows, seed ${DEMO_DEFAULTS.seed})`, rows: SHIPPED },
-])('generateDemoRows: planted structure ($name)', ({ rows }) => {
+  [`${BIG_ROWS} rows, seed ${BIG_SEED}`, BIG],
+  [`shipped sample: ${DEMO_DEFAULTS.rows} rows, seed ${DEMO_DEFAULTS.seed}`, SHIPPED],
+] as const)('generateDemoRows: planted structure (%s)', (_name, rows) => {
   it('draws errors with the planted probability in every one-column slice of every split', () => {
     // finish and shift carry no effect, so they too must match the planted mix of their rows
     const columns = ['station', 'lighting', 'package', 'finish', 'shift'] as const;
