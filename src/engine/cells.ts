@@ -165,9 +165,15 @@ export interface ScanIssues {
   readonly unknownSplits: ReadonlyMap<string, number>;
 }
 
-/** Converts the scan's raw rows to cells, collecting rows set aside and unknown split values. */
-export function toCells(rows: readonly Record<string, unknown>[], plan: CellPlan): { cells: Cell[]; issues: ScanIssues } {
+/**
+ * Converts the scan's raw rows to cells, collecting rows set aside and unknown split values. Raw split
+ * spellings that name the same split (`dev`, `val`, `Validation`) are merged into one cell.
+ * @param copies how many times the scan counted each row (the number of grouping sets), so that the
+ * counts of rows set aside are counts of rows
+ */
+export function toCells(rows: readonly Record<string, unknown>[], plan: CellPlan, copies = 1): { cells: Cell[]; issues: ScanIssues } {
   const cells: Cell[] = [];
+  const byId = new Map<string, number>();
   let badWeight = 0;
   let badScore = 0;
   let badError = 0;
@@ -191,7 +197,7 @@ export function toCells(rows: readonly Record<string, unknown>[], plan: CellPlan
         const v = row[`k${i}`];
         key[c.name] = v === null || v === undefined ? null : String(v);
       });
-      cells.push({
+      const cell: Cell = {
         key,
         split,
         rows: count,
@@ -201,8 +207,32 @@ export function toCells(rows: readonly Record<string, unknown>[], plan: CellPlan
         floorSum: Number(row.fg_floor_sum),
         floorEntry: Number(row.fg_floor_entry),
         floorN: row.fg_floor_n === null || row.fg_floor_n === undefined ? null : Number(row.fg_floor_n),
-      });
+      };
+      const id = JSON.stringify([split, cell.floorEntry, ...plan.columns.map((c) => key[c.name])]);
+      const at = byId.get(id);
+      if (at === undefined) {
+        byId.set(id, cells.length);
+        cells.push(cell);
+      } else {
+        const prev = cells[at];
+        cells[at] = {
+          ...prev,
+          rows: prev.rows + cell.rows,
+          weight: prev.weight + cell.weight,
+          weightSq: prev.weightSq + cell.weightSq,
+          errors: prev.errors + cell.errors,
+          floorSum: prev.floorSum + cell.floorSum,
+        };
+      }
     }
+  }
+  if (copies > 1) {
+    // every row is counted once per grouping set
+    for (const [raw, n] of unknownSplits) unknownSplits.set(raw, n / copies);
+    return {
+      cells,
+      issues: { badWeight: badWeight / copies, badScore: badScore / copies, badError: badError / copies, unlabelled: unlabelled / copies, unknownSplits },
+    };
   }
   return { cells, issues: { badWeight, badScore, badError, unlabelled, unknownSplits } };
 }
@@ -210,7 +240,7 @@ export function toCells(rows: readonly Record<string, unknown>[], plan: CellPlan
 /** Runs the cell scan. */
 export async function scanCells(duck: Duck, plan: CellPlan, grouping: Grouping): Promise<{ cells: Cell[]; issues: ScanIssues }> {
   const rows = await duck.all(cellSql(plan, grouping));
-  return toCells(rows, plan);
+  return toCells(rows, plan, grouping.kind === 'sets' ? grouping.sets.length : 1);
 }
 
 /** One-line error for unknown split values. */

@@ -1,7 +1,7 @@
 import type { Duck } from './duck.js';
 import { ident, literal } from './sql.js';
 import type { Split } from './types.js';
-import { describeColumns, detectTable, readError, tableSql, type TableInput } from '../io/read-table.js';
+import { describeColumns, detectTable, headerNames, readError, tableSql, type TableInput } from '../io/read-table.js';
 import { error } from '../util/error.js';
 
 /** Where the rows come from: one or more tables with a split column, or one file per split. */
@@ -46,7 +46,7 @@ export async function openSource(duck: Duck, spec: SourceSpec): Promise<Source> 
   for (const input of inputs) {
     const expr = await tableSql(duck, input);
     const cols = await describeColumns(duck, expr, input.path);
-    checkHeader(input.path, cols);
+    checkHeader(input.path, cols, (await headerNames(duck, input)) ?? cols);
     for (const c of cols) if (!allColumns.includes(c)) allColumns.push(c);
     parts.push(
       input.split
@@ -63,10 +63,13 @@ export async function openSource(duck: Duck, spec: SourceSpec): Promise<Source> 
   return { inputs, columns: allColumns, splitColumn: perSplit.length > 0 ? PER_SPLIT_COLUMN : null, where };
 }
 
-function checkHeader(path: string, cols: readonly string[]): void {
-  const seen = new Set<string>();
+/** `written`: the header as written in the file (CSV/TSV), where repeated names are still visible. */
+function checkHeader(path: string, cols: readonly string[], written: readonly string[]): void {
   for (const c of cols) {
     if (c === PER_SPLIT_COLUMN) throw error(`${path}: column name "${c}" is reserved by floorgap; rename it`);
+  }
+  const seen = new Set<string>();
+  for (const c of written) {
     if (seen.has(c)) throw error(`${path}: column "${c}" appears twice in the header; column names must be unique`);
     seen.add(c);
   }

@@ -120,10 +120,8 @@ export async function tableSql(duck: Duck, input: TableInput): Promise<string> {
   const compression = input.gzip ? `'gzip'` : `'uncompressed'`; // read_json rejects 'none'
   switch (input.format) {
     case 'csv':
-    case 'tsv': {
-      const delim = input.format === 'csv' ? `','` : `'\t'`;
-      return `read_csv(${path}, header = true, all_varchar = true, delim = ${delim}, quote = '"', escape = '"', compression = ${compression})`;
-    }
+    case 'tsv':
+      return csvSql(input, true);
     case 'jsonl': {
       const base = `read_json(${path}, format = 'newline_delimited', compression = ${compression}`;
       const cols = await describeColumns(duck, `${base})`, input.path);
@@ -132,6 +130,26 @@ export async function tableSql(duck: Duck, input: TableInput): Promise<string> {
     }
     case 'parquet':
       return `(SELECT COLUMNS(*)::VARCHAR FROM read_parquet(${path}))`;
+  }
+}
+
+function csvSql(input: TableInput, header: boolean): string {
+  const delim = input.format === 'csv' ? `','` : `'\t'`;
+  const compression = input.gzip ? `'gzip'` : `'uncompressed'`;
+  return `read_csv(${literal(input.path)}, header = ${header}, all_varchar = true, delim = ${delim}, quote = '"', escape = '"', compression = ${compression})`;
+}
+
+/**
+ * The header of a CSV or TSV input as written (null for other formats). DuckDB renames a repeated
+ * column name (`label`, `label_1`), so a repeated name can only be seen here.
+ */
+export async function headerNames(duck: Duck, input: TableInput): Promise<string[] | null> {
+  if (input.format !== 'csv' && input.format !== 'tsv') return null;
+  try {
+    const rows = await duck.all(`SELECT * FROM ${csvSql(input, false)} LIMIT 1`);
+    return rows.length > 0 ? Object.values(rows[0]).map((v) => (v === null ? '' : String(v))) : null;
+  } catch (e) {
+    throw readError(input.path, e);
   }
 }
 

@@ -108,7 +108,8 @@ function draft(stats: SliceStats, devTotal: number, present: ReadonlySet<Split>,
       bias = diff(train, { p: floor.value, n: floor.n }, c);
     }
   }
-  const hasTrainDev = present.has('train_dev');
+  // a slice without train_dev rows is decomposed as data without train_dev: variance = dev − train, no mismatch
+  const hasTrainDev = present.has('train_dev') && props.train_dev !== null;
   const variance = hasTrainDev ? diff(props.train_dev, train, c) : diff(props.dev, train, c);
   const mismatch = hasTrainDev ? diff(props.dev, props.train_dev, c) : null;
   const devOverfit = present.has('test') ? diff(props.test, props.dev, c) : null;

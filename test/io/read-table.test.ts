@@ -171,6 +171,24 @@ describe('tableSql: every format reads the same text values', () => {
     });
   }
 
+  it('CSV with CRLF line ends', async () => {
+    const path = join(scratch, 'crlf.csv');
+    writeFileSync(path, 'a,b\r\n007,1.0\r\n,x\r\n');
+    // expected: hand-written from the text above (no stray \r in the last column)
+    expect(await readAll(path)).toEqual([
+      { a: '007', b: '1.0' },
+      { a: null, b: 'x' },
+    ]);
+  });
+
+  it('a .csv.gz name on plain text is read as plain text', async () => {
+    const path = join(scratch, 'plain.csv.gz');
+    copyFileSync(v.csv, path);
+    const input = await detectTable(path);
+    expect([input.format, input.gzip]).toEqual(['csv', false]);
+    expect(await readAll(path)).toEqual(ROWS);
+  });
+
   it('JSON Lines: numbers keep their integer or decimal form, other values become their text', async () => {
     const path = join(scratch, 'numbers.jsonl');
     writeFileSync(path, '{"i":1,"d":1.0,"z":"007","b":true,"o":{"k":1}}\n{"i":22,"d":0.25,"z":"010","b":false}\n');

@@ -215,3 +215,58 @@ describe('decomposition with a train_dev split and without test', () => {
     expect(s.rows.train_dev).toBe(5000);
   });
 });
+
+describe('a slice without train_dev rows in data that has a train_dev split', () => {
+  // fixture (hand-built): invented numbers. P has train_dev (floor 5 %: 250 / 260 / 450 errors of 5,000);
+  // Q has none (floor 2 %: train 450, dev 550 errors of 5,000).
+  const report = buildReport(
+    [
+      ...sliceCells({ line: 'P' }, {
+        train: { rows: 5000, errors: 250, floor: 0.05 },
+        train_dev: { rows: 5000, errors: 260, floor: 0.05 },
+        dev: { rows: 5000, errors: 450, floor: 0.05 },
+      }),
+      ...sliceCells({ line: 'Q' }, { train: { rows: 5000, errors: 450, floor: 0.02 }, dev: { rows: 5000, errors: 550, floor: 0.02 } }),
+    ],
+    ['line'],
+    [],
+    CONTEXT,
+    options(),
+  );
+  const q = slice(report, 'line=Q');
+  const p = slice(report, 'line=P');
+
+  it('falls back to variance = dev − train and mismatch null, like data without train_dev', () => {
+    expect(q.rows.train_dev).toBe(0);
+    expect(q.error.train_dev).toBeNull();
+    // invented numbers, hand arithmetic: 0.11 − 0.09 = 0.02
+    expectClose(q.gaps.variance?.value, 0.02, EXACT);
+    // statsmodels 0.13.5: confint_proportions_2indep(550, 5000, 450, 5000, method='newcomb', compare='diff') -> (0.00824366349713391, 0.03177323370195252)
+    expectClose(q.gaps.variance?.lo, 0.00824366349713391, LIBRARY);
+    expectClose(q.gaps.variance?.hi, 0.03177323370195252, LIBRARY);
+    expect(q.gaps.mismatch).toBeNull();
+  });
+
+  it('keeps its headroom and its bias focus', () => {
+    // invented numbers, hand arithmetic: share 0.5; 0.5 × (0.11 − 0.02) = 0.045 = 0.035 + 0.01
+    expectClose(q.headroom?.total, 0.045, EXACT);
+    expectClose(q.headroom?.bias, 0.035, EXACT);
+    expectClose(q.headroom?.variance, 0.01, EXACT);
+    expect(q.headroom?.mismatch).toBeNull();
+    expect(q.focus).toBe('bias');
+    expect(q.flagged).toBe(true);
+    expect(p.focus).toBe('mismatch');
+  });
+
+  it('its two tests join the family with the other slice’s three (m = 5)', () => {
+    // p-values: P bias 1.0, P variance 0.649432904765926, P mismatch 1.3821109463798374e-13 (statsmodels 0.13.5,
+    //   transcripts in focus.test.ts 'focus mismatch'), Q bias 8.300172571198413e-274, Q variance 0.0008581206663936744 (above)
+    // statsmodels 0.13.5: multipletests([1.0, 0.649432904765926, 1.3821109463798374e-13, 8.300172571198413e-274, 0.0008581206663936744], method='fdr_bh')[1]
+    //   -> [1.0, 0.8117911309574074, 3.4552773659495935e-13, 4.150086285599206e-273, 0.001430201110656124]
+    expectClose(p.gaps.avoidable_bias?.q, 1, LIBRARY);
+    expectClose(p.gaps.variance?.q, 0.8117911309574074, LIBRARY);
+    expectClose(p.gaps.mismatch?.q, 3.4552773659495935e-13, 1e-20);
+    expectRelClose(q.gaps.avoidable_bias?.q, 4.150086285599206e-273, 1e-9);
+    expectClose(q.gaps.variance?.q, 0.001430201110656124, LIBRARY);
+  });
+});

@@ -1,0 +1,325 @@
+/**
+ * Bad input through `loadCells`: every message names what was wrong and where. Line numbers are
+ * hand-counted from the hand-written fixture below (CSV/TSV: the header is line 1; JSON Lines: the first
+ * row is line 1; Parquet: row numbers from 1).
+ */
+import { writeFileSync } from 'node:fs';
+import { join } from 'node:path';
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { openDuck, type Duck } from '../../src/engine/duck.js';
+import { loadCells, type LoadOptions, type Loaded } from '../../src/engine/load.js';
+import { FloorgapError } from '../../src/util/error.js';
+import { csvToParquet, makeTempDir, removeTempDir, writeGzip } from '../helpers/table-variants.js';
+
+// fixture (hand-written): 8 rows, lines 2–9; row id k sits on CSV line k + 1
+const HEADER = 'id,split,label,pred,station,weight,score';
+const ROWS = [
+  '1,train,a,a,S1,1,0.9',
+  '2,train,a,b,S2,1,0.8',
+  '3,train,b,b,S1,2,0.7',
+  '4,dev,a,a,S2,1,0.6',
+  '5,dev,b,a,S1,1,0.5',
+  '6,dev,b,b,S2,1,0.4',
+  '7,test,a,a,S1,1,0.3',
+  '8,test,a,b,S2,1,0.2',
+];
+const COLUMN_LIST = '"id", "split", "label", "pred", "station", "weight", "score"';
+
+let duck: Duck;
+let dir: string;
+let counter = 0;
+
+beforeAll(async () => {
+  duck = await openDuck({ threads: 1 });
+  dir = makeTempDir();
+});
+
+afterAll(() => {
+  duck?.close();
+  if (dir) removeTempDir(dir);
+});
+
+/** The fixture with some fields replaced: { id: { column: value } }. */
+function rowsWith(changes: Record<number, Record<string, string>> = {}): string[][] {
+  const cols = HEADER.split(',');
+  return ROWS.map((line) => {
+    const fields = line.split(',');
+    const change = changes[Number(fields[0])] ?? {};
+    return cols.map((c, i) => change[c] ?? fields[i]);
+  });
+}
+
+function csvFile(changes: Record<number, Record<string, string>> = {}, ext = 'csv'): string {
+  const path = join(dir, `data-${++counter}.${ext}`);
+  writeFileSync(path, [HEADER, ...rowsWith(changes).map((r) => r.join(','))].join('\n') + '\n');
+  return path;
+}
+
+function textFile(name: string, text: string): string {
+  const path = join(dir, `${++counter}-${name}`);
+  writeFileSync(path, text);
+  return path;
+}
+
+function options(over: Partial<LoadOptions> & Pick<LoadOptions, 'source'>): LoadOptions {
+  return { roles: {}, where: null, by: null, sliceCols: null, bins: 5, maxCells: 100_000, floor: 0.01, floorTable: null, ...over };
+}
+
+const files = (...f: string[]) => ({ files: f, perSplit: {} });
+
+async function failure(p: Promise<Loaded>): Promise<FloorgapError> {
+  const e = await p.then(
+    () => null,
+    (err: unknown) => err,
+  );
+  expect(e).toBeInstanceOf(FloorgapError);
+  return e as FloorgapError;
+}
+
+describe('weights', () => {
+  it('a negative weight: file, line, column, value', async () => {
+    const path = csvFile({ 5: { weight: '-1' } });
+    const e = await failure(loadCells(duck, options({ source: files(path) })));
+    // id 5 → line 6 (hand-counted)
+    expect(e.message).toBe(`${path}: line 6, column "weight": expected a weight >= 0, got "-1" (1 rows like it)`);
+  });
+
+  it('the same count in grouping-sets mode', async () => {
+    const path = csvFile({ 5: { weight: '-1' } });
+    const e = await failure(loadCells(duck, options({ source: files(path), maxCells: 1 })));
+    expect(e.message).toBe(`${path}: line 6, column "weight": expected a weight >= 0, got "-1" (1 rows like it)`);
+  });
+
+  it('a non-numeric weight: the first bad line and the number of bad rows', async () => {
+    const path = csvFile({ 3: { weight: 'heavy' }, 7: { weight: 'n/a' } });
+    const e = await failure(loadCells(duck, options({ source: files(path) })));
+    // id 3 → line 4; two bad rows (hand-counted)
+    expect(e.message).toBe(`${path}: line 4, column "weight": expected a weight >= 0, got "heavy" (2 rows like it)`);
+  });
+
+  it('an empty weight', async () => {
+    const path = csvFile({ 2: { weight: '' } });
+    const e = await failure(loadCells(duck, options({ source: files(path) })));
+    expect(e.message).toBe(`${path}: line 3, column "weight": expected a weight >= 0, got "" (1 rows like it)`);
+  });
+
+  it('inf and NaN are not weights', async () => {
+    const path = csvFile({ 4: { weight: 'inf' }, 6: { weight: 'NaN' } });
+    const e = await failure(loadCells(duck, options({ source: files(path) })));
+    expect(e.message).toBe(`${path}: line 5, column "weight": expected a weight >= 0, got "inf" (2 rows like it)`);
+  });
+
+  it('a bad weight outside --where is not reported; the one inside is', async () => {
+    // id 2 (station S2) is filtered out; id 5 (station S1) is kept
+    const path = csvFile({ 2: { weight: '-3' }, 5: { weight: '-1' } });
+    const e = await failure(loadCells(duck, options({ source: files(path), where: `station = 'S1'` })));
+    expect(e.message).toBe(`${path}: line 6, column "weight": expected a weight >= 0, got "-1" (1 rows like it)`);
+  });
+
+  it('JSON Lines: line numbers start at 1', async () => {
+    const cols = HEADER.split(',');
+    const text = rowsWith({ 5: { weight: '-1' } })
+      .map((r) => JSON.stringify(Object.fromEntries(cols.map((c, i) => [c, r[i]]))))
+      .join('\n');
+    const path = textFile('data.jsonl', text + '\n');
+    const e = await failure(loadCells(duck, options({ source: files(path) })));
+    expect(e.message).toBe(`${path}: line 5, column "weight": expected a weight >= 0, got "-1" (1 rows like it)`);
+  });
+
+  it('gzip-compressed TSV: line numbers as in the text', async () => {
+    const path = join(dir, 'data.tsv.gz');
+    writeGzip(path, [HEADER, ...rowsWith({ 5: { weight: '-1' } }).map((r) => r.join(','))].join('\n').replace(/,/g, '\t') + '\n');
+    const e = await failure(loadCells(duck, options({ source: files(path) })));
+    expect(e.message).toBe(`${path}: line 6, column "weight": expected a weight >= 0, got "-1" (1 rows like it)`);
+  });
+
+  it('Parquet: row numbers', async () => {
+    const path = join(dir, 'data.parquet');
+    await csvToParquet(duck, csvFile({ 5: { weight: '-1' } }), path);
+    const e = await failure(loadCells(duck, options({ source: files(path) })));
+    expect(e.message).toBe(`${path}: row 5, column "weight": expected a weight >= 0, got "-1" (1 rows like it)`);
+  });
+
+  it('per-split files: the message names the file that holds the bad row', async () => {
+    const head = 'id,label,pred,station,weight';
+    const train = textFile('train.csv', `${head}\n1,a,a,S1,1\n2,a,b,S2,1\n`);
+    const dev = textFile('dev.csv', `${head}\n3,a,a,S1,1\n4,b,a,S2,-2\n`);
+    const e = await failure(loadCells(duck, options({ source: { files: [], perSplit: { train, dev } } })));
+    expect(e.message).toBe(`${dev}: line 3, column "weight": expected a weight >= 0, got "-2" (1 rows like it)`);
+  });
+
+  it('per-split files: a file without the weight column has missing weights', async () => {
+    const train = textFile('train.csv', 'id,label,pred,station,weight\n1,a,a,S1,1\n2,a,b,S2,1\n');
+    const dev = textFile('dev.csv', 'id,label,pred,station\n3,a,a,S1\n4,b,a,S2\n');
+    const e = await failure(loadCells(duck, options({ source: { files: [], perSplit: { train, dev } } })));
+    // hand-counted: both dev rows (lines 2 and 3) lack a weight
+    expect(e.message).toBe(`${dev}: line 2, column "weight": expected a weight >= 0, got "" (2 rows like it)`);
+  });
+});
+
+describe('scores and error columns', () => {
+  it('a non-numeric score: file, line, column', async () => {
+    const path = csvFile({ 2: { score: 'high' } });
+    const e = await failure(loadCells(duck, options({ source: files(path) })));
+    // id 2 → line 3 (hand-counted)
+    expect(e.message).toBe(`${path}: line 3, column "score": expected a number (model confidence), got "high" (1 rows like it)`);
+  });
+
+  it('an empty score is allowed', async () => {
+    const path = csvFile({ 2: { score: '' } });
+    const loaded = await loadCells(duck, options({ source: files(path) }));
+    // hand-counted: 8 rows, none left out
+    expect(loaded.cells.reduce((s, c) => s + c.rows, 0)).toBe(8);
+  });
+
+  it('an error column with a value that is not 0/1', async () => {
+    const path = textFile('err.csv', 'split,error,station\ntrain,0,A\ntrain,1,B\ndev,maybe,A\ndev,0,B\n');
+    const e = await failure(loadCells(duck, options({ source: files(path) })));
+    expect(e.message).toBe(`${path}: line 4, column "error": expected 0 or 1 (or true/false), got "maybe" (1 rows like it)`);
+  });
+});
+
+describe('floor tables', () => {
+  it('a floor of 1.5: file, line, column', async () => {
+    const floors = textFile('floors.csv', 'station,floor\nS1,0.1\nS2,1.5\n');
+    const e = await failure(loadCells(duck, options({ source: files(csvFile()), floorTable: floors })));
+    // line 3 (hand-counted)
+    expect(e.message).toBe(`${floors}: line 3, column "floor": expected a fraction in [0, 1] (e.g. 0.02 for 2 %), got "1.5"`);
+  });
+
+  it('a key column missing from the data lists the data columns', async () => {
+    const path = csvFile();
+    const floors = textFile('floors.csv', 'station,shift,floor\nS1,night,0.1\n');
+    const e = await failure(loadCells(duck, options({ source: files(path), floorTable: floors })));
+    expect(e.message).toBe(`${floors}: key column "shift" is not a column of ${path}; the columns are ${COLUMN_LIST}`);
+  });
+
+  it('entries that match no row: one warning each, naming line and key', async () => {
+    const floors = textFile('floors.csv', 'station,label,floor\nS1,,0.1\nS7,,0.2\nS2,zz,0.3\n');
+    const loaded = await loadCells(duck, options({ source: files(csvFile()), floorTable: floors }));
+    expect(loaded.warnings).toEqual([
+      `${floors}: line 3 (station=S7) matches no row`,
+      `${floors}: line 4 (station=S2 · label=zz) matches no row`,
+    ]);
+    // hand-counted: the 4 S1 rows take entry 0 (floor 0.1), the 4 S2 rows the default floor 0.01
+    const s1 = loaded.cells.filter((c) => c.key.station === 'S1');
+    expect(s1.reduce((s, c) => s + c.rows, 0)).toBe(4);
+    expect(s1.every((c) => c.floorEntry === 0 && c.floorSum === c.weight * 0.1)).toBe(true);
+    const s2 = loaded.cells.filter((c) => c.key.station === 'S2');
+    expect(s2.every((c) => c.floorEntry === -1 && Math.abs(c.floorSum - c.rows * 0.01) < 1e-12)).toBe(true);
+  });
+
+  it('a missing floor table file names the path', async () => {
+    const floors = join(dir, 'no-floors.csv');
+    const e = await failure(loadCells(duck, options({ source: files(csvFile()), floorTable: floors })));
+    expect(e.message).toBe(`${floors}: no such file`);
+  });
+});
+
+describe('splits', () => {
+  it('a required split with no rows', async () => {
+    const path = csvFile({ 4: { split: 'test' }, 5: { split: 'test' }, 6: { split: 'train_dev' } });
+    const e = await failure(loadCells(duck, options({ source: files(path) })));
+    expect(e.message).toBe(
+      `${path}: no rows with split dev (found train, train_dev, test); train and dev are required, train_dev and test are optional`,
+    );
+  });
+
+  it('no train rows, in grouping-sets mode too', async () => {
+    const path = csvFile({ 1: { split: 'dev' }, 2: { split: 'val' }, 3: { split: 'test' } });
+    for (const maxCells of [100_000, 1]) {
+      const e = await failure(loadCells(duck, options({ source: files(path), maxCells })));
+      expect(e.message).toBe(`${path}: no rows with split train (found dev, test); train and dev are required, train_dev and test are optional`);
+    }
+  });
+
+  it('unknown split values are listed with their row counts, most frequent first', async () => {
+    const path = csvFile({ 2: { split: 'holdout' }, 6: { split: 'holdout' }, 7: { split: 'fold1' } });
+    for (const maxCells of [100_000, 1]) {
+      const e = await failure(loadCells(duck, options({ source: files(path), maxCells })));
+      // hand-counted: holdout ×2, fold1 ×1
+      expect(e.message).toBe(
+        `${path}: column "split" has unknown split values "holdout" (2 rows), "fold1" (1 rows); expected train, train_dev (train-dev, traindev), dev (val, valid, validation), test`,
+      );
+    }
+  });
+
+  it('an empty split value is listed as (empty)', async () => {
+    const path = csvFile({ 8: { split: '' } });
+    const e = await failure(loadCells(duck, options({ source: files(path) })));
+    expect(e.message).toBe(
+      `${path}: column "split" has unknown split values "(empty)" (1 rows); expected train, train_dev (train-dev, traindev), dev (val, valid, validation), test`,
+    );
+  });
+
+  it('spellings that name the same split fill the same cells', async () => {
+    const path = csvFile({ 4: { split: 'VAL' }, 5: { split: ' validation ' }, 6: { split: 'Dev' } });
+    const loaded = await loadCells(duck, options({ source: files(path) }));
+    // hand-counted: dev holds ids 4 (S2), 5 (S1, error), 6 (S2) → one S1 cell and one S2 cell
+    const dev = loaded.cells.filter((c) => c.split === 'dev');
+    expect(dev.map((c) => [c.key.station, c.rows, c.errors]).sort()).toEqual([
+      ['S1', 1, 1],
+      ['S2', 2, 0],
+    ]);
+  });
+});
+
+describe('inputs, --where and column names', () => {
+  it('a header without rows', async () => {
+    const path = textFile('header.csv', HEADER + '\n');
+    const e = await failure(loadCells(duck, options({ source: files(path) })));
+    expect(e.message).toBe(`${path}: no rows; expected a header and data rows`);
+  });
+
+  it('--where that matches no row', async () => {
+    const path = csvFile();
+    const e = await failure(loadCells(duck, options({ source: files(path), where: `station = 'S9'` })));
+    expect(e.message).toBe(`${path}: no rows match --where "station = 'S9'"`);
+  });
+
+  it('--where that is not valid SQL on the columns', async () => {
+    const e = await failure(loadCells(duck, options({ source: files(csvFile()), where: 'shift = 1' })));
+    expect(e.message.startsWith('--where "shift = 1": not a valid DuckDB SQL condition on the columns (')).toBe(true);
+    expect(e.message.endsWith('); columns are text, so compare numbers with TRY_CAST(col AS DOUBLE)')).toBe(true);
+  });
+
+  it('both table files and per-split files', async () => {
+    const path = csvFile();
+    const e = await failure(loadCells(duck, options({ source: { files: [path], perSplit: { train: path } } })));
+    expect(e.message).toBe('give either table files with a split column or --train/--train-dev/--dev/--test files, not both');
+  });
+
+  it('no input at all', async () => {
+    const e = await failure(loadCells(duck, options({ source: { files: [], perSplit: {} } })));
+    expect(e.message).toBe('no input: give a prediction table (e.g. floorgap report preds.csv) or --train F --dev F');
+  });
+
+  it('a missing data file names the path', async () => {
+    const path = join(dir, 'nothing-here.csv');
+    const e = await failure(loadCells(duck, options({ source: files(path) })));
+    expect(e.message).toBe(`${path}: no such file`);
+  });
+
+  it('--by and --slice-cols naming unknown columns', async () => {
+    const path = csvFile();
+    const by = await failure(loadCells(duck, options({ source: files(path), by: ['shift'] })));
+    expect(by.message).toBe(`${path}: --by names "shift", which is not a column; the columns are ${COLUMN_LIST}`);
+    const cols = await failure(loadCells(duck, options({ source: files(path), sliceCols: ['shift'] })));
+    expect(cols.message).toBe(`${path}: --slice-cols names "shift", which is not a column; the columns are ${COLUMN_LIST}`);
+  });
+
+  it('--label naming a missing column', async () => {
+    const path = csvFile();
+    const e = await failure(loadCells(duck, options({ source: files(path), roles: { label: 'truth' } })));
+    expect(e.message).toBe(`${path}: no column "truth" for --label; the columns are ${COLUMN_LIST}`);
+  });
+
+  it('--by label resolves to the label column', async () => {
+    const loaded = await loadCells(duck, options({ source: files(csvFile()), by: ['label', 'station'] }));
+    expect(loaded.by).toEqual(['label', 'station']);
+    // hand-counted: labels a (5 rows) and b (3 rows)
+    const a = loaded.cells.filter((c) => c.key.label === 'a').reduce((s, c) => s + c.rows, 0);
+    const b = loaded.cells.filter((c) => c.key.label === 'b').reduce((s, c) => s + c.rows, 0);
+    expect([a, b]).toEqual([5, 3]);
+  });
+});

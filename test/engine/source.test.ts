@@ -1,0 +1,110 @@
+import { writeFileSync } from 'node:fs';
+import { join } from 'node:path';
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { openDuck, type Duck } from '../../src/engine/duck.js';
+import { checkWhere, openSource, PER_SPLIT_COLUMN, ROWS_VIEW } from '../../src/engine/source.js';
+import { headerNames, detectTable } from '../../src/io/read-table.js';
+import { FloorgapError } from '../../src/util/error.js';
+import { makeTempDir, removeTempDir, writeGzip } from '../helpers/table-variants.js';
+
+// Every expected value in this file is hand-copied from the small tables written in the test.
+
+let duck: Duck;
+let dir: string;
+
+beforeAll(async () => {
+  duck = await openDuck({ threads: 1 });
+  dir = makeTempDir();
+});
+
+afterAll(() => {
+  duck?.close();
+  if (dir) removeTempDir(dir);
+});
+
+function file(name: string, text: string): string {
+  const path = join(dir, name);
+  writeFileSync(path, text);
+  return path;
+}
+
+async function failure(p: Promise<unknown>): Promise<FloorgapError> {
+  const e = await p.then(
+    () => null,
+    (err: unknown) => err,
+  );
+  expect(e).toBeInstanceOf(FloorgapError);
+  return e as FloorgapError;
+}
+
+describe('openSource', () => {
+  it('two files with different columns: one view, columns in first-seen order, missing as null', async () => {
+    const a = file('a.csv', 'split,label,pred,station\ntrain,x,x,S1\n');
+    const b = file('b.jsonl', '{"split":"dev","label":"y","pred":"x","lighting":"dome"}\n');
+    const source = await openSource(duck, { files: [a, b], perSplit: {} });
+    expect(source.columns).toEqual(['split', 'label', 'pred', 'station', 'lighting']);
+    expect(source.splitColumn).toBeNull();
+    expect(source.where).toBe(`${a}, ${b}`);
+    const rows = await duck.all(`SELECT * FROM ${ROWS_VIEW} ORDER BY split DESC`);
+    expect(rows).toEqual([
+      { split: 'train', label: 'x', pred: 'x', station: 'S1', lighting: null },
+      { split: 'dev', label: 'y', pred: 'x', station: null, lighting: 'dome' },
+    ]);
+  });
+
+  it('per-split files: each row gets its file split in __fg_split', async () => {
+    const train = file('train.csv', 'label,pred\na,a\nb,a\n');
+    const dev = join(dir, 'dev.csv.gz');
+    writeGzip(dev, 'label,pred\nc,c\n');
+    const source = await openSource(duck, { files: [], perSplit: { train, dev } });
+    expect(source.splitColumn).toBe(PER_SPLIT_COLUMN);
+    expect(source.columns).toEqual(['label', 'pred']);
+    const rows = await duck.all(`SELECT label, ${PER_SPLIT_COLUMN} AS s FROM ${ROWS_VIEW} ORDER BY label`);
+    expect(rows).toEqual([
+      { label: 'a', s: 'train' },
+      { label: 'b', s: 'train' },
+      { label: 'c', s: 'dev' },
+    ]);
+  });
+
+  it('a column named twice in a CSV header', async () => {
+    const path = file('dup.csv', 'split,label,label,pred\ntrain,a,b,a\n');
+    const e = await failure(openSource(duck, { files: [path], perSplit: {} }));
+    expect(e.message).toBe(`${path}: column "label" appears twice in the header; column names must be unique`);
+  });
+
+  it('a column named twice in a gzip TSV header', async () => {
+    const path = join(dir, 'dup.tsv.gz');
+    writeGzip(path, 'split\tpred\tlabel\tpred\ntrain\ta\tb\ta\n');
+    const e = await failure(openSource(duck, { files: [path], perSplit: {} }));
+    expect(e.message).toBe(`${path}: column "pred" appears twice in the header; column names must be unique`);
+  });
+
+  it('columns named x and x_1 are two different columns', async () => {
+    const path = file('similar.csv', 'split,label,label_1,pred\ntrain,a,b,a\n');
+    const source = await openSource(duck, { files: [path], perSplit: {} });
+    expect(source.columns).toEqual(['split', 'label', 'label_1', 'pred']);
+  });
+
+  it('the reserved column name', async () => {
+    const path = file('reserved.csv', `split,label,pred,${PER_SPLIT_COLUMN}\ntrain,a,a,x\n`);
+    const e = await failure(openSource(duck, { files: [path], perSplit: {} }));
+    expect(e.message).toBe(`${path}: column name "${PER_SPLIT_COLUMN}" is reserved by floorgap; rename it`);
+  });
+
+  it('headerNames gives the header as written, null for JSON Lines', async () => {
+    const csv = file('quoted.csv', '"a,b",c,c\n1,2,3\n');
+    expect(await headerNames(duck, await detectTable(csv))).toEqual(['a,b', 'c', 'c']);
+    const jsonl = file('h.jsonl', '{"a":1}\n');
+    expect(await headerNames(duck, await detectTable(jsonl))).toBeNull();
+  });
+
+  it('checkWhere accepts a valid condition and rejects an unknown column', async () => {
+    const path = file('w.csv', 'split,label,pred,t\ntrain,a,a,1.5\n');
+    await openSource(duck, { files: [path], perSplit: {} });
+    await expect(checkWhere(duck, 'TRY_CAST(t AS DOUBLE) > 1')).resolves.toBeUndefined();
+    await expect(checkWhere(duck, null)).resolves.toBeUndefined();
+    const e = await failure(checkWhere(duck, 'nope > 1'));
+    expect(e.message.startsWith('--where "nope > 1": not a valid DuckDB SQL condition on the columns (')).toBe(true);
+  });
+});
