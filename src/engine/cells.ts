@@ -79,7 +79,7 @@ export function rowSql(plan: CellPlan): {
     badError = 'FALSE';
     unlabelled = `(${label} IS NULL OR ${pred} IS NULL)`;
   }
-  const status = `CASE WHEN ${badWeight} THEN ${literal(BAD.weight)} WHEN ${badScore} THEN ${literal(BAD.score)} WHEN ${badError} THEN ${literal(BAD.error)} WHEN ${unlabelled} THEN ${literal(BAD.unlabelled)} ELSE lower(COALESCE(${textSql(plan.splitColumn)}, '')) END`;
+  const status = `CASE WHEN ${badWeight} THEN ${literal(BAD.weight)} WHEN ${badScore} THEN ${literal(BAD.score)} WHEN ${badError} THEN ${literal(BAD.error)} WHEN ${unlabelled} THEN ${literal(BAD.unlabelled)} ELSE COALESCE(${textSql(plan.splitColumn)}, '') END`;
   return { weight, error, status, floorEntry: floorEntrySql(plan.floorEntries) };
 }
 
@@ -107,7 +107,7 @@ function listSql(values: readonly (number | null)[]): string {
 
 /**
  * The one-scan GROUP BY that computes cells. Keys are aliased k0, k1, … in column order.
- * Output columns: fg_split (raw, lower-cased), k0…, fg_floor_entry, fg_floor_n, fg_rows, fg_weight,
+ * Output columns: fg_split (as written, trimmed), k0…, fg_floor_entry, fg_floor_n, fg_rows, fg_weight,
  * fg_weight_sq, fg_errors, fg_floor_sum.
  */
 export function cellSql(plan: CellPlan, grouping: Grouping, table = ROWS_VIEW): string {

@@ -170,16 +170,16 @@ async function chooseGrouping(duck: Duck, plan: CellPlan, profile: Profile, maxC
 async function checkIssues(duck: Duck, source: Source, roles: Roles, plan: CellPlan, issues: ScanIssues, warnings: string[]): Promise<void> {
   if (issues.badWeight > 0) {
     const at = await firstBadRow(duck, source, `NOT (${weightOk(roles.weight!)})`, roles.weight!, plan.where);
-    throw error(`${at}column "${roles.weight}": expected a weight >= 0, got "${at.value}" (${issues.badWeight} rows like it)`);
+    throw error(`${at}column "${roles.weight}": expected a weight >= 0, got "${at.value}" (${plural(issues.badWeight, "row")} like it)`);
   }
   if (issues.badScore > 0) {
     const at = await firstBadRow(duck, source, `NULLIF(trim("${esc(roles.score!)}"), '') IS NOT NULL AND (TRY_CAST(trim("${esc(roles.score!)}") AS DOUBLE) IS NULL OR isinf(TRY_CAST(trim("${esc(roles.score!)}") AS DOUBLE)) OR isnan(TRY_CAST(trim("${esc(roles.score!)}") AS DOUBLE)))`, roles.score!, plan.where);
-    throw error(`${at}column "${roles.score}": expected a number (model confidence), got "${at.value}" (${issues.badScore} rows like it)`);
+    throw error(`${at}column "${roles.score}": expected a number (model confidence), got "${at.value}" (${plural(issues.badScore, "row")} like it)`);
   }
   if (issues.badError > 0) {
     const e = `lower(NULLIF(trim("${esc(roles.error!)}"), ''))`;
     const at = await firstBadRow(duck, source, `${e} IS NOT NULL AND ${e} NOT IN ('1','1.0','true','t','yes','y','0','0.0','false','f','no','n')`, roles.error!, plan.where);
-    throw error(`${at}column "${roles.error}": expected 0 or 1 (or true/false), got "${at.value}" (${issues.badError} rows like it)`);
+    throw error(`${at}column "${roles.error}": expected 0 or 1 (or true/false), got "${at.value}" (${plural(issues.badError, "row")} like it)`);
   }
   if (issues.unknownSplits.size > 0) throw unknownSplitError(source.where, plan.splitColumn, issues.unknownSplits);
   if (issues.unlabelled > 0) {
@@ -198,3 +198,7 @@ function weightOk(col: string): string {
 }
 
 export type { FloorEntry };
+
+function plural(n: number, word: string): string {
+  return `${n} ${word}${n === 1 ? '' : 's'}`;
+}

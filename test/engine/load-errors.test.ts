@@ -81,13 +81,13 @@ describe('weights', () => {
     const path = csvFile({ 5: { weight: '-1' } });
     const e = await failure(loadCells(duck, options({ source: files(path) })));
     // id 5 → line 6 (hand-counted)
-    expect(e.message).toBe(`${path}: line 6, column "weight": expected a weight >= 0, got "-1" (1 rows like it)`);
+    expect(e.message).toBe(`${path}: line 6, column "weight": expected a weight >= 0, got "-1" (1 row like it)`);
   });
 
   it('the same count in grouping-sets mode', async () => {
     const path = csvFile({ 5: { weight: '-1' } });
     const e = await failure(loadCells(duck, options({ source: files(path), maxCells: 1 })));
-    expect(e.message).toBe(`${path}: line 6, column "weight": expected a weight >= 0, got "-1" (1 rows like it)`);
+    expect(e.message).toBe(`${path}: line 6, column "weight": expected a weight >= 0, got "-1" (1 row like it)`);
   });
 
   it('a non-numeric weight: the first bad line and the number of bad rows', async () => {
@@ -100,7 +100,7 @@ describe('weights', () => {
   it('an empty weight', async () => {
     const path = csvFile({ 2: { weight: '' } });
     const e = await failure(loadCells(duck, options({ source: files(path) })));
-    expect(e.message).toBe(`${path}: line 3, column "weight": expected a weight >= 0, got "" (1 rows like it)`);
+    expect(e.message).toBe(`${path}: line 3, column "weight": expected a weight >= 0, got "" (1 row like it)`);
   });
 
   it('inf and NaN are not weights', async () => {
@@ -113,7 +113,7 @@ describe('weights', () => {
     // id 2 (station S2) is filtered out; id 5 (station S1) is kept
     const path = csvFile({ 2: { weight: '-3' }, 5: { weight: '-1' } });
     const e = await failure(loadCells(duck, options({ source: files(path), where: `station = 'S1'` })));
-    expect(e.message).toBe(`${path}: line 6, column "weight": expected a weight >= 0, got "-1" (1 rows like it)`);
+    expect(e.message).toBe(`${path}: line 6, column "weight": expected a weight >= 0, got "-1" (1 row like it)`);
   });
 
   it('JSON Lines: line numbers start at 1', async () => {
@@ -123,21 +123,21 @@ describe('weights', () => {
       .join('\n');
     const path = textFile('data.jsonl', text + '\n');
     const e = await failure(loadCells(duck, options({ source: files(path) })));
-    expect(e.message).toBe(`${path}: line 5, column "weight": expected a weight >= 0, got "-1" (1 rows like it)`);
+    expect(e.message).toBe(`${path}: line 5, column "weight": expected a weight >= 0, got "-1" (1 row like it)`);
   });
 
   it('gzip-compressed TSV: line numbers as in the text', async () => {
     const path = join(dir, 'data.tsv.gz');
     writeGzip(path, [HEADER, ...rowsWith({ 5: { weight: '-1' } }).map((r) => r.join(','))].join('\n').replace(/,/g, '\t') + '\n');
     const e = await failure(loadCells(duck, options({ source: files(path) })));
-    expect(e.message).toBe(`${path}: line 6, column "weight": expected a weight >= 0, got "-1" (1 rows like it)`);
+    expect(e.message).toBe(`${path}: line 6, column "weight": expected a weight >= 0, got "-1" (1 row like it)`);
   });
 
   it('Parquet: row numbers', async () => {
     const path = join(dir, 'data.parquet');
     await csvToParquet(duck, csvFile({ 5: { weight: '-1' } }), path);
     const e = await failure(loadCells(duck, options({ source: files(path) })));
-    expect(e.message).toBe(`${path}: row 5, column "weight": expected a weight >= 0, got "-1" (1 rows like it)`);
+    expect(e.message).toBe(`${path}: row 5, column "weight": expected a weight >= 0, got "-1" (1 row like it)`);
   });
 
   it('per-split files: the message names the file that holds the bad row', async () => {
@@ -145,7 +145,16 @@ describe('weights', () => {
     const train = textFile('train.csv', `${head}\n1,a,a,S1,1\n2,a,b,S2,1\n`);
     const dev = textFile('dev.csv', `${head}\n3,a,a,S1,1\n4,b,a,S2,-2\n`);
     const e = await failure(loadCells(duck, options({ source: { files: [], perSplit: { train, dev } } })));
-    expect(e.message).toBe(`${dev}: line 3, column "weight": expected a weight >= 0, got "-2" (1 rows like it)`);
+    expect(e.message).toBe(`${dev}: line 3, column "weight": expected a weight >= 0, got "-2" (1 row like it)`);
+  });
+
+  it('per-split files: --where on a column only one file has still locates the bad row', async () => {
+    const train = textFile('train.csv', 'id,label,pred,weight,shift\n1,a,a,1,day\n2,a,b,1,night\n');
+    const dev = textFile('dev.csv', 'id,label,pred,weight\n3,a,a,1\n4,b,a,-5\n');
+    const where = `shift IS NULL OR shift = 'day'`;
+    const e = await failure(loadCells(duck, options({ source: { files: [], perSplit: { train, dev } }, where })));
+    // hand-counted: dev id 4 on line 3 is the only bad row (its shift is missing, so --where keeps it)
+    expect(e.message).toBe(`${dev}: line 3, column "weight": expected a weight >= 0, got "-5" (1 row like it)`);
   });
 
   it('per-split files: a file without the weight column has missing weights', async () => {
@@ -162,7 +171,7 @@ describe('scores and error columns', () => {
     const path = csvFile({ 2: { score: 'high' } });
     const e = await failure(loadCells(duck, options({ source: files(path) })));
     // id 2 → line 3 (hand-counted)
-    expect(e.message).toBe(`${path}: line 3, column "score": expected a number (model confidence), got "high" (1 rows like it)`);
+    expect(e.message).toBe(`${path}: line 3, column "score": expected a number (model confidence), got "high" (1 row like it)`);
   });
 
   it('an empty score is allowed', async () => {
@@ -175,7 +184,7 @@ describe('scores and error columns', () => {
   it('an error column with a value that is not 0/1', async () => {
     const path = textFile('err.csv', 'split,error,station\ntrain,0,A\ntrain,1,B\ndev,maybe,A\ndev,0,B\n');
     const e = await failure(loadCells(duck, options({ source: files(path) })));
-    expect(e.message).toBe(`${path}: line 4, column "error": expected 0 or 1 (or true/false), got "maybe" (1 rows like it)`);
+    expect(e.message).toBe(`${path}: line 4, column "error": expected 0 or 1 (or true/false), got "maybe" (1 row like it)`);
   });
 });
 
@@ -233,13 +242,13 @@ describe('splits', () => {
     }
   });
 
-  it('unknown split values are listed with their row counts, most frequent first', async () => {
-    const path = csvFile({ 2: { split: 'holdout' }, 6: { split: 'holdout' }, 7: { split: 'fold1' } });
+  it('unknown split values are listed as written (trimmed) with their row counts, most frequent first', async () => {
+    const path = csvFile({ 2: { split: 'holdout' }, 6: { split: ' holdout' }, 7: { split: 'Fold1' } });
     for (const maxCells of [100_000, 1]) {
       const e = await failure(loadCells(duck, options({ source: files(path), maxCells })));
-      // hand-counted: holdout ×2, fold1 ×1
+      // hand-counted: holdout ×2 (one with a leading space), Fold1 ×1, shown as written
       expect(e.message).toBe(
-        `${path}: column "split" has unknown split values "holdout" (2 rows), "fold1" (1 rows); expected train, train_dev (train-dev, traindev), dev (val, valid, validation), test`,
+        `${path}: column "split" has unknown split values "holdout" (2 rows), "Fold1" (1 rows); expected train, train_dev (train-dev, traindev), dev (val, valid, validation), test`,
       );
     }
   });

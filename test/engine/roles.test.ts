@@ -1,8 +1,7 @@
+/** Roles. Expected values are hand-counted from the fixture: the column lists given to resolveRoles. */
 import { describe, expect, it } from 'vitest';
 import { normalizeSplit, resolveRoles, roleColumns, SPLIT_HELP, type Roles } from '../../src/engine/roles.js';
 import { FloorgapError } from '../../src/util/error.js';
-
-// Every expected value in this file is hand-written from the column lists given to resolveRoles.
 
 function thrown(f: () => unknown): FloorgapError {
   try {

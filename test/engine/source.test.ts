@@ -1,3 +1,4 @@
+/** Opening inputs into the rows view. Expected values are hand-counted from the fixture tables each test writes. */
 import { writeFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
@@ -6,8 +7,6 @@ import { checkWhere, openSource, PER_SPLIT_COLUMN, ROWS_VIEW } from '../../src/e
 import { headerNames, detectTable } from '../../src/io/read-table.js';
 import { FloorgapError } from '../../src/util/error.js';
 import { makeTempDir, removeTempDir, writeGzip } from '../helpers/table-variants.js';
-
-// Every expected value in this file is hand-copied from the small tables written in the test.
 
 let duck: Duck;
 let dir: string;

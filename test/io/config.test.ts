@@ -1,3 +1,4 @@
+/** Project file. Expected values are hand-counted from the fixture (the JSON each test writes). */
 import { writeFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';

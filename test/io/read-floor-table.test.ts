@@ -1,3 +1,4 @@
+/** Floor tables. Expected values are hand-counted from the fixture (test/fixtures/floors/ or the lines a test writes). */
 import { copyFileSync, writeFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { fileURLToPath } from 'node:url';

@@ -1,3 +1,8 @@
+/**
+ * Readers on tiny fixtures of every format. Expected values are hand-counted from the fixture
+ * (test/fixtures/tables/preds.*, or the few lines a test writes itself); binary and misnamed variants are
+ * generated from the text fixtures at test time (test/helpers/table-variants.ts).
+ */
 import { copyFileSync, mkdirSync, statSync, writeFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
