@@ -10,6 +10,7 @@ import { openDuck, type Duck } from '../../src/engine/duck.js';
 import { loadCells, type LoadOptions, type Loaded } from '../../src/engine/load.js';
 import { FloorgapError } from '../../src/util/error.js';
 import { csvToParquet, makeTempDir, removeTempDir, writeGzip } from '../helpers/table-variants.js';
+import { failure } from '../helpers/failure.js';
 
 // fixture (hand-written): 8 rows, lines 2–9; row id k sits on CSV line k + 1
 const HEADER = 'id,split,label,pred,station,weight,score';
@@ -67,14 +68,6 @@ function options(over: Partial<LoadOptions> & Pick<LoadOptions, 'source'>): Load
 
 const files = (...f: string[]) => ({ files: f, perSplit: {} });
 
-async function failure(p: Promise<Loaded>): Promise<FloorgapError> {
-  const e = await p.then(
-    () => null,
-    (err: unknown) => err,
-  );
-  expect(e).toBeInstanceOf(FloorgapError);
-  return e as FloorgapError;
-}
 
 describe('weights', () => {
   it('a negative weight: file, line, column, value', async () => {

@@ -7,6 +7,7 @@ import { checkWhere, openSource, PER_SPLIT_COLUMN, ROWS_VIEW } from '../../src/e
 import { headerNames, detectTable } from '../../src/io/read-table.js';
 import { FloorgapError } from '../../src/util/error.js';
 import { makeTempDir, removeTempDir, writeGzip } from '../helpers/table-variants.js';
+import { failure } from '../helpers/failure.js';
 
 let duck: Duck;
 let dir: string;
@@ -27,14 +28,6 @@ function file(name: string, text: string): string {
   return path;
 }
 
-async function failure(p: Promise<unknown>): Promise<FloorgapError> {
-  const e = await p.then(
-    () => null,
-    (err: unknown) => err,
-  );
-  expect(e).toBeInstanceOf(FloorgapError);
-  return e as FloorgapError;
-}
 
 describe('openSource', () => {
   it('two files with different columns: one view, columns in first-seen order, missing as null', async () => {

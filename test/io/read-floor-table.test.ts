@@ -7,6 +7,7 @@ import { openDuck, type Duck } from '../../src/engine/duck.js';
 import { describeKey, readFloorTable } from '../../src/io/read-floor-table.js';
 import { FloorgapError } from '../../src/util/error.js';
 import { csvToParquet, makeTempDir, removeTempDir, writeGzip } from '../helpers/table-variants.js';
+import { failure } from '../helpers/failure.js';
 
 const FLOORS = fileURLToPath(new URL('../fixtures/floors/', import.meta.url));
 
@@ -29,14 +30,6 @@ function file(name: string, text: string): string {
   return path;
 }
 
-async function failure(p: Promise<unknown>): Promise<FloorgapError> {
-  const e = await p.then(
-    () => null,
-    (err: unknown) => err,
-  );
-  expect(e).toBeInstanceOf(FloorgapError);
-  return e as FloorgapError;
-}
 
 describe('readFloorTable', () => {
   it('reads keys of different specificity, floors and n (CSV)', async () => {

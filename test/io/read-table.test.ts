@@ -10,6 +10,7 @@ import { openDuck, type Duck } from '../../src/engine/duck.js';
 import { describeColumns, detectTable, tableSql, type TableFormat } from '../../src/io/read-table.js';
 import { FloorgapError } from '../../src/util/error.js';
 import { makeTableVariants, makeTempDir, removeTempDir, writeGzip, type TableVariants } from '../helpers/table-variants.js';
+import { failure } from '../helpers/failure.js';
 
 // Expected content of test/fixtures/tables/preds.{csv,tsv,jsonl}: hand-copied from the fixture files.
 // Every value is text exactly as written; empty fields (and JSON null) are missing (null).
@@ -43,14 +44,6 @@ async function readAll(path: string): Promise<Record<string, unknown>[]> {
   return duck.all(`SELECT * FROM ${await tableSql(duck, input)}`);
 }
 
-async function failure(p: Promise<unknown>): Promise<FloorgapError> {
-  const e = await p.then(
-    () => null,
-    (err: unknown) => err,
-  );
-  expect(e).toBeInstanceOf(FloorgapError);
-  return e as FloorgapError;
-}
 
 describe('detectTable: format by extension and by content', () => {
   // expected format and gzip flag: hand-derived from how each variant is written (test/helpers/table-variants.ts)

@@ -3,7 +3,7 @@
  * 5,000 rows in each of train, dev and test, 450 train errors (9 %), 550 dev errors (11 %), no
  * train_dev split. `line=A` has floor 2 %, `line=B` floor 8.5 % (both from floor-table lines, taken
  * as exact). Reference values come from statsmodels 0.13.5 (Debian 0.13.5+dfsg) run with
- * /usr/bin/python3; the transcript of each call is beside the value it checks.
+ * /usr/bin/python3; the call and its printed output are beside the value they check.
  */
 import { describe, expect, it } from 'vitest';
 import { buildReport } from '../../src/triage/report.js';
@@ -260,7 +260,7 @@ describe('a slice without train_dev rows in data that has a train_dev split', ()
 
   it('its two tests join the family with the other slice’s three (m = 5)', () => {
     // p-values: P bias 1.0, P variance 0.649432904765926, P mismatch 1.3821109463798374e-13 (statsmodels 0.13.5,
-    //   transcripts in focus.test.ts 'focus mismatch'), Q bias 8.300172571198413e-274, Q variance 0.0008581206663936744 (above)
+    //   printed outputs in focus.test.ts 'focus mismatch'), Q bias 8.300172571198413e-274, Q variance 0.0008581206663936744 (above)
     // statsmodels 0.13.5: multipletests([1.0, 0.649432904765926, 1.3821109463798374e-13, 8.300172571198413e-274, 0.0008581206663936744], method='fdr_bh')[1]
     //   -> [1.0, 0.8117911309574074, 3.4552773659495935e-13, 4.150086285599206e-273, 0.001430201110656124]
     expectClose(p.gaps.avoidable_bias?.q, 1, LIBRARY);
