@@ -1,7 +1,9 @@
 /**
  * Statistics for floorgap: normal distribution helpers, effective sample size, confidence
- * intervals for proportions and their differences, tests of proportions, and false discovery
- * rate adjustments. All functions are pure and throw `RangeError` on NaN or out-of-domain input.
+ * intervals for proportions and their differences, tests of proportions, false discovery
+ * rate adjustments, inter-rater agreement (Cohen's and Fleiss' kappa), an empirical-Bayes
+ * Beta prior for many small proportions, and power-law learning-curve fits. All functions are
+ * pure and throw `RangeError` on NaN or out-of-domain input.
  */
 export { normalQuantile, normalCdf, zForConfidence } from './normal.js';
 export { kishEffectiveN } from './kish-effective-n.js';
@@ -13,3 +15,9 @@ export { proportionTest } from './proportion-test.js';
 export { twoProportionTest } from './two-proportion-test.js';
 export { benjaminiHochberg } from './benjamini-hochberg.js';
 export { benjaminiYekutieli } from './benjamini-yekutieli.js';
+export { cohensKappa } from './cohens-kappa.js';
+export { fleissKappa, fleissItemAgreement } from './fleiss-kappa.js';
+export type { BetaPrior } from './beta-binomial-fit.js';
+export { fitBetaPrior, betaPosterior } from './beta-binomial-fit.js';
+export type { PowerLawFit } from './power-law-fit.js';
+export { fitPowerLaw, logGapWeight } from './power-law-fit.js';

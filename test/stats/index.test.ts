@@ -16,9 +16,25 @@ describe('src/stats/index.ts', () => {
       'twoProportionTest',
       'benjaminiHochberg',
       'benjaminiYekutieli',
+      'cohensKappa',
+      'fleissKappa',
+      'fleissItemAgreement',
+      'fitBetaPrior',
+      'betaPosterior',
+      'fitPowerLaw',
+      'logGapWeight',
     ];
     for (const name of names) expect(typeof (stats as Record<string, unknown>)[name]).toBe('function');
     expect(Object.keys(stats).sort()).toEqual([...names].sort());
+  });
+
+  it('exports the BetaPrior and PowerLawFit types', () => {
+    // type-level check (compiled by tsc -p tsconfig.test.json); contract (fitBetaPrior): one group -> Beta(x, n − x), pooled
+    const prior: stats.BetaPrior = stats.fitBetaPrior([{ x: 3, n: 10 }]);
+    expect(prior).toEqual({ alpha: 3, beta: 7, method: 'pooled' });
+    // contract (fitPowerLaw): fewer than two distinct n -> null
+    const fit: stats.PowerLawFit | null = stats.fitPowerLaw([{ n: 10, g: 0.1 }]);
+    expect(fit).toBeNull();
   });
 
   it('exports the Interval type', () => {
