@@ -3,6 +3,7 @@ import { loadCells, type Loaded } from '../engine/load.js';
 import { buildReport } from '../triage/report.js';
 import type { Report } from '../triage/types.js';
 import { VERSION } from '../version.js';
+import { error } from '../util/error.js';
 import { toLoadOptions, toTriageOptions, type AnalysisArgs } from './options.js';
 
 /** read → cells → slices → triage: the shared path of every analysing command. */
@@ -20,7 +21,15 @@ export async function analyze(args: AnalysisArgs): Promise<{ report: Report; loa
       id: loaded.roles.id,
       score: loaded.roles.score,
       weight: loaded.roles.weight,
+      run: loaded.roles.run,
     };
+    if (triageOptions.run !== null && !loaded.runs.includes(triageOptions.run)) {
+      throw error(
+        loaded.runs.length
+          ? `--run ${triageOptions.run}: no such run; the runs are ${loaded.runs.join(', ')}`
+          : `--run ${triageOptions.run}: the input has no run column (name it with --run-column)`,
+      );
+    }
     const report = buildReport(
       loaded.cells,
       loaded.by,
@@ -28,6 +37,7 @@ export async function analyze(args: AnalysisArgs): Promise<{ report: Report; loa
       {
         inputs: loaded.source.inputs.map((i) => ({ path: i.path, bytes: i.bytes, modified: i.modified, ...(i.split ? { split: i.split } : {}) })),
         roles,
+        annotators: loaded.annotators,
         where: loadOptions.where,
         version: VERSION,
         warnings: loaded.warnings,

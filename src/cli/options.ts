@@ -22,12 +22,17 @@ export function analysisOptions<T>(y: Argv<T>) {
     .option('id', { type: 'string', describe: 'column with the row id', group: 'Columns:' })
     .option('score', { type: 'string', describe: "column with the model's confidence in its prediction", group: 'Columns:' })
     .option('weight', { type: 'string', describe: 'column with the sample weight (>= 0)', group: 'Columns:' })
+    .option('run-column', { type: 'string', describe: 'column naming the training run, for tables of several runs', group: 'Columns:' })
+    .option('run', { type: 'string', describe: 'the run whose numbers are reported (default: most training rows)', group: 'Columns:' })
     .option('by', { type: 'string', describe: 'slice by these columns, comma-separated (label/pred allowed)', group: 'Slices:' })
     .option('slice-cols', { type: 'string', describe: 'candidate slice columns, comma-separated (default: detected)', group: 'Slices:' })
     .option('bins', { type: 'number', default: 5, describe: 'bins for numeric columns (about equal frequency)', group: 'Slices:' })
     .option('max-cells', { type: 'number', default: 200_000, describe: 'largest full cross of slice columns before grouping sets are used', group: 'Slices:' })
     .option('floor', { type: 'number', describe: 'human-level error for every row, a fraction (default 0)', group: 'Floors:' })
     .option('floor-table', { type: 'string', describe: 'table of floors keyed by slice columns (+ optional n)', group: 'Floors:' })
+    .option('annotators', { type: 'string', describe: 'columns of human labels from an audit, comma-separated', group: 'Floors:' })
+    .option('floor-rule', { choices: ['panel', 'typical', 'best'] as const, default: DEFAULT_TRIAGE_OPTIONS.floorRule, describe: 'floor from annotators: majority vote, mean single annotator, best annotator', group: 'Floors:' })
+    .option('cost-table', { type: 'string', describe: 'table of label_cost per row keyed by slice columns', group: 'Statistics:' })
     .option('confidence', { type: 'number', default: DEFAULT_TRIAGE_OPTIONS.confidence, describe: 'interval confidence level', group: 'Statistics:' })
     .option('fdr', { type: 'number', default: DEFAULT_TRIAGE_OPTIONS.fdr, describe: 'false discovery rate for a significant gap', group: 'Statistics:' })
     .option('fdr-method', { choices: ['bh', 'by'] as const, default: DEFAULT_TRIAGE_OPTIONS.fdrMethod, describe: 'Benjamini–Hochberg or Benjamini–Yekutieli', group: 'Statistics:' })
@@ -55,6 +60,11 @@ export interface AnalysisArgs {
   id?: string;
   score?: string;
   weight?: string;
+  'run-column'?: string;
+  run?: string;
+  annotators?: string;
+  'floor-rule': 'panel' | 'typical' | 'best';
+  'cost-table'?: string;
   by?: string;
   'slice-cols'?: string;
   bins: number;
@@ -100,6 +110,7 @@ export function toLoadOptions(a: AnalysisArgs): LoadOptions {
   checkPositive('max-cells', a['max-cells'], true);
   const roles: RoleOptions = {};
   for (const r of ['label', 'pred', 'error', 'split', 'id', 'score', 'weight'] as const) if (a[r] !== undefined) roles[r] = String(a[r]);
+  if (a['run-column'] !== undefined) roles.run = String(a['run-column']);
   return {
     source: {
       files: (a.files ?? []).map(String),
@@ -113,6 +124,8 @@ export function toLoadOptions(a: AnalysisArgs): LoadOptions {
     maxCells: a['max-cells'],
     floor: a.floor ?? null,
     floorTable: a['floor-table'] ?? null,
+    annotators: list(a.annotators),
+    costTable: a['cost-table'] ?? null,
   };
 }
 
@@ -134,5 +147,7 @@ export function toTriageOptions(a: AnalysisArgs): TriageOptions {
     minHeadroom: a['min-headroom'],
     curveExponent: a['curve-exponent'],
     labelCost: a['label-cost'],
+    floorRule: a['floor-rule'],
+    run: a.run ?? null,
   };
 }

@@ -3,8 +3,12 @@
  * joints and a classifier labels each joint `good`, `bridge`, `insufficient`, `void` or `lifted`.
  * The scenario and all of its numbers are our own invention; the generator plants known gaps
  * (see {@link DEMO_PLANTS}) so a floorgap report on the output has a known right answer.
+ *
+ * About one row in twenty is also audited by three human inspectors (columns `insp_a`, `insp_b`,
+ * `insp_c`, see {@link DEMO_AUDIT}), and with `runs ≥ 2` the table holds several training runs of the
+ * same model on doubling training sets (column `run`, see {@link DemoOptions.runs}).
  */
-import { Random } from './random.js';
+import { Random, deriveSeed } from './random.js';
 
 export type DemoSplit = 'train' | 'train_dev' | 'dev' | 'test';
 export type DemoStation = 'S1' | 'S2' | 'S3' | 'S4' | 'S5' | 'S6';
@@ -13,12 +17,16 @@ export type DemoPackage = '0201' | '0402' | '0603' | 'QFN' | 'BGA' | 'SOIC';
 export type DemoFinish = 'HASL' | 'ENIG' | 'OSP';
 export type DemoShift = 'day' | 'swing' | 'night';
 export type DemoClass = 'good' | 'bridge' | 'insufficient' | 'void' | 'lifted';
+/** The three inspectors of the audit, named by their columns. */
+export type DemoInspector = 'insp_a' | 'insp_b' | 'insp_c';
 
-/** One row of the demo prediction table, in {@link DEMO_COLUMNS} order. */
+/** One row of the demo prediction table, in {@link demoColumns} order (`run` only with `runs ≥ 2`). */
 export interface DemoRow {
-  /** `J` and a zero-padded running number, e.g. `J0000001` */
+  /** `J` and a zero-padded running number, e.g. `J0000001`; with runs, the same example keeps its id in every run */
   readonly id: string;
   readonly split: DemoSplit;
+  /** training run, `r1` … `rR`; present only when the table holds `runs ≥ 2` runs */
+  readonly run?: string;
   readonly station: DemoStation;
   readonly lighting: DemoLighting;
   readonly package: DemoPackage;
@@ -32,18 +40,40 @@ export interface DemoRow {
   readonly pred: DemoClass;
   /** model confidence in `pred`, in [0, 1], 3 decimals */
   readonly score: number;
+  /** inspector A's class on an audited row; null (an empty CSV field) when not audited or skipped */
+  readonly insp_a: DemoClass | null;
+  /** inspector B's class, as `insp_a` */
+  readonly insp_b: DemoClass | null;
+  /** inspector C's class, as `insp_a`; she is the harsh one (see {@link DEMO_AUDIT.harshness}) */
+  readonly insp_c: DemoClass | null;
 }
 
 export interface DemoOptions {
-  /** rows to generate (a positive integer) */
+  /**
+   * Rows of the run-independent dataset (a positive integer): every example drawn once, with its split.
+   * With `runs = 1` that is exactly the table. With `runs = R ≥ 2` it is the last run's block; run r
+   * repeats all of its train_dev, dev and test rows but only the first `ceil(N_train · 2^(r−R))` of its
+   * N_train train rows, so the table holds about `rows · (0.6·R + 0.4·(2 − 2^(1−R)))` rows.
+   */
   readonly rows: number;
-  /** PRNG seed (an integer) */
+  /** PRNG seed (an integer; its low 32 bits are used) */
   readonly seed: number;
+  /**
+   * Training runs, an integer in 1 … {@link DEMO_MAX_RUNS}; default 1 (no `run` column). With R ≥ 2 the
+   * table gains a `run` column after `split` and holds R runs of the same model, run-major: run r was
+   * trained on the first `ceil(N_train · 2^(r−R))` train rows (sizes doubling, the last run uses them
+   * all) and predicts the same train_dev, dev and test examples (same ids, metadata, true labels and
+   * inspector labels) with its own predictions. The last run's rows are the `runs = 1` table.
+   */
+  readonly runs?: number;
 }
 
-export const DEMO_DEFAULTS: DemoOptions = Object.freeze({ rows: 20_000, seed: 24 });
+export const DEMO_DEFAULTS: DemoOptions = Object.freeze({ rows: 20_000, seed: 24, runs: 1 });
 
-/** CSV header of the demo table, in column order. */
+/** Largest accepted `runs` (run 1 then trains on 1/512 of the train rows). */
+export const DEMO_MAX_RUNS = 10;
+
+/** CSV header of the demo table (one run, no `run` column), in column order; see {@link demoColumns}. */
 export const DEMO_COLUMNS = [
   'id',
   'split',
@@ -56,15 +86,30 @@ export const DEMO_COLUMNS = [
   'label',
   'pred',
   'score',
+  'insp_a',
+  'insp_b',
+  'insp_c',
 ] as const satisfies readonly (keyof DemoRow)[];
+
+/** The run column's name, inserted right after `split` when the table holds several runs. */
+export const DEMO_RUN_COLUMN = 'run' as const satisfies keyof DemoRow;
+
+/** The demo table's columns for `runs` training runs: {@link DEMO_COLUMNS}, plus `run` after `split` when runs ≥ 2. */
+export function demoColumns(runs = 1): ReadonlyArray<keyof DemoRow> {
+  if (runs < 2) return DEMO_COLUMNS;
+  const at = DEMO_COLUMNS.indexOf('split') + 1;
+  return [...DEMO_COLUMNS.slice(0, at), DEMO_RUN_COLUMN, ...DEMO_COLUMNS.slice(at)];
+}
 
 export const DEMO_CLASSES: readonly DemoClass[] = ['good', 'bridge', 'insufficient', 'void', 'lifted'];
 export const DEMO_PACKAGES: readonly DemoPackage[] = ['0201', '0402', '0603', 'QFN', 'BGA', 'SOIC'];
+export const DEMO_INSPECTORS: readonly DemoInspector[] = ['insp_a', 'insp_b', 'insp_c'];
 
 /**
- * Human-level error per package from the (invented) inspector audit: `floor` is the share of joints
- * the inspectors got wrong, `n` how many joints they audited. These are the floors the generator
- * plants; {@link demoFloorTable} lists them as rows of `inspector-floors.csv`.
+ * Human-level error per package from an earlier (invented) inspector audit: `floor` is the share of
+ * joints a single inspector got wrong, `n` how many joints that audit covered. These are the floors the
+ * generator plants, both for the model and for the inspector columns of the table (see
+ * {@link DEMO_AUDIT}); {@link demoFloorTable} lists them as rows of `inspector-floors.csv`.
  */
 export const DEMO_FLOORS: Readonly<Record<DemoPackage, { readonly floor: number; readonly n: number }>> =
   Object.freeze({
@@ -82,7 +127,8 @@ const ALL_SPLITS: readonly DemoSplit[] = ['train', 'train_dev', 'dev', 'test'];
  * The planted truths of the demo data (our own scenario). Every row has an error probability
  * `floor(package) + Σ effects that apply to it`, capped at {@link DEMO_PLANTS.errorCap}; the effects
  * are additive. Apart from the effects below, every slice's train, train_dev, dev and test error
- * equal its rows' floor in expectation.
+ * equal its rows' floor in expectation. With several training runs ({@link DemoOptions.runs}) only the
+ * variance effect depends on the run (a learning curve); the other plants are the same in every run.
  *
  * 0201 joints are so small that the model already errs at the inspectors' rate whatever the camera or
  * light, so no effect applies to them: the whole `0201` slice sits at its floor. Because the effects
@@ -118,12 +164,19 @@ export const DEMO_PLANTS = Object.freeze({
     trainingShare: 0.05,
     productionShare: 1 / 6,
   },
-  /** low-angle lighting: variance. Error = floor in train, floor + 0.06 in train_dev, dev and test. */
+  /**
+   * low-angle lighting: variance. Error = floor in train, floor + 0.06 in train_dev, dev and test of the
+   * only (or the last, largest) training run. With several runs the excess follows a power-law learning
+   * curve: in run r, trained on n_r train rows, it is `effect · (n_r / n_R)^(−curveExponent)`, so each
+   * halving of the training set multiplies it by 2^0.5 ≈ 1.41 (n_R: the last run's train rows).
+   */
   variance: {
     column: 'lighting',
     value: 'low-angle',
     effect: 0.06,
     splits: ['train_dev', 'dev', 'test'] as readonly DemoSplit[],
+    /** β of the learning curve `effect · (n_r / n_R)^(−β)` */
+    curveExponent: 0.5,
   },
   /** upper bound on any row's error probability */
   errorCap: 0.95,
@@ -160,16 +213,91 @@ const PLANT_LIST = [DEMO_PLANTS.avoidableBias, DEMO_PLANTS.atFloor, DEMO_PLANTS.
 /**
  * The planted error probability of a row: its package floor plus the planted effects that apply to
  * its split, capped at {@link DEMO_PLANTS.errorCap}.
+ * @param trainFraction n_r / n_R, the row's run's training rows over the last run's (1, the default,
+ *   for the last or only run); it scales the variance effect to `effect · trainFraction^(−β)`
+ * @example demoErrorProbability({ split: 'dev', station: 'S1', lighting: 'low-angle', package: '0603' }, 0.25) // 0.03 + 0.06·2
  */
-export function demoErrorProbability(row: Pick<DemoRow, 'split' | 'station' | 'lighting' | 'package'>): number {
+export function demoErrorProbability(
+  row: Pick<DemoRow, 'split' | 'station' | 'lighting' | 'package'>,
+  trainFraction = 1,
+): number {
+  if (!(trainFraction > 0 && trainFraction <= 1)) {
+    throw new RangeError(`trainFraction must be in (0, 1], got ${trainFraction}`);
+  }
   let p = DEMO_FLOORS[row.package].floor;
   if (row.package === DEMO_PLANTS.atFloor.value) return p;
   for (const plant of PLANT_LIST) {
     if (row[plant.column as 'package' | 'station' | 'lighting'] === plant.value && plant.splits.includes(row.split)) {
-      p += plant.effect;
+      p +=
+        plant === DEMO_PLANTS.variance && trainFraction !== 1
+          ? plant.effect * trainFraction ** -DEMO_PLANTS.variance.curveExponent
+          : plant.effect;
     }
   }
   return Math.min(p, DEMO_PLANTS.errorCap);
+}
+
+/**
+ * The inspector audit of the demo (our own scenario). A share of the rows, in every split, is audited
+ * by three inspectors, each of whom labels the joint's class; labels are compared with the true class.
+ *
+ * Each inspector is wrong with probability {@link demoInspectorErrorProbability}: the package floor of
+ * {@link DEMO_FLOORS} (0201 high, SOIC low), and for the harsh inspector `harshness ×` that on `good`
+ * joints (she calls defects on good joints more often). So a single inspector's error sits at the
+ * floor (the harsh one above it), and the 0201 panel agrees least, SOIC most.
+ *
+ * Errors are mostly shared: a share s = `sharedErrorShare` of each inspector's error probability comes
+ * from hard joints that the whole panel misreads (per audited row one uniform u, its legibility:
+ * inspector j errs when u < s · p_j), the rest from her own slips (otherwise, with probability
+ * (1 − s)·p_j / (1 − s·p_j)), so her marginal error stays p_j. Every wrong label is drawn uniformly
+ * among the other four classes, independently per inspector: on a hard joint the inspectors are all
+ * wrong but rarely agree on the wrong class. So the panel's majority vote is wrong about s · floor of
+ * the time (hard joints; a little more from coinciding slips): with s = 1 exactly at the floor, while the pairwise agreement drops by about (3s/4 + 2(1 − s)) · floor (a little
+ * more from the harsh inspector): lowest on 0201, highest on SOIC.
+ */
+export const DEMO_AUDIT = Object.freeze({
+  /** share of rows audited, in every split */
+  share: 0.05,
+  /**
+   * share of audited rows each inspector skips, independently; an audited row keeps at least one label
+   * (the skips are redrawn when all three come up), so ≈ 85.7 % of audited rows have 3 labels,
+   * 13.5 % have 2 and 0.7 % have 1
+   */
+  skipShare: 0.05,
+  /** the harsh inspector's error on `good` joints, as a multiple of the package floor */
+  harshness: 1.5,
+  /** the inspector who is harsh on `good` joints */
+  harshInspector: 'insp_c' as DemoInspector,
+  /**
+   * share of each inspector's error probability that comes from hard joints the whole panel misreads;
+   * 1: every error is on a hard joint, so the panel's majority vote errs at the floor, as the model does
+   * on 0201 (the joints are ambiguous, not the people careless)
+   */
+  sharedErrorShare: 1,
+});
+
+/**
+ * The planted probability that `inspector`'s label of an audited row is wrong: the row's package floor,
+ * times {@link DEMO_AUDIT.harshness} for the harsh inspector on `good` joints, capped at
+ * {@link DEMO_PLANTS.errorCap}. The same for every split, station, lighting and run.
+ * @example demoInspectorErrorProbability('insp_c', { package: '0201', label: 'good' }) // 0.18
+ */
+export function demoInspectorErrorProbability(
+  inspector: DemoInspector,
+  row: Pick<DemoRow, 'package' | 'label'>,
+): number {
+  const base = DEMO_FLOORS[row.package].floor;
+  const harsh = inspector === DEMO_AUDIT.harshInspector && row.label === 'good';
+  return Math.min(harsh ? base * DEMO_AUDIT.harshness : base, DEMO_PLANTS.errorCap);
+}
+
+/**
+ * Train rows of each run for `runs` runs over `nTrain` train rows: run r (1-based, index r − 1) uses the
+ * first `ceil(nTrain · 2^(r−runs))`, so the sizes double (±1) and the last run uses all `nTrain`.
+ * @example demoRunTrainRows(8000, 3) // [2000, 4000, 8000]
+ */
+export function demoRunTrainRows(nTrain: number, runs: number): number[] {
+  return Array.from({ length: runs }, (_, i) => Math.ceil(nTrain * 2 ** (i + 1 - runs)));
 }
 
 /** The inspector audit as rows of `inspector-floors.csv` (`package,floor,n`). */
@@ -185,6 +313,10 @@ export function checkDemoOptions(options: DemoOptions): void {
   if (!Number.isSafeInteger(options.seed)) {
     throw new RangeError(`seed must be an integer, got ${options.seed}`);
   }
+  const runs = options.runs ?? 1;
+  if (!Number.isSafeInteger(runs) || runs < 1 || runs > DEMO_MAX_RUNS) {
+    throw new RangeError(`runs must be an integer from 1 to ${DEMO_MAX_RUNS}, got ${options.runs}`);
+  }
 }
 
 /** Keys and weights of a share table, in a fixed order, for {@link Random.choice}. */
@@ -195,14 +327,52 @@ function table<K extends string>(shares: Record<K, number>): { keys: K[]; weight
 
 const round3 = (x: number): number => Math.round(x * 1000) / 1000;
 
+/** Salts of the side streams ({@link deriveSeed}); the main stream is `new Random(seed)`. */
+const AUDIT_SALT = 1;
+const RUN_SALT = 2;
+
+/** A wrong or right prediction for a row with error probability `p`, with its score (draw order is fixed). */
+function drawPrediction(rng: Random, label: DemoClass, p: number): { pred: DemoClass; score: number } {
+  if (rng.chance(p)) {
+    const others = DEMO_CLASSES.filter((c) => c !== label);
+    const pred = others[rng.int(others.length)];
+    const d = DEMO_DISTRIBUTIONS;
+    const score = rng.chance(d.confidentErrorShare) ? rng.between(0.8, 0.99) : rng.between(0.25, 0.8);
+    return { pred, score: round3(score) };
+  }
+  const u = rng.uniform();
+  return { pred: label, score: round3(0.999 - 0.299 * u * u) }; // (0.7, 0.999], most mass near the top
+}
+
+type Audit = Pick<DemoRow, DemoInspector>;
+const NOT_AUDITED: Audit = Object.freeze({ insp_a: null, insp_b: null, insp_c: null });
+
+/** One row's audit from the audit stream (see {@link DEMO_AUDIT}); the number of draws varies. */
+function drawAudit(rng: Random, row: Pick<DemoRow, 'package' | 'label'>): Audit {
+  const { share, skipShare, sharedErrorShare: s } = DEMO_AUDIT;
+  if (!rng.chance(share)) return NOT_AUDITED;
+  let skips: boolean[];
+  do skips = DEMO_INSPECTORS.map(() => rng.chance(skipShare));
+  while (skips.every(Boolean));
+  const others = DEMO_CLASSES.filter((c) => c !== row.label);
+  const u = rng.uniform(); // how hard the joint is to read: lower is harder, the same for the whole panel
+  const labels = DEMO_INSPECTORS.map((inspector, j): DemoClass | null => {
+    if (skips[j]) return null;
+    const p = demoInspectorErrorProbability(inspector, row);
+    const wrong = u < s * p || (s < 1 && rng.chance(((1 - s) * p) / (1 - s * p)));
+    return wrong ? others[rng.int(others.length)] : row.label;
+  });
+  return { insp_a: labels[0], insp_b: labels[1], insp_c: labels[2] };
+}
+
 /**
- * Generates the demo rows for `options`: the same seed always gives the same rows, on any platform.
- * Lazy, so any number of rows runs in flat memory.
+ * The run-independent dataset: every example once, with the (last) run's predictions from the main
+ * stream and the audit from its own stream, so the audit leaves the other columns of a seed unchanged.
  */
-export function* generateDemoRows(options: DemoOptions): Generator<DemoRow> {
-  checkDemoOptions(options);
+function* generateExamples(rows: number, seed: number): Generator<DemoRow> {
   const d = DEMO_DISTRIBUTIONS;
-  const rng = new Random(options.seed);
+  const rng = new Random(seed);
+  const auditRng = new Random(deriveSeed(seed, AUDIT_SALT));
   const splits = table(d.split);
   const training = table(d.stationTraining);
   const production = table(d.stationProduction);
@@ -211,9 +381,9 @@ export function* generateDemoRows(options: DemoOptions): Generator<DemoRow> {
   const finishes = table(d.finish);
   const shifts = table(d.shift);
   const labels = table(d.label);
-  const width = Math.max(7, String(options.rows).length);
+  const width = Math.max(7, String(rows).length);
 
-  for (let i = 0; i < options.rows; i++) {
+  for (let i = 0; i < rows; i++) {
     // The draw order is part of the output: changing it changes every seed's rows.
     const split = rng.choice(splits.keys, splits.weights);
     const stations = split === 'train' || split === 'train_dev' ? training : production;
@@ -225,18 +395,8 @@ export function* generateDemoRows(options: DemoOptions): Generator<DemoRow> {
     const sharpMean = pkg === '0201' ? d.sharpness.meanFor0201 : d.sharpness.mean;
     const sharpness = round3(Math.min(1, Math.max(0, rng.normal(sharpMean, d.sharpness.sd))));
     const label = rng.choice(labels.keys, labels.weights);
-
-    const wrong = rng.chance(demoErrorProbability({ split, station, lighting, package: pkg }));
-    let pred: DemoClass = label;
-    let score: number;
-    if (wrong) {
-      const others = DEMO_CLASSES.filter((c) => c !== label);
-      pred = others[rng.int(others.length)];
-      score = rng.chance(d.confidentErrorShare) ? rng.between(0.8, 0.99) : rng.between(0.25, 0.8);
-    } else {
-      const u = rng.uniform();
-      score = 0.999 - 0.299 * u * u; // (0.7, 0.999], most mass near the top
-    }
+    const { pred, score } = drawPrediction(rng, label, demoErrorProbability({ split, station, lighting, package: pkg }));
+    const audit = drawAudit(auditRng, { package: pkg, label });
 
     yield {
       id: `J${String(i + 1).padStart(width, '0')}`,
@@ -249,8 +409,61 @@ export function* generateDemoRows(options: DemoOptions): Generator<DemoRow> {
       sharpness,
       label,
       pred,
-      score: round3(score),
+      score,
+      insp_a: audit.insp_a,
+      insp_b: audit.insp_b,
+      insp_c: audit.insp_c,
     };
+  }
+}
+
+/**
+ * Generates the demo rows for `options`: the same seed always gives the same rows, on any platform.
+ * Lazy, so any number of rows runs in flat memory (with runs, the dataset is regenerated from the seed
+ * once to count its train rows and once per run).
+ *
+ * With `runs = R ≥ 2` the rows come run-major (all of `r1`, then `r2`, …), in id order within a run;
+ * run R's rows equal the `runs = 1` table plus the `run` column, and run r < R draws its predictions
+ * from its own stream with the learning-curve variance effect of {@link DEMO_PLANTS.variance}.
+ */
+export function* generateDemoRows(options: DemoOptions): Generator<DemoRow> {
+  checkDemoOptions(options);
+  const { rows, seed } = options;
+  const runs = options.runs ?? 1;
+  if (runs === 1) {
+    yield* generateExamples(rows, seed);
+    return;
+  }
+  let nTrain = 0;
+  for (const e of generateExamples(rows, seed)) if (e.split === 'train') nTrain++;
+  const sizes = demoRunTrainRows(nTrain, runs);
+  for (let r = 1; r <= runs; r++) {
+    const run = `r${r}`;
+    const size = sizes[r - 1];
+    const fraction = nTrain === 0 ? 2 ** (r - runs) : size / nTrain;
+    const rng = r === runs ? null : new Random(deriveSeed(deriveSeed(seed, RUN_SALT + runs), r));
+    let trainSeen = 0;
+    for (const e of generateExamples(rows, seed)) {
+      if (e.split === 'train' && trainSeen++ >= size) continue;
+      const { pred, score } = rng === null ? e : drawPrediction(rng, e.label, demoErrorProbability(e, fraction));
+      yield {
+        id: e.id,
+        split: e.split,
+        run,
+        station: e.station,
+        lighting: e.lighting,
+        package: e.package,
+        finish: e.finish,
+        shift: e.shift,
+        sharpness: e.sharpness,
+        label: e.label,
+        pred,
+        score,
+        insp_a: e.insp_a,
+        insp_b: e.insp_b,
+        insp_c: e.insp_c,
+      };
+    }
   }
 }
 
@@ -263,11 +476,15 @@ export function csvField(value: string | number): string {
   return /[",\r\n]|^\s|\s$/.test(s) ? `"${s.replace(/"/g, '""')}"` : s;
 }
 
-/** One demo row as a CSV line (no line terminator); sharpness and score with 3 decimals. */
+/**
+ * One demo row as a CSV line (no line terminator); sharpness and score with 3 decimals, a missing
+ * inspector label as an empty field, the `run` field after `split` when the row has one.
+ */
 export function demoRowToCsvLine(row: DemoRow): string {
   return [
     csvField(row.id),
     csvField(row.split),
+    ...(row.run === undefined ? [] : [csvField(row.run)]),
     csvField(row.station),
     csvField(row.lighting),
     csvField(row.package),
@@ -277,16 +494,31 @@ export function demoRowToCsvLine(row: DemoRow): string {
     csvField(row.label),
     csvField(row.pred),
     row.score.toFixed(3),
+    csvField(row.insp_a ?? ''),
+    csvField(row.insp_b ?? ''),
+    csvField(row.insp_c ?? ''),
   ].join(',');
 }
 
 /**
- * CSV lines (no line terminators) for `rows`, starting with the header unless `header` is false.
+ * CSV lines (no line terminators) for `rows`, starting with the header unless `header` is false. The
+ * header has the `run` column when the first row has a run; every row must then have one (and none
+ * must have one otherwise), else a RangeError.
  * @example [...demoRowsToCsvLines(generateDemoRows({ rows: 2, seed: 7 }))].join('\n')
  */
 export function* demoRowsToCsvLines(rows: Iterable<DemoRow>, { header = true } = {}): Generator<string> {
-  if (header) yield DEMO_COLUMNS.map(csvField).join(',');
-  for (const row of rows) yield demoRowToCsvLine(row);
+  let withRun: boolean | null = null;
+  for (const row of rows) {
+    const hasRun = row.run !== undefined;
+    if (withRun === null) {
+      withRun = hasRun;
+      if (header) yield demoColumns(withRun ? 2 : 1).map(csvField).join(',');
+    } else if (hasRun !== withRun) {
+      throw new RangeError(`row ${row.id}: ${withRun ? 'no run' : 'a run'}, unlike the first row`);
+    }
+    yield demoRowToCsvLine(row);
+  }
+  if (withRun === null && header) yield DEMO_COLUMNS.map(csvField).join(',');
 }
 
 /** `inspector-floors.csv` lines (no line terminators), header first. */

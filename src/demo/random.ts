@@ -75,3 +75,19 @@ export class Random {
 export function seededRandom(seed: number): Random {
   return new Random(seed);
 }
+
+/**
+ * A 32-bit seed for an independent side stream of `seed`, one per `salt` (a murmur3-style finaliser over
+ * the seed's low 32 bits and the salt). The demo generator uses it so that extra draws (the inspector
+ * audit, the earlier training runs) never shift the main stream of a seed.
+ * @example new Random(deriveSeed(24, 1)) // the audit stream of seed 24
+ */
+export function deriveSeed(seed: number, salt: number): number {
+  if (!Number.isFinite(seed) || !Number.isFinite(salt)) {
+    throw new RangeError(`deriveSeed: seed and salt must be finite numbers, got ${seed} and ${salt}`);
+  }
+  let h = (Math.trunc(seed) >>> 0) ^ Math.imul(Math.trunc(salt) >>> 0, 0x9e3779b1);
+  h = Math.imul(h ^ (h >>> 16), 0x85ebca6b);
+  h = Math.imul(h ^ (h >>> 13), 0xc2b2ae35);
+  return (h ^ (h >>> 16)) >>> 0;
+}

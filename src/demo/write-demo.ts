@@ -12,11 +12,15 @@ export const DEMO_FLOORS_FILE = 'inspector-floors.csv';
 const CHUNK_CHARS = 64 * 1024;
 
 /**
- * Writes the demo prediction table `DIR/solder-joints.csv` and the inspector audit
+ * Writes the demo prediction table `DIR/solder-joints.csv` and the inspector floor table
  * `DIR/inspector-floors.csv`, each atomically. Rows are streamed in ~64 KB chunks, so memory stays
  * flat for any row count. A missing `dir` is created. Without `overwrite`, an existing file of
  * either name stops it before anything is written.
- * @returns the two paths and the number of data rows written
+ *
+ * `rows` is the size of the run-independent dataset (every example once, see {@link DemoOptions.rows});
+ * with `runs = R ≥ 2` the table holds R training runs of it (train rows halving towards run 1, the
+ * other splits repeated in full), so more lines than `rows` are written.
+ * @returns the two paths and the number of data rows written (with runs, over all runs)
  * @example
  * await writeDemo('data-samples', { ...DEMO_DEFAULTS, overwrite: true }); // regenerates the shipped sample
  */
@@ -25,8 +29,9 @@ export async function writeDemo(
   options: DemoOptions & { overwrite?: boolean },
 ): Promise<{ table: string; floors: string; rows: number }> {
   const { rows, seed } = options;
+  const generate: DemoOptions = options.runs === undefined ? { rows, seed } : { rows, seed, runs: options.runs };
   try {
-    checkDemoOptions({ rows, seed });
+    checkDemoOptions(generate);
   } catch (e) {
     throw error(`demo: ${(e as Error).message}`, e);
   }
@@ -61,7 +66,7 @@ export async function writeDemo(
     async (put) => {
       let chunk = '';
       let first = true;
-      for (const line of demoRowsToCsvLines(generateDemoRows({ rows, seed }))) {
+      for (const line of demoRowsToCsvLines(generateDemoRows(generate))) {
         if (first) first = false;
         else written++;
         chunk += line + '\n';

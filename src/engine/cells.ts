@@ -4,7 +4,7 @@ import type { Roles } from './roles.js';
 import { normalizeSplit, SPLIT_HELP } from './roles.js';
 import { ROWS_VIEW, whereSql } from './source.js';
 import { ident, literal } from './sql.js';
-import type { Cell, SliceColumn, Split } from './types.js';
+import { addAudit, type AuditSums, type Cell, type SliceColumn, type Split } from './types.js';
 import type { FloorEntry } from '../io/read-floor-table.js';
 import { error } from '../util/error.js';
 
@@ -17,6 +17,14 @@ export interface CellPlan {
   readonly floorEntries: readonly FloorEntry[];
   readonly defaultFloor: number;
   readonly where: string | null;
+  /** the column naming the training run, when the table holds several runs */
+  readonly runColumn?: string | null;
+  /** annotator columns (human labels on audited rows) */
+  readonly annotators?: readonly string[];
+  /** classes counted for agreement; labels outside the list count as one "other" class */
+  readonly classes?: readonly string[];
+  /** cost-table entries (value = label cost per row); rows no entry matches take --label-cost at triage */
+  readonly costEntries?: readonly FloorEntry[];
 }
 
 /** How rows are grouped into cells: the full cross of all slice columns, or grouping sets. */
@@ -105,22 +113,69 @@ function listSql(values: readonly (number | null)[]): string {
   return `[${values.map((v) => (v === null ? 'NULL' : String(v))).join(', ')}]::DOUBLE[]`;
 }
 
+/** Per-row SQL for the annotator audit: the labels a_j, their agreement counts and the row's panel error. */
+function auditSql(plan: CellPlan): { level1: string[]; level2: string[]; sums: string[] } {
+  const anns = plan.annotators ?? [];
+  if (anns.length === 0) return { level1: [], level2: [], sums: [] };
+  const label = textSql(plan.roles.label!);
+  const a = anns.map((_, j) => `fg_a${j}`);
+  const level1 = [...anns.map((col, j) => `${textSql(col)} AS fg_a${j}`), `${label} AS fg_lab`];
+  // c_j: how many annotators gave the same label as annotator j (j included); 0 when j gave none
+  const level2 = [
+    ...a.map((aj, j) => `CASE WHEN ${aj} IS NULL THEN 0 ELSE ${a.map((ai) => `CASE WHEN ${ai} = ${aj} THEN 1 ELSE 0 END`).join(' + ')} END AS fg_c${j}`),
+    `${a.map((aj) => `CASE WHEN ${aj} IS NULL THEN 0 ELSE 1 END`).join(' + ')} AS fg_nlab`,
+  ];
+  const c = a.map((_, j) => `fg_c${j}`);
+  const m = c.length === 1 ? c[0] : `greatest(${c.join(', ')})`;
+  const top = (j: number) => `(${c[j]} = ${m} AND ${a[j]} IS NOT NULL)`;
+  const topWrong = a.map((aj, j) => `CASE WHEN ${top(j)} AND ${aj} <> fg_lab THEN 1 ELSE 0 END`).join(' + ');
+  const topAll = a.map((_, j) => `CASE WHEN ${top(j)} THEN 1 ELSE 0 END`).join(' + ');
+  const panel = 'fg_nlab >= 2';
+  const classes = plan.classes ?? [];
+  const sums = [
+    `sum(CASE WHEN fg_nlab >= 1 THEN 1 ELSE 0 END) AS fg_audited`,
+    `sum(CASE WHEN ${panel} THEN 1 ELSE 0 END) AS fg_panel_rows`,
+    // majority vote: among the k labels tied for most votes, the share that is wrong
+    `coalesce(sum(CASE WHEN ${panel} THEN (${topWrong})::DOUBLE / (${topAll}) END), 0) AS fg_panel_errors`,
+    // pairwise agreement of the row: Σ_j (c_j − 1) / (n (n − 1)) = Σ_c n_c (n_c − 1) / (n (n − 1))
+    `coalesce(sum(CASE WHEN ${panel} THEN (${a.map((aj, j) => `CASE WHEN ${aj} IS NULL THEN 0 ELSE ${c[j]} - 1 END`).join(' + ')})::DOUBLE / (fg_nlab * (fg_nlab - 1)) END), 0) AS fg_agree_sum`,
+    ...a.flatMap((aj, j) => [
+      `sum(CASE WHEN ${aj} IS NULL THEN 0 ELSE 1 END) AS fg_ann_rows_${j}`,
+      `sum(CASE WHEN ${aj} IS NOT NULL AND ${aj} IS DISTINCT FROM fg_lab THEN 1 ELSE 0 END) AS fg_ann_errors_${j}`,
+      ...classes.map((cls, k) => `sum(CASE WHEN ${panel} AND ${aj} = ${literal(cls)} THEN 1 ELSE 0 END) AS fg_ann_cls_${j}_${k}`),
+      `sum(CASE WHEN ${panel} AND ${aj} IS NOT NULL${classes.length ? ` AND ${aj} NOT IN (${classes.map(literal).join(', ')})` : ''} THEN 1 ELSE 0 END) AS fg_ann_cls_${j}_${classes.length}`,
+    ]),
+  ];
+  return { level1, level2, sums };
+}
+
 /**
  * The one-scan GROUP BY that computes cells. Keys are aliased k0, k1, … in column order.
- * Output columns: fg_split (as written, trimmed), k0…, fg_floor_entry, fg_floor_n, fg_rows, fg_weight,
- * fg_weight_sq, fg_errors, fg_floor_sum.
+ * Output columns: fg_split (as written, trimmed), fg_run, k0…, fg_floor_entry, fg_floor_n, fg_rows,
+ * fg_weight, fg_weight_sq, fg_errors, fg_floor_sum, fg_cost_sum, fg_cost_weight, and with annotators fg_audited,
+ * fg_panel_rows, fg_panel_errors, fg_agree_sum, fg_ann_rows_j, fg_ann_errors_j, fg_ann_cls_j_k.
  */
 export function cellSql(plan: CellPlan, grouping: Grouping, table = ROWS_VIEW): string {
   const r = rowSql(plan);
   const keys = plan.columns.map((c, i) => `${keySql(c)} AS k${i}`);
   const floors = listSql([plan.defaultFloor, ...plan.floorEntries.map((e) => e.floor)]);
   const ns = listSql([null, ...plan.floorEntries.map((e) => e.n)]);
+  const costEntries = plan.costEntries ?? [];
+  // the cost of rows a cost-table entry matches; other rows take --label-cost at triage
+  const cost = costEntries.length
+    ? `list_extract(${listSql([null, ...costEntries.map((e) => e.floor)])}, ${floorEntrySql(costEntries)} + 2)`
+    : 'NULL::DOUBLE';
+  const run = plan.runColumn ? `COALESCE(${textSql(plan.runColumn)}, ${literal(MISSING)})` : 'NULL::VARCHAR';
+  const audit = auditSql(plan);
   const inner = [
     `${r.status} AS fg_split`,
+    `${run} AS fg_run`,
     ...keys,
     `${r.weight} AS fg_w`,
     `${r.error} AS fg_e`,
     `${r.floorEntry} AS fg_floor_entry`,
+    `${cost} AS fg_cost`,
+    ...audit.level1,
   ].join(',\n    ');
   const weighted = plan.roles.weight !== null;
   const sums = [
@@ -129,10 +184,13 @@ export function cellSql(plan: CellPlan, grouping: Grouping, table = ROWS_VIEW): 
     weighted ? 'sum(fg_w * fg_w) AS fg_weight_sq' : 'count(*)::DOUBLE AS fg_weight_sq',
     weighted ? 'sum(fg_w * fg_e) AS fg_errors' : 'sum(fg_e)::DOUBLE AS fg_errors',
     `sum(fg_w * list_extract(${floors}, fg_floor_entry + 2)) AS fg_floor_sum`,
+    'coalesce(sum(fg_w * fg_cost), 0) AS fg_cost_sum',
+    'coalesce(sum(CASE WHEN fg_cost IS NULL THEN 0 ELSE fg_w END), 0) AS fg_cost_weight',
+    ...audit.sums,
   ];
   const keyNames = plan.columns.map((_, i) => `k${i}`);
   // fg_floor_n follows from fg_floor_entry, so grouping by the entry is enough
-  const always = ['fg_split', 'fg_floor_entry'];
+  const always = ['fg_split', 'fg_run', 'fg_floor_entry'];
   let groupBy: string;
   if (grouping.kind === 'cross') groupBy = [...always, ...keyNames].join(', ');
   else {
@@ -146,14 +204,31 @@ export function cellSql(plan: CellPlan, grouping: Grouping, table = ROWS_VIEW): 
     });
     groupBy = `GROUPING SETS (${sets.join(', ')})`;
   }
-  return `SELECT fg_split, ${keyNames.length ? keyNames.join(', ') + ', ' : ''}fg_floor_entry, list_extract(${ns}, fg_floor_entry + 2) AS fg_floor_n, ${sums.join(', ')}
-FROM (
+  const from = `(
   SELECT
     ${inner}
   FROM ${table}
   WHERE ${whereSql(plan.where)}
-)
+)`;
+  const source = audit.level2.length ? `(SELECT *, ${audit.level2.join(', ')} FROM ${from})` : from;
+  return `SELECT fg_split, fg_run, ${keyNames.length ? keyNames.join(', ') + ', ' : ''}fg_floor_entry, list_extract(${ns}, fg_floor_entry + 2) AS fg_floor_n, ${sums.join(', ')}
+FROM ${source}
 GROUP BY ${groupBy}`;
+}
+
+function auditOf(row: Record<string, unknown>, plan: CellPlan): AuditSums | null {
+  const anns = plan.annotators ?? [];
+  if (anns.length === 0) return null;
+  const classes = (plan.classes ?? []).length + 1;
+  return {
+    audited: Number(row.fg_audited),
+    panelRows: Number(row.fg_panel_rows),
+    panelErrors: Number(row.fg_panel_errors),
+    agreeSum: Number(row.fg_agree_sum),
+    annRows: anns.map((_, j) => Number(row[`fg_ann_rows_${j}`])),
+    annErrors: anns.map((_, j) => Number(row[`fg_ann_errors_${j}`])),
+    classCounts: anns.map((_, j) => Array.from({ length: classes }, (_, k) => Number(row[`fg_ann_cls_${j}_${k}`]))),
+  };
 }
 
 /** Rows the scan set aside, by reason. */
@@ -200,6 +275,7 @@ export function toCells(rows: readonly Record<string, unknown>[], plan: CellPlan
       const cell: Cell = {
         key,
         split,
+        run: row.fg_run === null || row.fg_run === undefined ? null : String(row.fg_run),
         rows: count,
         weight: Number(row.fg_weight),
         weightSq: Number(row.fg_weight_sq),
@@ -207,8 +283,11 @@ export function toCells(rows: readonly Record<string, unknown>[], plan: CellPlan
         floorSum: Number(row.fg_floor_sum),
         floorEntry: Number(row.fg_floor_entry),
         floorN: row.fg_floor_n === null || row.fg_floor_n === undefined ? null : Number(row.fg_floor_n),
+        costSum: Number(row.fg_cost_sum),
+        costWeight: Number(row.fg_cost_weight),
+        audit: auditOf(row, plan),
       };
-      const id = JSON.stringify([split, cell.floorEntry, ...plan.columns.map((c) => key[c.name])]);
+      const id = JSON.stringify([split, cell.run, cell.floorEntry, ...plan.columns.map((c) => key[c.name])]);
       const at = byId.get(id);
       if (at === undefined) {
         byId.set(id, cells.length);
@@ -222,6 +301,9 @@ export function toCells(rows: readonly Record<string, unknown>[], plan: CellPlan
           weightSq: prev.weightSq + cell.weightSq,
           errors: prev.errors + cell.errors,
           floorSum: prev.floorSum + cell.floorSum,
+          costSum: prev.costSum + cell.costSum,
+          costWeight: prev.costWeight + cell.costWeight,
+          audit: addAudit(prev.audit, cell.audit),
         };
       }
     }

@@ -4,6 +4,9 @@ import { chooseSliceColumns, profileColumns, sampleTupleCount, sliceColumns, typ
 import { resolveRoles, roleColumns, type RoleOptions, type Roles } from './roles.js';
 import { checkWhere, openSource, type Source, type SourceSpec } from './source.js';
 import type { Cell, SliceColumn, Split } from './types.js';
+import { runsOf } from './slices.js';
+import { ROWS_VIEW, whereSql } from './source.js';
+import { textSql } from './profile.js';
 import { describeKey, readFloorTable, type FloorEntry, type FloorTable } from '../io/read-floor-table.js';
 import { firstBadRow } from '../io/locate.js';
 import { error } from '../util/error.js';
@@ -20,6 +23,10 @@ export interface LoadOptions {
   readonly maxCells: number;
   readonly floor: number | null;
   readonly floorTable: string | null;
+  /** annotator columns: human labels on audited rows */
+  readonly annotators?: readonly string[] | null;
+  /** cost table (key columns + label_cost); rows it does not cover cost --label-cost */
+  readonly costTable?: string | null;
 }
 
 /** Cells and everything known about how they were made. */
@@ -33,8 +40,15 @@ export interface Loaded {
   readonly cells: readonly Cell[];
   readonly grouping: Grouping;
   readonly floorTable: FloorTable | null;
+  readonly costTable: FloorTable | null;
   readonly warnings: readonly string[];
   readonly profile: Profile;
+  /** annotator columns, in the order of the cells' audit sums */
+  readonly annotators: readonly string[];
+  /** classes counted for agreement (the last audit class index is "any other") */
+  readonly classes: readonly string[];
+  /** runs in the input (sorted), [] without a run column */
+  readonly runs: readonly string[];
 }
 
 /** Maps role names used in `--by` (label, pred) to the columns that play them. */
@@ -62,7 +76,17 @@ export async function loadCells(duck: Duck, options: LoadOptions): Promise<Loade
   if (profile.sampleRows === 0) {
     throw error(options.where ? `${source.where}: no rows match --where "${options.where}"` : `${source.where}: no rows; expected a header and data rows`);
   }
-  const roleCols = roleColumns(roles);
+  const annotators = [...(options.annotators ?? [])];
+  for (const a of annotators) {
+    if (!dataColumns.includes(a)) {
+      throw error(`${source.where}: no column "${a}" for --annotators; the columns are ${dataColumns.map((c) => JSON.stringify(c)).join(', ')}`);
+    }
+    if (roleColumns(roles).includes(a)) throw error(`${source.where}: column "${a}" cannot be both an annotator and a role column`);
+  }
+  if (annotators.length > 0 && roles.label === null) {
+    throw error(`${source.where}: --annotators compares human labels with the true class, so it needs a label column (--label)`);
+  }
+  const roleCols = [...roleColumns(roles), ...annotators];
   const chosen = chooseSliceColumns(profile, roleCols, options.sliceCols, source.where);
   const by = options.by ? resolveBy(options.by, dataColumns, roles, source.where) : null;
   let floorTable: FloorTable | null = null;
@@ -74,9 +98,18 @@ export async function loadCells(duck: Duck, options: LoadOptions): Promise<Loade
       }
     }
   }
-  // cell columns: candidates, plus --by columns and floor-table keys that are not candidates
+  let costTable: FloorTable | null = null;
+  if (options.costTable) {
+    costTable = await readFloorTable(duck, options.costTable, 'label_cost');
+    for (const k of costTable.keyColumns) {
+      if (!dataColumns.includes(k)) {
+        throw error(`${options.costTable}: key column "${k}" is not a column of ${source.where}; the columns are ${dataColumns.map((c) => JSON.stringify(c)).join(', ')}`);
+      }
+    }
+  }
+  // cell columns: candidates, plus --by columns and floor/cost-table keys that are not candidates
   const wanted = [...chosen.columns];
-  const extra = [...(by ?? []), ...(floorTable?.keyColumns ?? [])];
+  const extra = [...(by ?? []), ...(floorTable?.keyColumns ?? []), ...(costTable?.keyColumns ?? [])];
   for (const name of extra) {
     if (wanted.some((c) => c.name === name)) continue;
     const p = profile.columns.find((c) => c.name === name)!;
@@ -84,7 +117,7 @@ export async function loadCells(duck: Duck, options: LoadOptions): Promise<Loade
   }
   if (wanted.length === 0 && !by) warnings.push('no candidate slice columns (2–50 distinct values, or numeric); name some with --slice-cols');
   const columns = await sliceColumns(duck, wanted, options.bins, options.where);
-  if (options.floor === null && !floorTable) {
+  if (options.floor === null && !floorTable && annotators.length === 0) {
     warnings.push('no floor given (--floor or --floor-table): avoidable bias is measured against perfection (floor 0)');
   }
   const plan: CellPlan = {
@@ -94,6 +127,10 @@ export async function loadCells(duck: Duck, options: LoadOptions): Promise<Loade
     floorEntries: floorTable?.entries ?? [],
     defaultFloor: options.floor ?? 0,
     where: options.where,
+    runColumn: roles.run,
+    annotators,
+    classes: annotators.length ? await auditClasses(duck, [roles.label!, ...annotators], options.where) : [],
+    costEntries: costTable?.entries ?? [],
   };
   const grouping = await chooseGrouping(duck, plan, profile, options.maxCells, by);
   const scanned = await scanCells(duck, plan, grouping).catch((e) => {
@@ -123,8 +160,13 @@ export async function loadCells(duck: Duck, options: LoadOptions): Promise<Loade
       if (!used.has(i)) warnings.push(`${floorTable.path}: line ${e.line} (${describeKey(e.keys)}) matches no row`);
     }
   }
+  if (costTable) warnings.push(...unmatchedEntries(cells, costTable));
+  if (annotators.length > 0 && !cells.some((c) => (c.audit?.audited ?? 0) > 0)) {
+    warnings.push(`no row has a label in the annotator columns ${annotators.join(', ')}: floors fall back to --floor`);
+  }
+  const runs = runsOf(cells);
   const overviewColumns = chosen.columns.map((c) => c.name);
-  return { source, roles, columns, overviewColumns, by, cells, grouping, floorTable, warnings, profile };
+  return { source, roles, columns, overviewColumns, by, cells, grouping, floorTable, costTable, warnings, profile, annotators, classes: plan.classes ?? [], runs };
 }
 
 function scanError(source: Source, e: unknown): Error {
@@ -201,4 +243,33 @@ export type { FloorEntry };
 
 function plural(n: number, word: string): string {
   return `${n} ${word}${n === 1 ? '' : 's'}`;
+}
+
+/** Most classes counted for agreement; rarer labels count as one "other" class. */
+export const MAX_CLASSES = 50;
+
+/**
+ * The classes counted for agreement: the distinct values of the label and annotator columns in the
+ * first 100,000 rows (at most 50, the most frequent first).
+ */
+async function auditClasses(duck: Duck, columns: readonly string[], where: string | null): Promise<string[]> {
+  const values = columns.map((c) => textSql(c)).join(', ');
+  const rows = await duck.all(
+    `SELECT v, count(*) AS n FROM (SELECT unnest([${values}]) AS v FROM (SELECT * FROM ${ROWS_VIEW} WHERE ${whereSql(where)} LIMIT 100000)) WHERE v IS NOT NULL GROUP BY v ORDER BY n DESC, v LIMIT ${MAX_CLASSES}`,
+  );
+  return rows.map((r) => String(r.v)).sort();
+}
+
+/**
+ * Warnings for cost-table entries whose key matches no cell (judged from the cells, no extra scan;
+ * an entry whose key columns no cell holds together is not judged).
+ */
+function unmatchedEntries(cells: readonly Cell[], table: FloorTable): string[] {
+  return table.entries.flatMap((e) => {
+    const keys = Object.entries(e.keys);
+    const judged = cells.filter((c) => keys.every(([k]) => c.key[k] !== null && c.key[k] !== undefined));
+    if (judged.length === 0) return [];
+    const hit = judged.some((c) => keys.every(([k, v]) => c.key[k] === v));
+    return hit ? [] : [`${table.path}: line ${e.line} (${describeKey(e.keys)}) matches no row`];
+  });
 }

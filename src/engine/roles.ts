@@ -2,8 +2,8 @@ import { error } from '../util/error.js';
 import type { Split } from './types.js';
 
 /** The role a column can play. Every other column is metadata and may become a slice column. */
-export type Role = 'label' | 'pred' | 'error' | 'split' | 'id' | 'score' | 'weight';
-export const ROLES: readonly Role[] = ['label', 'pred', 'error', 'split', 'id', 'score', 'weight'];
+export type Role = 'label' | 'pred' | 'error' | 'split' | 'id' | 'score' | 'weight' | 'run';
+export const ROLES: readonly Role[] = ['label', 'pred', 'error', 'split', 'id', 'score', 'weight', 'run'];
 
 /** Column names chosen by the user (flags or floorgap.json); undefined means "detect". */
 export type RoleOptions = Partial<Record<Role, string>>;
@@ -19,6 +19,8 @@ export interface Roles {
   readonly id: string | null;
   readonly score: string | null;
   readonly weight: string | null;
+  /** the training run a row belongs to, for tables that hold several runs; never a slice column */
+  readonly run: string | null;
 }
 
 const COMMON_NAMES: Record<Role, readonly string[]> = {
@@ -29,6 +31,7 @@ const COMMON_NAMES: Record<Role, readonly string[]> = {
   id: ['id', 'row_id', 'example_id'],
   score: ['score', 'confidence'],
   weight: ['weight', 'sample_weight'],
+  run: ['run'],
 };
 const CORRECT_NAMES = ['correct', 'is_correct'];
 
@@ -107,9 +110,10 @@ export function resolveRoles(
     id: optional('id'),
     score: optional('score'),
     weight: optional('weight'),
+    run: optional('run'),
   };
   const used = new Map<string, string>();
-  for (const role of ['label', 'pred', 'error', 'split', 'id', 'score', 'weight'] as const) {
+  for (const role of ['label', 'pred', 'error', 'split', 'id', 'score', 'weight', 'run'] as const) {
     const col = roles[role];
     if (col === null) continue;
     const other = used.get(col);
@@ -121,7 +125,7 @@ export function resolveRoles(
 
 /** The columns that play a role (never candidate slice columns, except label and pred via `--by`). */
 export function roleColumns(roles: Roles): string[] {
-  return [roles.label, roles.pred, roles.error, roles.split, roles.id, roles.score, roles.weight].filter(
+  return [roles.label, roles.pred, roles.error, roles.split, roles.id, roles.score, roles.weight, roles.run].filter(
     (c): c is string => c !== null,
   );
 }

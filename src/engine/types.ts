@@ -10,6 +10,8 @@ export interface Cell {
   /** slice column values, `(missing)` for a missing value; a column absent from a grouping set is `null` */
   readonly key: Readonly<Record<string, string | null>>;
   readonly split: Split;
+  /** the training run the rows belong to, when the input has a run column; else null */
+  readonly run: string | null;
   /** unweighted row count (exact integer) */
   readonly rows: number;
   /** Σ w */
@@ -24,6 +26,48 @@ export interface Cell {
   readonly floorEntry: number;
   /** rows the human estimate of that entry came from; null when the entry gave none (treated as exact) */
   readonly floorN: number | null;
+  /** Σ w · labelling cost, over the rows a cost-table entry matched */
+  readonly costSum: number;
+  /** Σ w over the rows a cost-table entry matched (the others cost --label-cost) */
+  readonly costWeight: number;
+  /** annotator audit sums (unweighted), when annotator columns are given; else null */
+  readonly audit: AuditSums | null;
+}
+
+/**
+ * Sufficient statistics of an annotator audit over some rows. Counts are unweighted: an audit is a
+ * sample of rows, not of the weighted population. "Panel rows" are rows with at least two labels.
+ */
+export interface AuditSums {
+  /** rows with at least one annotator label */
+  readonly audited: number;
+  /** rows with at least two annotator labels */
+  readonly panelRows: number;
+  /** Σ over panel rows of the majority vote's error (a tie of k labels, w of them wrong, counts w/k) */
+  readonly panelErrors: number;
+  /** Σ over panel rows of the row's pairwise agreement P_i = Σ_c n_c(n_c − 1) / (n(n − 1)) */
+  readonly agreeSum: number;
+  /** per annotator: rows labelled */
+  readonly annRows: readonly number[];
+  /** per annotator: labels that differ from the row's label */
+  readonly annErrors: readonly number[];
+  /** per annotator, per class (last index: any other class): labels given on panel rows */
+  readonly classCounts: readonly (readonly number[])[];
+}
+
+/** Adds two audit sums of the same shape. */
+export function addAudit(a: AuditSums | null, b: AuditSums | null): AuditSums | null {
+  if (!a) return b;
+  if (!b) return a;
+  return {
+    audited: a.audited + b.audited,
+    panelRows: a.panelRows + b.panelRows,
+    panelErrors: a.panelErrors + b.panelErrors,
+    agreeSum: a.agreeSum + b.agreeSum,
+    annRows: a.annRows.map((v, j) => v + b.annRows[j]),
+    annErrors: a.annErrors.map((v, j) => v + b.annErrors[j]),
+    classCounts: a.classCounts.map((row, j) => row.map((v, c) => v + b.classCounts[j][c])),
+  };
 }
 
 /** A slice column: categorical, or numeric cut into bins labelled by their ranges. */

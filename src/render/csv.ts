@@ -21,7 +21,12 @@ export const CSV_COLUMNS: readonly string[] = [
   'rows_test',
   'share',
   'floor',
+  'floor_lo',
+  'floor_hi',
   'floor_source',
+  'floor_raw',
+  'floor_audited',
+  'kappa',
   ...(['train', 'train_dev', 'dev', 'test'] as const).flatMap((s) => [`err_${s}`, `err_${s}_lo`, `err_${s}_hi`]),
   ...(['bias', 'variance', 'mismatch', 'dev_overfit'] as const).flatMap((g) => [g, `${g}_lo`, `${g}_hi`, `${g}_q`]),
   'headroom',
@@ -29,6 +34,10 @@ export const CSV_COLUMNS: readonly string[] = [
   'headroom_variance',
   'headroom_mismatch',
   'yield',
+  'cost',
+  'labels_to_halve',
+  'curve_beta',
+  'curve_source',
 ];
 
 const SPLITS: readonly Split[] = ['train', 'train_dev', 'dev', 'test'];
@@ -82,7 +91,12 @@ function sliceValues(slice: SliceReport, overall: boolean): Value[] {
     ...SPLITS.map((s) => num(slice.rows[s])),
     num(slice.share),
     num(slice.floor.value),
+    num(slice.floor.lo),
+    num(slice.floor.hi),
     text(slice.floor.source),
+    num(slice.floor.raw?.value),
+    num(slice.floor.audited),
+    num(slice.agreement?.kappa),
     ...SPLITS.flatMap((s) => {
       const rate = slice.error[s];
       return [num(rate?.value), num(rate?.lo), num(rate?.hi)];
@@ -96,6 +110,10 @@ function sliceValues(slice: SliceReport, overall: boolean): Value[] {
     num(slice.headroom?.variance),
     num(slice.headroom?.mismatch),
     num(slice.yield),
+    num(slice.cost),
+    num(slice.labels_to_halve),
+    num(slice.curve.beta),
+    text(slice.curve.source),
   ];
 }
 

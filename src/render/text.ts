@@ -224,7 +224,11 @@ function headerBlock(report: Report, width: number, color: boolean): Line[] {
   const roles = Object.entries(report.source.roles)
     .filter((entry): entry is [string, string] => entry[1] !== null)
     .map(([role, column]) => `${sanitize(role)}=${sanitize(column)}`);
+  if (report.source.annotators.length > 0) roles.push(`annotators=${report.source.annotators.map((a) => sanitize(a)).join(',')}`);
   if (roles.length > 0) lines.push(...keyedLines('columns', roles, width, color));
+  if (report.run !== null) {
+    lines.push(...keyedLines('run', [`${sanitize(report.run)} (of ${report.runs.map((r) => sanitize(r)).join(', ')}; learning curves fitted over all runs)`], width, color));
+  }
   if (report.source.where !== null) lines.push(...keyedLines('filter', [sanitize(report.source.where)], width, color));
 
   const grouping =
@@ -260,6 +264,8 @@ function overallBlock(report: Report, width: number, color: boolean): Line[] {
     ['dev overfit', o.gaps.dev_overfit],
   ];
   const floorNote = [FLOOR_SOURCE_NAME[o.floor.source] ?? sanitize(String(o.floor.source))];
+  if (o.floor.source === 'annotators' && o.floor.rule) floorNote[0] = `annotators, ${o.floor.rule} rule, ${count(o.floor.audited ?? 0)} audited`;
+  if (o.agreement?.kappa != null) floorNote.push(`kappa ${o.agreement.kappa.toFixed(2)}`);
   if (o.floor.dev !== null && Math.abs(o.floor.dev - o.floor.value) >= 0.0005) {
     floorNote.push(`${points(o.floor.dev)} on dev rows`);
   }
@@ -301,6 +307,21 @@ function overallBlock(report: Report, width: number, color: boolean): Line[] {
     const key = plain.slice(0, widths[0]);
     return { plain, styled: paint(key, ['dim'], color) + plain.slice(key.length) };
   });
+}
+
+/** Hints of the ranked slices (likely noisy labels, curves that could not be fitted), at most `limit`. */
+function hintLines(report: Report, width: number, color: boolean, limit = 6): Line[] {
+  const items = report.slices.flatMap((s) => s.hints.map((h) => `${sanitize(s.label)}: ${sanitize(h)}`));
+  const lines: Line[] = [];
+  items.slice(0, limit).forEach((item, i) => {
+    const first = i === 0 ? 'notes'.padEnd(KEY_WIDTH) : ' '.repeat(KEY_WIDTH);
+    for (const plain of wrap(`- ${item}`, width, first, ' '.repeat(KEY_WIDTH + 2))) {
+      const k = plain.slice(0, KEY_WIDTH);
+      lines.push({ plain, styled: paint(k, ['dim'], color) + plain.slice(KEY_WIDTH) });
+    }
+  });
+  if (items.length > limit) lines.push(line(`${' '.repeat(KEY_WIDTH)}(${items.length - limit} more in --format json)`, ['dim'], color));
+  return lines;
 }
 
 function warningLines(report: Report, width: number, color: boolean): Line[] {
@@ -490,6 +511,9 @@ export function renderText(report: Report, options: TextOptions): string {
     ...overallBlock(report, width, color),
   ];
   if (report.warnings.length > 0) lines.push(blank, ...warningLines(report, width, color));
-  lines.push(blank, ...table.lines, blank, ...legend(report, table, width, color));
+  lines.push(blank, ...table.lines);
+  const hints = hintLines(report, width, color);
+  if (hints.length > 0) lines.push(blank, ...hints);
+  lines.push(blank, ...legend(report, table, width, color));
   return `${lines.map((l) => l.styled).join('\n')}\n`;
 }

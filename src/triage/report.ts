@@ -1,20 +1,45 @@
-import { rollupSlices, type SliceStats } from '../engine/slices.js';
+import { rollupSlices, runsOf, type SliceStats } from '../engine/slices.js';
 import type { Cell } from '../engine/types.js';
-import { triage } from './triage.js';
+import { fitBetaPrior, type BetaPrior } from '../stats/index.js';
+import { annotatorFloor, ruleCounts } from './annotator-floor.js';
+import { sliceCurve } from './curve.js';
+import { triage, type SliceExtras } from './triage.js';
 import type { InputInfo, Report, TriageOptions } from './types.js';
 
 /** What the report needs besides the cells (all plain data). */
 export interface ReportContext {
   readonly inputs: readonly InputInfo[];
   readonly roles: Readonly<Record<string, string | null>>;
+  readonly annotators?: readonly string[];
   readonly where: string | null;
   readonly version: string;
   readonly warnings: readonly string[];
 }
 
+const EMPTY: SliceStats = { key: {}, splits: {}, floorParts: [], devFloorParts: [], audit: null };
+
+function sliceId(key: Readonly<Record<string, string>>): string {
+  return JSON.stringify(Object.entries(key));
+}
+
+/**
+ * The run whose numbers are reported: the one named, else the run with the most training rows
+ * (ties: the later name). Null when the cells carry no run.
+ */
+export function chooseRun(cells: readonly Cell[], wanted: string | null): string | null {
+  const runs = runsOf(cells);
+  if (runs.length === 0) return null;
+  if (wanted !== null) return runs.includes(wanted) ? wanted : null;
+  const train = new Map<string, number>();
+  for (const c of cells) if (c.run !== null && c.split === 'train') train.set(c.run, (train.get(c.run) ?? 0) + c.rows);
+  return runs.reduce((best, r) => ((train.get(r) ?? 0) >= (train.get(best) ?? 0) ? r : best), runs[0]);
+}
+
 /**
  * cells → slices → triage → the report. With `by` the slices are the cross of those columns; without
- * it, the overview: every one-column slice of every candidate column, ranked together.
+ * it, the overview: every one-column slice of every candidate column, ranked together. With several
+ * runs, the numbers come from one run and each slice's learning curve from all of them. With annotator
+ * audits, each grouping's slices share one empirical-Bayes prior for their floors.
  * @example
  * buildReport(cells, ['station'], [], ctx, DEFAULT_TRIAGE_OPTIONS).slices[0].label; // => 'station=S5'
  */
@@ -25,16 +50,61 @@ export function buildReport(
   context: ReportContext,
   options: TriageOptions,
 ): Report {
-  const overall = rollupSlices(cells, [])[0] ?? ({ key: {}, splits: {}, floorParts: [], devFloorParts: [] } as SliceStats);
-  const slices: SliceStats[] = by && by.length > 0 ? rollupSlices(cells, by) : overviewColumns.flatMap((c) => rollupSlices(cells, [c]));
-  const result = triage(slices, overall, options);
+  const runs = runsOf(cells);
+  const run = chooseRun(cells, options.run);
+  const groupings: string[][] = by && by.length > 0 ? [[...by]] : overviewColumns.map((c) => [c]);
+  const groups = groupings.map((g) => ({ by: g, slices: rollupSlices(cells, g, run) }));
+  const overall = rollupSlices(cells, [], run)[0] ?? EMPTY;
+
+  // learning curves: the same slices in every run
+  const perRun = new Map<string, SliceStats[]>();
+  if (runs.length > 1) {
+    for (const r of runs) {
+      for (const g of [{ by: [] as string[] }, ...groups]) {
+        for (const s of rollupSlices(cells, g.by, r)) {
+          const id = sliceId(s.key);
+          const list = perRun.get(id) ?? [];
+          list.push(s);
+          perRun.set(id, list);
+        }
+      }
+    }
+  }
+  // annotator floors: one prior per grouping, fitted across its slices
+  const priors = new Map<string, BetaPrior>();
+  let overallPrior: BetaPrior | null = null;
+  if (overall.audit) {
+    for (const g of groups) {
+      const data = g.slices.flatMap((s) => (s.audit ? [ruleCounts(s.audit, options.floorRule)] : [])).filter((x): x is { x: number; n: number } => x !== null);
+      const prior = fitBetaPrior(data);
+      overallPrior ??= prior;
+      for (const s of g.slices) priors.set(sliceId(s.key), prior);
+    }
+    overallPrior ??= fitBetaPrior([ruleCounts(overall.audit, options.floorRule)].filter((x): x is { x: number; n: number } => x !== null));
+  }
+  const extras = (s: SliceStats): SliceExtras => {
+    const id = sliceId(s.key);
+    const prior = Object.keys(s.key).length === 0 ? overallPrior : priors.get(id) ?? null;
+    return {
+      annotatorFloor: s.audit && prior ? annotatorFloor(s.audit, options.floorRule, prior, options.confidence) : null,
+      curve: runs.length > 1 ? sliceCurve(perRun.get(id) ?? [], options.curveExponent, options.confidence) : null,
+    };
+  };
+  const result = triage(
+    groups.flatMap((g) => g.slices),
+    overall,
+    { ...options, run },
+    extras,
+  );
   return {
     schema: 'floorgap.report/1',
     by: by && by.length > 0 ? [...by] : null,
     confidence: options.confidence,
     fdr: options.fdr,
     fdr_method: options.fdrMethod,
-    source: { inputs: context.inputs, roles: context.roles, where: context.where, version: context.version },
+    source: { inputs: context.inputs, roles: context.roles, annotators: context.annotators ?? [], where: context.where, version: context.version },
+    run,
+    runs,
     overall: result.overall,
     slices: result.slices,
     warnings: context.warnings,

@@ -10,7 +10,15 @@ import {
   twoProportionTest,
   wilsonInterval,
 } from '../stats/index.js';
-import type { FloorSource, Focus, Gap, Headroom, Rate, SliceFloor, SliceReport, TriageOptions } from './types.js';
+import type { AnnotatorFloor } from './annotator-floor.js';
+import { agreementOf, LOW_AGREEMENT } from './agreement.js';
+import type { Agreement, Curve, FloorSource, Focus, Gap, Headroom, Rate, SliceFloor, SliceReport, TriageOptions } from './types.js';
+
+/** What triage knows about a slice beyond its sums: an annotator floor and a learning curve. */
+export interface SliceExtras {
+  readonly annotatorFloor: AnnotatorFloor | null;
+  readonly curve: Curve | null;
+}
 
 /** A proportion as the tests see it: x successes of n (effective) rows. */
 interface Prop {
@@ -69,7 +77,7 @@ export function sliceFloor(stats: SliceStats, confidence: number): SliceFloor {
   const hasDefault = entries.has(-1);
   const hasTable = [...entries].some((e) => e >= 0);
   const source: FloorSource = hasTable ? (hasDefault ? 'mixed' : 'table') : 'default';
-  return { value, dev: devValue, lo: ci ? ci.lo : null, hi: ci ? ci.hi : null, n, source };
+  return { value, dev: devValue, lo: ci ? ci.lo : null, hi: ci ? ci.hi : null, n, source, rule: null, raw: null, audited: null };
 }
 
 /** Everything computed for one slice before the family-wide FDR step. */
@@ -83,6 +91,9 @@ interface Draft {
   gaps: { avoidable_bias: Gap | null; variance: Gap | null; mismatch: Gap | null; dev_overfit: Gap | null };
   headroom: Headroom | null;
   thin: boolean;
+  cost: number;
+  curve: Curve;
+  agreement: Agreement | null;
 }
 
 /** "col=value · col=value"; "overall" for the empty key. */
@@ -91,12 +102,17 @@ export function sliceLabel(key: Readonly<Record<string, string>>): string {
   return parts.length ? parts.join(' · ') : 'overall';
 }
 
-function draft(stats: SliceStats, devTotal: number, present: ReadonlySet<Split>, o: TriageOptions): Draft {
+function draft(stats: SliceStats, devTotal: number, present: ReadonlySet<Split>, o: TriageOptions, extras: SliceExtras | null): Draft {
   const c = o.confidence;
   const props = Object.fromEntries(SPLITS.map((s) => [s, present.has(s) ? prop(stats.splits[s]) : null])) as Record<Split, Prop | null>;
   const rows = Object.fromEntries(SPLITS.map((s) => [s, present.has(s) ? stats.splits[s]?.rows ?? 0 : null])) as Record<Split, number | null>;
   const error = Object.fromEntries(SPLITS.map((s) => [s, rate(props[s], c)])) as Record<Split, Rate | null>;
-  const floor = sliceFloor(stats, c);
+  // precedence: floor table > annotators > --floor
+  let floor = sliceFloor(stats, c);
+  const af = extras?.annotatorFloor ?? null;
+  if (floor.source === 'default' && af) {
+    floor = { value: af.value, dev: null, lo: af.lo, hi: af.hi, n: af.n, source: 'annotators', rule: o.floorRule, raw: af.raw, audited: af.audited };
+  }
   const share = devTotal > 0 ? (stats.splits.dev?.weight ?? 0) / devTotal : 0;
   const train = props.train;
   let bias: Gap | null = null;
@@ -121,7 +137,14 @@ function draft(stats: SliceStats, devTotal: number, present: ReadonlySet<Split>,
     headroom = { total: hb + hv + (hm ?? 0), bias: hb, variance: hv, mismatch: hm };
   }
   const thin = (rows.train ?? 0) < o.minRows || (rows.dev ?? 0) < o.minRows;
+  const trainSums = stats.splits.train;
+  // mean cost of a row: cost-table rows at their cost, the rest at --label-cost
+  const cost = trainSums && trainSums.weight > 0 ? (trainSums.costSum + (trainSums.weight - trainSums.costWeight) * o.labelCost) / trainSums.weight : o.labelCost;
+  const curve = extras?.curve ?? { beta: o.curveExponent, lo: null, hi: null, runs: 0, source: 'default' as const };
   return {
+    cost,
+    curve,
+    agreement: agreementOf(stats.audit),
     stats,
     label: sliceLabel(stats.key),
     rows,
@@ -169,8 +192,20 @@ export function chooseFocus(d: Pick<Draft, 'thin' | 'gaps' | 'headroom' | 'floor
  */
 export function sliceYield(share: number, variance: number, mismatch: number | null, nTrain: number, beta: number, cost: number): number {
   const gap = Math.max(0, variance + (mismatch ?? 0));
-  const shrink = 1 - Math.pow(nTrain / (nTrain + 1000), beta);
+  // a curve that does not fall (β ≤ 0) recovers nothing
+  const shrink = Math.max(0, 1 - Math.pow(nTrain / (nTrain + 1000), beta));
   return (share * gap * shrink) / cost;
+}
+
+/**
+ * New labelled rows that halve the slice's generalisation gap under g ∝ n^−β:
+ * (n/(n+Δ))^β = 1/2 ⇒ Δ = n (2^(1/β) − 1); null when β ≤ 0.
+ * @example
+ * labelsToHalve(4000, 0.5); // => 12000
+ */
+export function labelsToHalve(nTrain: number, beta: number): number | null {
+  if (!(beta > 0) || !(nTrain > 0)) return null;
+  return nTrain * (Math.pow(2, 1 / beta) - 1);
 }
 
 function withQ(g: Gap | null, q: number | null): Gap | null {
@@ -186,8 +221,10 @@ export function triage(
   slices: readonly SliceStats[],
   overall: SliceStats,
   options: TriageOptions,
+  extras: (s: SliceStats) => SliceExtras | null = () => null,
 ): { overall: SliceReport; slices: SliceReport[] } {
   const present = new Set(SPLITS.filter((s) => (overall.splits[s]?.rows ?? 0) > 0));
+  const hasRuns = options.run !== null;
   const devTotal = overall.splits.dev?.weight ?? 0;
   const adjust = options.fdrMethod === 'by' ? benjaminiYekutieli : benjaminiHochberg;
   const finish = (drafts: Draft[], isOverall: boolean): SliceReport[] => {
@@ -210,8 +247,10 @@ export function triage(
       const focus = chooseFocus({ ...d, thin: isOverall ? false : d.thin, gaps }, options);
       let yieldValue: number | null = null;
       if ((focus === 'variance' || focus === 'mismatch') && gaps.variance && d.error.train) {
-        yieldValue = sliceYield(d.share, gaps.variance.value, gaps.mismatch?.value ?? null, d.error.train.n, options.curveExponent, options.labelCost);
+        yieldValue = sliceYield(d.share, gaps.variance.value, gaps.mismatch?.value ?? null, d.error.train.n, d.curve.beta, d.cost);
       }
+      const generalisation = gaps.variance ? gaps.variance.value + (gaps.mismatch?.value ?? 0) : 0;
+      const toHalve = generalisation > 0 && d.error.train ? labelsToHalve(d.error.train.n, d.curve.beta) : null;
       const part = d.headroom ? (focus === 'bias' ? d.headroom.bias : focus === 'variance' ? d.headroom.variance : focus === 'mismatch' ? d.headroom.mismatch ?? 0 : 0) : 0;
       // worth acting on: the lever's own part and the slice's whole gain both reach min-headroom
       // (a slice whose dev error already sits at its floor has nothing to give back)
@@ -229,16 +268,26 @@ export function triage(
         gaps,
         headroom: d.headroom,
         yield: yieldValue,
+        cost: d.cost,
+        labels_to_halve: toHalve,
+        curve: d.curve,
+        agreement: d.agreement,
         focus,
         flagged,
         rank: 0,
+        hints: hintsFor(d, overallFloor, overallKappa, hasRuns),
       };
       return report;
     });
     return reports;
   };
-  const [overallReport] = finish([draft(overall, devTotal, present, options)], true);
-  const reports = finish(slices.map((s) => draft(s, devTotal, present, options)), false);
+  const overallDraft = draft(overall, devTotal, present, options, extras(overall));
+  let overallFloor: number | null = null;
+  let overallKappa: number | null = null;
+  const [overallReport] = finish([overallDraft], true);
+  overallFloor = overallDraft.floor.value;
+  overallKappa = overallDraft.agreement?.kappa ?? null;
+  const reports = finish(slices.map((s) => draft(s, devTotal, present, options, extras(s))), false);
   reports.sort(compareSlices);
   return { overall: { ...overallReport, rank: 0 }, slices: reports.map((r, i) => ({ ...r, rank: i + 1 })) };
 }
@@ -257,4 +306,26 @@ export function compareSlices(a: SliceReport, b: SliceReport): number {
   const hb = b.headroom?.total ?? -Infinity;
   if (hb !== ha) return hb - ha;
   return a.label < b.label ? -1 : a.label > b.label ? 1 : 0;
+}
+
+/** Agreement this far below the data's overall kappa counts as low in a slice (a heuristic of ours). */
+export const KAPPA_DROP = 0.05;
+
+/**
+ * Notes for the reader: labels that are likely noisy (kappa below 0.6, or 0.05 below the overall kappa,
+ * with a floor above the overall floor), and a learning curve that could not be fitted from the runs.
+ */
+function hintsFor(d: Draft, overallFloor: number | null, overallKappa: number | null, hasRuns: boolean): string[] {
+  const hints: string[] = [];
+  const k = d.agreement?.kappa;
+  const lowAgreement = k !== null && k !== undefined && (k < LOW_AGREEMENT || (overallKappa !== null && k < overallKappa - KAPPA_DROP));
+  if (lowAgreement && overallFloor !== null && d.floor.value > overallFloor) {
+    hints.push(
+      `annotators agree little here (${d.agreement!.method} kappa ${k.toFixed(2)}) and the floor is high: the labels are likely noisy; relabelling with adjudication may lower the floor itself`,
+    );
+  }
+  if (hasRuns && d.curve.source === 'default') {
+    hints.push(`learning curve: fewer than 3 runs of different size with a positive dev − train gap; yield uses the default exponent ${d.curve.beta}`);
+  }
+  return hints;
 }

@@ -23,6 +23,7 @@ export const FOCI: readonly Focus[] = ['bias', 'variance', 'mismatch', 'at-floor
 
 export type FloorSource = 'default' | 'table' | 'mixed' | 'annotators';
 
+
 export interface SliceFloor {
   /** weighted mean floor over the slice's train rows (used for bias and headroom) */
   readonly value: number;
@@ -34,6 +35,32 @@ export interface SliceFloor {
   /** effective number of human-labelled rows behind the floor, null when the floor is taken as exact */
   readonly n: number | null;
   readonly source: FloorSource;
+  /** annotator floors only: the rule, the slice's own (unshrunk) estimate, and its audited rows */
+  readonly rule?: FloorRule | null;
+  readonly raw?: Rate | null;
+  readonly audited?: number | null;
+}
+
+/** How a floor is computed from annotator columns. */
+export type FloorRule = 'panel' | 'typical' | 'best';
+
+/** Inter-annotator agreement over the slice's rows with at least two annotator labels. */
+export interface Agreement {
+  readonly kappa: number | null;
+  readonly method: 'cohen' | 'fleiss';
+  /** rows with at least two annotator labels */
+  readonly audited: number;
+}
+
+/** The learning-curve exponent used for a slice's yield. */
+export interface Curve {
+  readonly beta: number;
+  readonly lo: number | null;
+  readonly hi: number | null;
+  /** runs with a usable point (train and dev rows, positive gap) */
+  readonly runs: number;
+  /** `fit`: fitted from the runs; `default`: --curve-exponent (no runs, or fewer than 3 training sizes) */
+  readonly source: 'fit' | 'default';
 }
 
 export interface Headroom {
@@ -61,9 +88,17 @@ export interface SliceReport {
   };
   readonly headroom: Headroom | null;
   readonly yield: number | null;
+  /** mean labelling cost of one new row in the slice (cost table, else --label-cost) */
+  readonly cost: number;
+  /** new labelled rows that would halve variance + mismatch under the slice's curve, when it is positive */
+  readonly labels_to_halve: number | null;
+  readonly curve: Curve;
+  readonly agreement: Agreement | null;
   readonly focus: Focus;
   readonly flagged: boolean;
   readonly rank: number;
+  /** plain-language notes for the reader (e.g. likely noisy labels) */
+  readonly hints: readonly string[];
 }
 
 export interface InputInfo {
@@ -83,9 +118,14 @@ export interface Report {
   readonly source: {
     readonly inputs: readonly InputInfo[];
     readonly roles: Readonly<Record<string, string | null>>;
+    /** annotator columns the floors came from ([] when none) */
+    readonly annotators: readonly string[];
     readonly where: string | null;
     readonly version: string;
   };
+  /** the training run the numbers come from, when the input holds several runs */
+  readonly run: string | null;
+  readonly runs: readonly string[];
   readonly overall: SliceReport;
   readonly slices: readonly SliceReport[];
   /** notes for the reader (e.g. "no floor given: bias is measured against perfection") */
@@ -102,6 +142,10 @@ export interface TriageOptions {
   readonly minHeadroom: number;
   readonly curveExponent: number;
   readonly labelCost: number;
+  /** how annotator columns give a floor */
+  readonly floorRule: FloorRule;
+  /** the run whose numbers are reported (default: the run with the most training rows) */
+  readonly run: string | null;
 }
 
 export const DEFAULT_TRIAGE_OPTIONS: TriageOptions = {
@@ -113,4 +157,6 @@ export const DEFAULT_TRIAGE_OPTIONS: TriageOptions = {
   minHeadroom: 0.001,
   curveExponent: 0.5,
   labelCost: 1,
+  floorRule: 'panel',
+  run: null,
 };

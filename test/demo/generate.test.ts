@@ -1,24 +1,33 @@
 import { describe, expect, it } from 'vitest';
 import {
+  DEMO_AUDIT,
   DEMO_CLASSES,
   DEMO_COLUMNS,
   DEMO_DEFAULTS,
   DEMO_DISTRIBUTIONS,
   DEMO_FLOORS,
+  DEMO_INSPECTORS,
+  DEMO_MAX_RUNS,
   DEMO_PACKAGES,
   DEMO_PLANTS,
   csvField,
+  demoColumns,
   demoErrorProbability,
   demoFloorCsvLines,
   demoFloorTable,
+  demoInspectorErrorProbability,
   demoRowsToCsvLines,
+  demoRunTrainRows,
   generateDemoRows,
+  type DemoClass,
+  type DemoInspector,
   type DemoLighting,
+  type DemoPackage,
   type DemoRow,
   type DemoSplit,
   type DemoStation,
 } from '../../src/demo/generate.js';
-import { Random } from '../../src/demo/random.js';
+import { Random, deriveSeed } from '../../src/demo/random.js';
 
 const take = (rows: number, seed: number): DemoRow[] => [...generateDemoRows({ rows, seed })];
 
@@ -54,9 +63,14 @@ type EffectPlant = 'avoidableBias' | 'mismatch' | 'variance';
 /**
  * A row's planted error probability, rebuilt from the exported constants as DEMO_PLANTS documents it
  * (independently of demoErrorProbability): the package floor, plus each effect whose column value and
- * split match, none at all for the at-floor package, capped. `omit` leaves one effect out.
+ * split match, none at all for the at-floor package, capped. `omit` leaves one effect out; `fraction`
+ * is the run's n_r / n_R, which scales the variance effect along its learning curve.
  */
-function planted(r: Pick<DemoRow, 'split' | 'station' | 'lighting' | 'package'>, omit?: EffectPlant): number {
+function planted(
+  r: Pick<DemoRow, 'split' | 'station' | 'lighting' | 'package'>,
+  omit?: EffectPlant,
+  fraction = 1,
+): number {
   const { avoidableBias, atFloor, mismatch, variance, errorCap } = DEMO_PLANTS;
   const floor = DEMO_FLOORS[r.package].floor;
   if (r.package === atFloor.value) return floor;
@@ -65,7 +79,9 @@ function planted(r: Pick<DemoRow, 'split' | 'station' | 'lighting' | 'package'>,
     p += avoidableBias.effect;
   }
   if (omit !== 'mismatch' && r.station === mismatch.value && mismatch.splits.includes(r.split)) p += mismatch.effect;
-  if (omit !== 'variance' && r.lighting === variance.value && variance.splits.includes(r.split)) p += variance.effect;
+  if (omit !== 'variance' && r.lighting === variance.value && variance.splits.includes(r.split)) {
+    p += variance.effect * Math.pow(fraction, -variance.curveExponent);
+  }
   return Math.min(p, errorCap);
 }
 
@@ -176,12 +192,26 @@ describe('generateDemoRows: shape', () => {
     expect(() => take(0, 7)).toThrow(/rows/);
     expect(() => take(1.5, 7)).toThrow(/rows/);
     expect(() => take(10, Number.NaN)).toThrow(/seed/);
+    for (const runs of [0, 1.5, DEMO_MAX_RUNS + 1]) {
+      expect(() => [...generateDemoRows({ rows: 10, seed: 7, runs })]).toThrow(/runs/);
+    }
   });
 
   it('has exactly the documented columns with values in their domains', () => {
     expect([...DEMO_COLUMNS]).toEqual([
       'id', 'split', 'station', 'lighting', 'package', 'finish', 'shift', 'sharpness', 'label', 'pred', 'score',
+      'insp_a', 'insp_b', 'insp_c',
     ]);
+    expect(demoColumns()).toEqual(DEMO_COLUMNS);
+    expect(demoColumns(1)).toEqual(DEMO_COLUMNS);
+    expect(demoColumns(3)).toEqual([
+      'id', 'split', 'run', 'station', 'lighting', 'package', 'finish', 'shift', 'sharpness', 'label', 'pred',
+      'score', 'insp_a', 'insp_b', 'insp_c',
+    ]);
+    const inspOk = (r: DemoRow): boolean => {
+      const labels = [r.insp_a, r.insp_b, r.insp_c];
+      return labels.every((l) => l === null || DEMO_CLASSES.includes(l));
+    };
     // plain checks over every row, one assertion at the end (an expect per cell would be slow)
     const inDomain = (r: DemoRow): boolean =>
       Object.keys(r).join() === DEMO_COLUMNS.join() &&
@@ -199,7 +229,8 @@ describe('generateDemoRows: shape', () => {
       Math.round(r.sharpness * 1000) / 1000 === r.sharpness &&
       r.score >= 0 &&
       r.score <= 1 &&
-      Math.round(r.score * 1000) / 1000 === r.score;
+      Math.round(r.score * 1000) / 1000 === r.score &&
+      inspOk(r);
     expect(BIG.filter((r) => !inDomain(r)).slice(0, 3)).toEqual([]);
     expect(SHIPPED.filter((r) => !inDomain(r)).slice(0, 3)).toEqual([]);
   });
@@ -207,14 +238,28 @@ describe('generateDemoRows: shape', () => {
   it('serialises to CSV with the header first and no weight column', () => {
     const lines = [...demoRowsToCsvLines(take(3, 7))];
     expect(lines).toHaveLength(4);
-    expect(lines[0]).toBe('id,split,station,lighting,package,finish,shift,sharpness,label,pred,score');
+    expect(lines[0]).toBe('id,split,station,lighting,package,finish,shift,sharpness,label,pred,score,insp_a,insp_b,insp_c');
     for (const line of lines.slice(1)) {
       const cells = line.split(',');
-      expect(cells).toHaveLength(11);
+      expect(cells).toHaveLength(14);
       expect(cells[7]).toMatch(/^[01]\.\d{3}$/);
       expect(cells[10]).toMatch(/^[01]\.\d{3}$/);
     }
     expect([...demoRowsToCsvLines(take(3, 7), { header: false })]).toEqual(lines.slice(1));
+    expect([...demoRowsToCsvLines([])]).toEqual([lines[0]]);
+  });
+
+  it('writes inspector labels as classes or empty fields, and the run column after split', () => {
+    const audited = SHIPPED.find((r) => r.insp_a !== null && r.insp_b === null)!;
+    const plain = SHIPPED.find((r) => r.insp_a === null && r.insp_b === null && r.insp_c === null)!;
+    const [, a, b] = [...demoRowsToCsvLines([plain, audited])];
+    expect(a.endsWith(',,,')).toBe(true);
+    expect(b.split(',').slice(11)).toEqual([audited.insp_a, '', audited.insp_c ?? '']);
+    const runs = [...demoRowsToCsvLines(generateDemoRows({ rows: 3, seed: 7, runs: 2 }))];
+    expect(runs[0]).toBe(demoColumns(2).join(','));
+    for (const line of runs.slice(1)) expect(line.split(',')[2]).toMatch(/^r[12]$/);
+    // a table mixes no run and run rows
+    expect(() => [...demoRowsToCsvLines([plain, { ...plain, run: 'r1' }])]).toThrow(/run/);
   });
 
   it('quotes CSV fields only when needed', () => {
@@ -320,7 +365,7 @@ describe('generateDemoRows: planted parameters', () => {
   // DEMO_PLANTS, DEMO_FLOORS and DEMO_DISTRIBUTIONS, so they follow any change to them; these literals are
   // what make a silent parameter change fail.
   it('pins the defaults, split shares, plants and floors', () => {
-    expect(DEMO_DEFAULTS).toEqual({ rows: 20_000, seed: 24 });
+    expect(DEMO_DEFAULTS).toEqual({ rows: 20_000, seed: 24, runs: 1 });
     expect(DEMO_DISTRIBUTIONS.split).toEqual({ train: 0.4, train_dev: 0.2, dev: 0.2, test: 0.2 });
     expect(DEMO_PLANTS.avoidableBias).toEqual({
       column: 'package',
@@ -347,6 +392,7 @@ describe('generateDemoRows: planted parameters', () => {
       value: 'low-angle',
       effect: 0.06,
       splits: ['train_dev', 'dev', 'test'],
+      curveExponent: 0.5,
     });
     expect(DEMO_PLANTS.errorCap).toBe(0.95);
     expect(DEMO_DISTRIBUTIONS.stationTraining.S5).toBe(0.05);
@@ -368,6 +414,36 @@ describe('generateDemoRows: planted parameters', () => {
       demoErrorProbability({ station: 'S5', lighting: 'low-angle', package: 'QFN', split: 'dev' }),
     ).toBeCloseTo(0.03 + 0.08 + 0.12 + 0.06, 10);
     expect(demoErrorProbability({ station: 'S5', lighting: 'low-angle', package: '0201', split: 'test' })).toBe(0.12);
+    // learning curve: a run on a quarter of the training rows has 0.06 · 4^0.5 = 0.12 variance excess
+    expect(demoErrorProbability({ ...base, lighting: 'low-angle', split: 'dev' }, 0.25)).toBeCloseTo(0.03 + 0.12, 10);
+    expect(demoErrorProbability({ ...base, lighting: 'low-angle', split: 'train' }, 0.25)).toBeCloseTo(0.03, 10);
+    expect(demoErrorProbability({ ...base, station: 'S5', split: 'dev' }, 0.25)).toBeCloseTo(0.15, 10);
+    expect(demoErrorProbability({ ...base, package: 'QFN', split: 'dev' }, 0.125)).toBeCloseTo(0.11, 10);
+    expect(demoErrorProbability({ ...base, lighting: 'low-angle', split: 'test' }, 2 ** -20)).toBe(0.95);
+    expect(() => demoErrorProbability({ ...base, split: 'dev' }, 0)).toThrow(RangeError);
+    expect(() => demoErrorProbability({ ...base, split: 'dev' }, 1.5)).toThrow(RangeError);
+  });
+
+  it('pins the inspector audit and the run sizes', () => {
+    // planted by the demo generator (our own scenario)
+    expect(DEMO_AUDIT).toEqual({
+      share: 0.05,
+      skipShare: 0.05,
+      harshness: 1.5,
+      harshInspector: 'insp_c',
+      sharedErrorShare: 1,
+    });
+    expect(DEMO_INSPECTORS).toEqual(['insp_a', 'insp_b', 'insp_c']);
+    expect(demoInspectorErrorProbability('insp_a', { package: '0201', label: 'good' })).toBe(0.12);
+    expect(demoInspectorErrorProbability('insp_b', { package: 'SOIC', label: 'void' })).toBe(0.02);
+    expect(demoInspectorErrorProbability('insp_c', { package: '0201', label: 'good' })).toBeCloseTo(0.18, 12);
+    expect(demoInspectorErrorProbability('insp_c', { package: '0201', label: 'bridge' })).toBe(0.12);
+    expect(demoInspectorErrorProbability('insp_c', { package: 'SOIC', label: 'good' })).toBeCloseTo(0.03, 12);
+    // hand arithmetic: ceil(8000 / 4), ceil(8000 / 2), 8000; ceil(5 / 4) = 2, ceil(5 / 2) = 3
+    expect(demoRunTrainRows(8000, 3)).toEqual([2000, 4000, 8000]);
+    expect(demoRunTrainRows(5, 3)).toEqual([2, 3, 5]);
+    expect(demoRunTrainRows(1234, 1)).toEqual([1234]);
+    expect(DEMO_MAX_RUNS).toBe(10);
   });
 
   it('agrees with the plants as documented for every split, station, lighting and package', () => {
@@ -469,6 +545,327 @@ describe.each([
         const slice = inSplit(rows, split, (r) => r.package === pkg && clean(r));
         expectRate(slice, p, binomialSe(p, slice.length), `${pkg} clean ${split}`);
       }
+    }
+  });
+});
+
+// ---------------------------------------------------------------------------------------------------
+// The inspector audit (DEMO_AUDIT). Checks rebuild the planted rates from the constants.
+
+/** the labels an inspector panel gave a row, in inspector order, skips left out */
+const labelsOf = (r: DemoRow): DemoClass[] =>
+  DEMO_INSPECTORS.map((k) => r[k]).filter((l): l is DemoClass => l !== null);
+const isAudited: Filter = (r) => labelsOf(r).length > 0;
+
+/**
+ * An inspector's planted error probability, rebuilt from the constants as DEMO_AUDIT documents it: the
+ * package floor, times the harshness for the harsh inspector on `good` joints.
+ */
+const plantedInspector = (k: DemoInspector, r: Pick<DemoRow, 'package' | 'label'>): number =>
+  DEMO_FLOORS[r.package].floor * (k === DEMO_AUDIT.harshInspector && r.label === 'good' ? DEMO_AUDIT.harshness : 1);
+
+/** Error rate of inspector `k` over the rows she labelled, with its planted mean and standard error. */
+function inspectorStats(rows: readonly DemoRow[], k: DemoInspector): { n: number; rate: number; mean: number; se: number } {
+  let n = 0;
+  let wrong = 0;
+  let sum = 0;
+  let variance = 0;
+  for (const r of rows) {
+    const l = r[k];
+    if (l === null) continue;
+    n++;
+    if (l !== r.label) wrong++;
+    const p = plantedInspector(k, r);
+    sum += p;
+    variance += p * (1 - p);
+  }
+  return { n, rate: wrong / n, mean: sum / n, se: Math.sqrt(variance) / n };
+}
+
+/** Majority vote's error as the engine counts it: among the k labels tied for most votes, the share that is wrong. */
+function majorityError(labels: readonly DemoClass[], truth: DemoClass): number {
+  const counts = new Map<DemoClass, number>();
+  for (const l of labels) counts.set(l, (counts.get(l) ?? 0) + 1);
+  const most = Math.max(...counts.values());
+  const top = [...counts].filter(([, c]) => c === most);
+  return top.filter(([l]) => l !== truth).length / top.length;
+}
+
+/** Simple pairwise agreement of a row: the share of inspector pairs that gave the same label. */
+function pairwiseAgreement(labels: readonly DemoClass[]): number {
+  let pairs = 0;
+  let same = 0;
+  for (let i = 0; i < labels.length; i++) {
+    for (let j = i + 1; j < labels.length; j++) {
+      pairs++;
+      if (labels[i] === labels[j]) same++;
+    }
+  }
+  return same / pairs;
+}
+
+/** Mean and standard error of a per-row statistic over the panel rows (≥ 2 labels) of `rows`. */
+function panelMean(rows: readonly DemoRow[], stat: (r: DemoRow, labels: DemoClass[]) => number): { mean: number; se: number; n: number } {
+  const xs = rows.map((r) => [r, labelsOf(r)] as const).filter(([, l]) => l.length >= 2).map(([r, l]) => stat(r, l));
+  const mean = xs.reduce((a, b) => a + b, 0) / xs.length;
+  const sd = Math.sqrt(xs.reduce((a, x) => a + (x - mean) ** 2, 0) / (xs.length - 1));
+  return { mean, se: sd / Math.sqrt(xs.length), n: xs.length };
+}
+
+const byPackage = (rows: readonly DemoRow[], pkg: DemoPackage) => rows.filter((r) => r.package === pkg);
+
+describe('deriveSeed', () => {
+  it('gives repeatable, distinct 32-bit side seeds', () => {
+    expect(deriveSeed(24, 1)).toBe(deriveSeed(24, 1));
+    const seeds = new Set([deriveSeed(24, 1), deriveSeed(24, 2), deriveSeed(25, 1), deriveSeed(24, 0)]);
+    expect(seeds.size).toBe(4);
+    for (const s of seeds) expect(Number.isInteger(s) && s >= 0 && s < 2 ** 32).toBe(true);
+  });
+});
+
+describe('generateDemoRows: inspector audit, planted parameters', () => {
+  it('agrees with the audit as documented for every inspector, package and class', () => {
+    for (const k of DEMO_INSPECTORS) {
+      for (const pkg of DEMO_PACKAGES) {
+        for (const label of DEMO_CLASSES) {
+          expect(demoInspectorErrorProbability(k, { package: pkg, label }), `${k} ${pkg} ${label}`).toBeCloseTo(
+            plantedInspector(k, { package: pkg, label }),
+            12,
+          );
+        }
+      }
+    }
+  });
+
+  it('leaves the audit out of the main stream: a shorter table is a prefix of a longer one', () => {
+    expect(take(300, 9)).toEqual(take(1000, 9).slice(0, 300));
+  });
+});
+
+describe.each([
+  [`${BIG_ROWS} rows, seed ${BIG_SEED}`, BIG],
+  [`shipped sample: ${DEMO_DEFAULTS.rows} rows, seed ${DEMO_DEFAULTS.seed}`, SHIPPED],
+] as const)('generateDemoRows: inspector audit (%s)', (_name, rows) => {
+  const audited = rows.filter(isAudited);
+
+  it('audits about DEMO_AUDIT.share of the rows in every split; skips leave 3, 2 or rarely 1 label', () => {
+    const { share, skipShare: s } = DEMO_AUDIT;
+    expectShare(rows, isAudited, share, 'audited');
+    for (const [split, splitRows] of groupBy(rows, (r) => r.split)) expectShare(splitRows, isAudited, share, `audited ${split}`);
+    // skips are redrawn when all three come up: P(k labels) = C(3,k)(1−s)^k s^(3−k) / (1 − s³)
+    const kept = 1 - s ** 3;
+    const p3 = (1 - s) ** 3 / kept;
+    const p2 = (3 * (1 - s) ** 2 * s) / kept;
+    expectShare(audited, (r) => labelsOf(r).length === 3, p3, '3 labels');
+    expectShare(audited, (r) => labelsOf(r).length === 2, p2, '2 labels');
+    expect(audited.filter((r) => labelsOf(r).length === 1).length).toBeLessThan(audited.length * 0.02);
+    for (const k of DEMO_INSPECTORS) expectShare(audited, (r) => r[k] === null, (s - s ** 3) / kept, `${k} skips`);
+  });
+
+  it('single inspectors err at the planted rate in every package', () => {
+    for (const pkg of DEMO_PACKAGES) {
+      for (const k of DEMO_INSPECTORS) {
+        const { n, rate, mean, se } = inspectorStats(byPackage(audited, pkg), k);
+        expect(n, `${pkg} ${k}: rows`).toBeGreaterThanOrEqual(80);
+        expect(Math.abs(rate - mean), `${pkg} ${k}: error ${rate} vs ${mean} ± ${Z}·${se}`).toBeLessThan(Z * se);
+      }
+    }
+  });
+
+  it('draws wrong labels among the other classes', () => {
+    // the harsh inspector's wrong labels on good joints spread evenly over the four defects
+    const wrongOnGood = audited.filter((r) => r.label === 'good' && r.insp_c !== null && r.insp_c !== 'good');
+    expect(wrongOnGood.length).toBeGreaterThan(10);
+    for (const c of DEMO_CLASSES.filter((x) => x !== 'good')) {
+      expectShare(wrongOnGood, (r) => r.insp_c === c, 1 / 4, `insp_c calls good ${c}`);
+    }
+  });
+
+  it('the panel majority vote errs near the floor: between sharedErrorShare · floor and the floor', () => {
+    for (const pkg of DEMO_PACKAGES) {
+      const floor = DEMO_FLOORS[pkg].floor;
+      const { mean, n } = panelMean(byPackage(audited, pkg), (r, l) => majorityError(l, r.label));
+      const se = binomialSe(floor, n);
+      expect(mean, `${pkg} majority ${mean}`).toBeGreaterThan(DEMO_AUDIT.sharedErrorShare * floor - Z * se);
+      expect(mean, `${pkg} majority ${mean}`).toBeLessThan(floor + Z * se);
+    }
+  });
+
+  it('0201 is the noisy slice: its pairwise agreement is the lowest, well below SOIC', () => {
+    const agreement = new Map(DEMO_PACKAGES.map((pkg) => [pkg, panelMean(byPackage(audited, pkg), (_r, l) => pairwiseAgreement(l))]));
+    const lowest = [...agreement].sort((a, b) => a[1].mean - b[1].mean)[0][0];
+    expect(lowest).toBe('0201');
+    const a0201 = agreement.get('0201')!;
+    const soic = agreement.get('SOIC')!;
+    expect(soic.mean - a0201.mean).toBeGreaterThan(Z * Math.hypot(a0201.se, soic.se));
+  });
+});
+
+describe(`generateDemoRows: the harsh inspector (${BIG_ROWS} rows, seed ${BIG_SEED})`, () => {
+  it('insp_c calls defects on good joints about DEMO_AUDIT.harshness times as often as the others', () => {
+    const audited = BIG.filter(isAudited);
+    const good = audited.filter((r) => r.label === 'good');
+    const defects = audited.filter((r) => r.label !== 'good');
+    const c = inspectorStats(good, 'insp_c');
+    const a = inspectorStats(good, 'insp_a');
+    const b = inspectorStats(good, 'insp_b');
+    for (const other of [a, b]) {
+      const se = Math.hypot(c.se, other.se);
+      // significantly harsher, by the planted difference (harshness − 1) × the rows' floors
+      expect(c.rate - other.rate, `${c.rate} vs ${other.rate}`).toBeGreaterThan(Z * se);
+      expect(Math.abs(c.rate - other.rate - (c.mean - other.mean))).toBeLessThan(Z * se);
+      expect(Math.abs(c.rate / other.rate - DEMO_AUDIT.harshness)).toBeLessThan(0.3);
+    }
+    // on defects she is no harsher
+    const cd = inspectorStats(defects, 'insp_c');
+    const ad = inspectorStats(defects, 'insp_a');
+    expect(Math.abs(cd.rate - ad.rate)).toBeLessThan(Z * Math.hypot(cd.se, ad.se));
+  });
+});
+
+// ---------------------------------------------------------------------------------------------------
+// Multi-run mode.
+
+const MULTI_OPTIONS = { rows: 3000, seed: 7, runs: 3 } as const;
+const MULTI = [...generateDemoRows(MULTI_OPTIONS)];
+const MULTI_BASE = take(MULTI_OPTIONS.rows, MULTI_OPTIONS.seed);
+
+/** A row without its run and its predictions: the example itself. */
+const example = ({ run: _run, pred: _pred, score: _score, ...rest }: DemoRow) => rest;
+const inRun = (rows: readonly DemoRow[], run: number) => rows.filter((r) => r.run === `r${run}`);
+
+describe('generateDemoRows: runs', () => {
+  it('is deterministic for a seed, differs across seeds, and runs: 1 is the plain table', () => {
+    expect([...generateDemoRows(MULTI_OPTIONS)]).toEqual(MULTI);
+    const other = [...generateDemoRows({ ...MULTI_OPTIONS, seed: 8 })];
+    expect(other.slice(0, 500)).not.toEqual(MULTI.slice(0, 500));
+    expect([...generateDemoRows({ rows: 500, seed: 7, runs: 1 })]).toEqual(take(500, 7));
+  });
+
+  it('adds the run column after split, run-major, r1 … rR', () => {
+    const columns = demoColumns(MULTI_OPTIONS.runs).join();
+    expect(MULTI.filter((r) => Object.keys(r).join() !== columns).slice(0, 3)).toEqual([]);
+    const order = MULTI.map((r) => Number(r.run!.slice(1)));
+    expect(order.every((x, i) => i === 0 || x >= order[i - 1])).toBe(true);
+    expect([...new Set(MULTI.map((r) => r.run))]).toEqual(['r1', 'r2', 'r3']);
+  });
+
+  it('trains run r on the first ceil(N_train · 2^(r−R)) train rows: sizes double, the last run has all', () => {
+    const baseTrain = MULTI_BASE.filter((r) => r.split === 'train');
+    const sizes = demoRunTrainRows(baseTrain.length, MULTI_OPTIONS.runs);
+    expect(sizes.at(-1)).toBe(baseTrain.length);
+    for (let r = 1; r <= MULTI_OPTIONS.runs; r++) {
+      const train = inRun(MULTI, r).filter((x) => x.split === 'train');
+      expect(train.length).toBe(sizes[r - 1]);
+      if (r > 1) expect([0, 1]).toContain(2 * sizes[r - 2] - train.length);
+      // the same examples (ids, metadata, labels, inspector labels) as the first train rows of the dataset
+      expect(train.map(example)).toEqual(baseTrain.slice(0, train.length).map(example));
+    }
+  });
+
+  it('repeats the same train_dev, dev and test examples in every run, each run with its own predictions', () => {
+    const baseOther = MULTI_BASE.filter((r) => r.split !== 'train').map(example);
+    const preds: string[][] = [];
+    for (let r = 1; r <= MULTI_OPTIONS.runs; r++) {
+      const other = inRun(MULTI, r).filter((x) => x.split !== 'train');
+      expect(other.map(example)).toEqual(baseOther);
+      preds.push(other.map((x) => x.pred));
+    }
+    const dev = (r: number) => inRun(MULTI, r).filter((x) => x.split === 'dev');
+    expect(dev(1).map((x) => [x.id, x.label, x.insp_a, x.insp_b, x.insp_c])).toEqual(
+      dev(3).map((x) => [x.id, x.label, x.insp_a, x.insp_b, x.insp_c]),
+    );
+    expect(preds[0]).not.toEqual(preds[1]);
+    expect(preds[1]).not.toEqual(preds[2]);
+    // the last run is the one-run table
+    expect(inRun(MULTI, MULTI_OPTIONS.runs)).toEqual(MULTI_BASE.map(({ id, split, ...rest }) => ({ id, split, run: 'r3', ...rest })));
+  });
+});
+
+describe('generateDemoRows: the learning curve of the variance plant (80,000 rows × 4 runs, seed 13)', () => {
+  // Streamed, not kept: per run, split and group, the rows, errors, planted mean without the variance and
+  // mismatch effects, and the planted binomial variance.
+  const OPTIONS = { rows: 80_000, seed: 13, runs: 4 } as const;
+  type Acc = { n: number; errors: number; p: number; noVariance: number; noMismatch: number; variance: number };
+  const groups = {
+    lowAngle: (r: DemoRow) => isVarianceLighting(r) && !isAtFloorPackage(r) && !isMismatchStation(r),
+    s5: (r: DemoRow) => isMismatchStation(r) && !isAtFloorPackage(r),
+    qfn: isBiasPackage,
+    '0201': isAtFloorPackage,
+  } as const;
+  type Group = keyof typeof groups;
+  const GROUP_NAMES = Object.keys(groups) as Group[];
+  const acc = new Map<string, Acc>();
+  const trainRows: number[] = new Array(OPTIONS.runs).fill(0);
+  let nTrain = 0;
+  for (const r of generateDemoRows({ rows: OPTIONS.rows, seed: OPTIONS.seed })) if (r.split === 'train') nTrain++;
+  const sizes = demoRunTrainRows(nTrain, OPTIONS.runs);
+  for (const r of generateDemoRows(OPTIONS)) {
+    const run = Number(r.run!.slice(1));
+    if (r.split === 'train') trainRows[run - 1]++;
+    const fraction = sizes[run - 1] / nTrain;
+    for (const name of GROUP_NAMES) {
+      if (!groups[name](r)) continue;
+      const key = `${run} ${r.split} ${name}`;
+      const a = acc.get(key) ?? { n: 0, errors: 0, p: 0, noVariance: 0, noMismatch: 0, variance: 0 };
+      const p = planted(r, undefined, fraction);
+      a.n++;
+      if (r.pred !== r.label) a.errors++;
+      a.p += p;
+      a.noVariance += planted(r, 'variance', fraction);
+      a.noMismatch += planted(r, 'mismatch', fraction);
+      a.variance += p * (1 - p);
+      acc.set(key, a);
+    }
+  }
+  const get = (run: number, split: DemoSplit, group: Group): Acc => acc.get(`${run} ${split} ${group}`)!;
+  const rate = (a: Acc) => a.errors / a.n;
+  const se = (a: Acc) => Math.sqrt(a.variance) / a.n;
+
+  it('has doubling train sizes', () => {
+    expect(trainRows).toEqual(sizes);
+    expect(sizes.at(-1)).toBe(nTrain);
+  });
+
+  it('plants low-angle excess error effect · (n_r / n_R)^(−β) in each run: the dev − train gap follows it', () => {
+    const { effect, curveExponent } = DEMO_PLANTS.variance;
+    // planted by the demo generator (our own scenario): β = 0.5, effect 0.06 at the largest run
+    expect(curveExponent).toBe(0.5);
+    const gaps: number[] = [];
+    for (let run = 1; run <= OPTIONS.runs; run++) {
+      const expected = effect * Math.pow(sizes[run - 1] / nTrain, -curveExponent);
+      const train = get(run, 'train', 'lowAngle');
+      // the gap net of the rows' other planted effects (package floors and bias), so only the variance is left
+      const net = (a: Acc) => rate(a) - a.noVariance / a.n;
+      for (const split of ['dev', 'train_dev'] as const) {
+        const other = get(run, split, 'lowAngle');
+        const gap = net(other) - net(train);
+        const tolerance = Z * Math.hypot(se(other), se(train));
+        expect(Math.abs(gap - expected), `run ${run} ${split} − train: ${gap} vs ${expected} ± ${tolerance}`).toBeLessThan(tolerance);
+        if (split === 'dev') gaps.push(gap);
+      }
+      // raw dev − train gap, too (same package mix in both splits in expectation)
+      const rawTolerance = Z * Math.hypot(se(get(run, 'dev', 'lowAngle')), se(train)) + 0.01;
+      expect(Math.abs(rate(get(run, 'dev', 'lowAngle')) - rate(train) - expected)).toBeLessThan(rawTolerance);
+    }
+    // the gap shrinks with more training data: run 1 (1/8 of the rows) ≈ 2.8 × the last run's
+    expect(gaps[0]).toBeGreaterThan(2 * gaps.at(-1)!);
+  });
+
+  it('keeps the other plants in every run: S5 mismatch, QFN bias, 0201 at its floor', () => {
+    for (let run = 1; run <= OPTIONS.runs; run++) {
+      for (const split of SPLITS) {
+        for (const group of GROUP_NAMES) {
+          const a = get(run, split, group);
+          expect(Math.abs(rate(a) - a.p / a.n), `run ${run} ${split} ${group}: ${rate(a)} vs ${a.p / a.n}`).toBeLessThan(Z * se(a));
+        }
+      }
+      // the new camera's dev excess does not shrink with more training data
+      const s5 = get(run, 'dev', 's5');
+      const mismatch = rate(s5) - s5.noMismatch / s5.n;
+      expect(Math.abs(mismatch - DEMO_PLANTS.mismatch.effect), `run ${run} S5 mismatch ${mismatch}`).toBeLessThan(Z * se(s5));
+      const floor0201 = get(run, 'dev', '0201');
+      expect(floor0201.p / floor0201.n).toBeCloseTo(DEMO_FLOORS['0201'].floor, 12);
     }
   });
 });

@@ -32,10 +32,29 @@ describe('writeDemo', () => {
     expect((await readFile(out.table, 'utf8')).split('\n')).toHaveLength(12);
   });
 
+  it('passes runs through: rows is the run-independent dataset, the table holds every run', async () => {
+    const dir = join(root, 'runs');
+    const out = await writeDemo(dir, { rows: 2000, seed: 4, runs: 3 });
+    const expected = [...demoRowsToCsvLines(generateDemoRows({ rows: 2000, seed: 4, runs: 3 }))];
+    expect(await readFile(out.table, 'utf8')).toBe(expected.join('\n') + '\n');
+    expect(expected[0]).toBe(
+      'id,split,run,station,lighting,package,finish,shift,sharpness,label,pred,score,insp_a,insp_b,insp_c',
+    );
+    // every non-train row three times, the train rows once in full plus about 1/2 and 1/4 of them again
+    const base = [...generateDemoRows({ rows: 2000, seed: 4 })];
+    const train = base.filter((r) => r.split === 'train').length;
+    expect(out.rows).toBe(3 * (2000 - train) + Math.ceil(train / 4) + Math.ceil(train / 2) + train);
+    expect(out.rows).toBe(expected.length - 1);
+  });
+
   it('rejects bad options with a user-facing error', async () => {
     await expect(writeDemo(join(root, 'd'), { rows: -1, seed: 1 })).rejects.toMatchObject({
       name: 'FloorgapError',
       message: expect.stringMatching(/rows must be a positive integer/),
+    });
+    await expect(writeDemo(join(root, 'd'), { rows: 10, seed: 1, runs: 0 })).rejects.toMatchObject({
+      name: 'FloorgapError',
+      message: expect.stringMatching(/runs must be an integer from 1 to 10/),
     });
   });
 
@@ -43,9 +62,12 @@ describe('writeDemo', () => {
     const shipped = await readFile(new URL('../../data-samples/solder-joints.csv', import.meta.url), 'utf8');
     const fresh = [...demoRowsToCsvLines(generateDemoRows(DEMO_DEFAULTS))];
     const lines = shipped.split('\n');
-    // planted by the demo generator (our own scenario): a header and 20,000 rows, one newline at the end
+    // planted by the demo generator (our own scenario): a header and 20,000 rows, one newline at the end,
+    // one run (no run column) and the three inspector columns last
     expect(lines).toHaveLength(20_000 + 2);
     expect(lines.at(-1)).toBe('');
+    expect(lines[0]).toBe('id,split,station,lighting,package,finish,shift,sharpness,label,pred,score,insp_a,insp_b,insp_c');
+    expect(DEMO_DEFAULTS.runs).toBe(1);
     // name the first differing line instead of dumping a 1 MB diff
     const first = fresh.findIndex((line, i) => line !== lines[i]);
     expect(first === -1 ? null : { line: first + 1, shipped: lines[first], fresh: fresh[first] }).toBeNull();

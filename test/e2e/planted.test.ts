@@ -26,7 +26,7 @@ function slice(r: Report, label: string): SliceReport {
 const flaggedLabels = (r: Report) => r.slices.filter((s) => s.flagged).map((s) => s.label);
 
 describe('shipped demo sample (data-samples/, 20,000 rows, seed 24)', () => {
-  const files = ['data-samples/solder-joints.csv', '--floor-table', 'data-samples/inspector-floors.csv'];
+  const files = ['data-samples/solder-joints.csv', '--floor-table', 'data-samples/inspector-floors.csv', '--annotators', 'insp_a,insp_b,insp_c'];
   let r: Report;
   beforeAll(async () => {
     r = await report(files);
@@ -64,7 +64,7 @@ describe('a larger demo (100,000 rows, seed 101): recovery and no flags where no
     dir = mkdtempSync(join(tmpdir(), 'floorgap-planted-'));
     const made = await runCli(['demo', '--out', dir, '--rows', '100000', '--seed', '101']);
     expect(made.code).toBe(0);
-    files = [join(dir, 'solder-joints.csv'), '--floor-table', join(dir, 'inspector-floors.csv')];
+    files = [join(dir, 'solder-joints.csv'), '--floor-table', join(dir, 'inspector-floors.csv'), '--annotators', 'insp_a,insp_b,insp_c'];
   });
   afterAll(() => rmSync(dir, { recursive: true, force: true }));
 

@@ -9,7 +9,7 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import type { Report } from '../../src/triage/types.js';
 import { runCli } from '../helpers/run-cli.js';
 
-const SAMPLE = ['data-samples/solder-joints.csv', '--floor-table', 'data-samples/inspector-floors.csv'];
+const SAMPLE = ['data-samples/solder-joints.csv', '--floor-table', 'data-samples/inspector-floors.csv', '--annotators', 'insp_a,insp_b,insp_c'];
 
 describe('report formats on the demo sample', () => {
   it('json: the documented contract', async () => {
@@ -70,11 +70,11 @@ describe('report formats on the demo sample', () => {
   });
 
   it('--floor 0.02 gives every row that floor (source default), and without a floor a warning', async () => {
-    const r = await runCli(['data-samples/solder-joints.csv', '--floor', '0.02', '--format', 'json']);
+    const r = await runCli(['data-samples/solder-joints.csv', '--floor', '0.02', '--slice-cols', 'station,package', '--format', 'json']);
     const rep = JSON.parse(r.stdout) as Report;
     expect(rep.overall.floor.value).toBeCloseTo(0.02, 12); // a sum of 8,026 × 0.02 divided back: equal to 1e-12
     expect(rep.overall.floor.source).toBe('default');
-    const none = JSON.parse((await runCli(['data-samples/solder-joints.csv', '--format', 'json'])).stdout) as Report;
+    const none = JSON.parse((await runCli(['data-samples/solder-joints.csv', '--slice-cols', 'station', '--format', 'json'])).stdout) as Report;
     expect(none.warnings.join(' ')).toMatch(/against perfection/);
   });
 });

@@ -14,6 +14,7 @@ function thrown(f: () => unknown): FloorgapError {
 }
 
 const NONE: Roles = {
+  run: null,
   label: null,
   pred: null,
   error: null,

@@ -21,6 +21,8 @@ export interface RowsSpec {
   readonly entry?: number;
   /** rows behind that entry's human estimate; default null (floor taken as exact) */
   readonly floorN?: number | null;
+  /** labelling cost of every row from a cost table; default: none (the rows cost --label-cost) */
+  readonly cost?: number;
 }
 
 /**
@@ -39,6 +41,7 @@ export function cell(key: Readonly<Record<string, string | null>>, split: Split,
   return {
     key: { ...key },
     split,
+    run: null,
     rows: spec.rows,
     weight: spec.rows * w,
     weightSq: spec.rows * w * w,
@@ -46,6 +49,9 @@ export function cell(key: Readonly<Record<string, string | null>>, split: Split,
     floorSum: spec.rows * w * (spec.floor ?? 0),
     floorEntry: spec.entry ?? -1,
     floorN: spec.floorN ?? null,
+    costSum: spec.cost === undefined ? 0 : spec.rows * w * spec.cost,
+    costWeight: spec.cost === undefined ? 0 : spec.rows * w,
+    audit: null,
   };
 }
 

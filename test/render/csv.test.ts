@@ -60,9 +60,13 @@ describe('renderCsv', () => {
     expect(records[0]).toEqual(CSV_COLUMNS);
     expect(records[0].slice(0, 12)).toEqual([
       'rank', 'label', 'flagged', 'focus', 'rows_train', 'rows_train_dev', 'rows_dev', 'rows_test',
-      'share', 'floor', 'floor_source', 'err_train',
+      'share', 'floor', 'floor_lo', 'floor_hi',
     ]);
-    expect(records[0].slice(-6)).toEqual(['dev_overfit_q', 'headroom', 'headroom_bias', 'headroom_variance', 'headroom_mismatch', 'yield']);
+    expect(records[0].slice(12, 17)).toEqual(['floor_source', 'floor_raw', 'floor_audited', 'kappa', 'err_train']);
+    expect(records[0].slice(-10)).toEqual([
+      'dev_overfit_q', 'headroom', 'headroom_bias', 'headroom_variance', 'headroom_mismatch', 'yield',
+      'cost', 'labels_to_halve', 'curve_beta', 'curve_source',
+    ]);
     expect(records).toHaveLength(1 + 1 + 7);
     for (const r of records) expect(r).toHaveLength(CSV_COLUMNS.length);
     expect(records.slice(1).map((r) => r[1])).toEqual([

@@ -20,7 +20,7 @@ describe('floor source', () => {
   it('default: every row took the default floor (entry −1); n, lo, hi null', () => {
     // fixture (hand-built): invented numbers
     const s = one({ train: { rows: 1000, errors: 50, floor: 0.03 }, dev: { rows: 1000, errors: 60, floor: 0.03 } });
-    expect(s.floor).toEqual({ value: 0.03, dev: 0.03, lo: null, hi: null, n: null, source: 'default' });
+    expect(s.floor).toEqual({ value: 0.03, dev: 0.03, lo: null, hi: null, n: null, source: 'default', rule: null, raw: null, audited: null });
   });
 
   it('table: every row took a floor-table entry (no n → exact)', () => {

@@ -9,6 +9,7 @@ export interface DemoArgs {
   out: string;
   rows: number;
   seed: number;
+  runs: number;
   force: boolean;
 }
 
@@ -17,16 +18,17 @@ export function demoOptions<T>(y: Argv<T>) {
     .option('out', { type: 'string', demandOption: true, describe: 'folder to write the demo files into' })
     .option('rows', { type: 'number', default: DEMO_DEFAULTS.rows, describe: 'rows to generate' })
     .option('seed', { type: 'number', default: DEMO_DEFAULTS.seed, describe: 'random seed' })
+    .option('runs', { type: 'number', default: 1, describe: 'training runs with doubling training sizes (adds a run column)' })
     .option('force', { type: 'boolean', default: false, describe: 'overwrite existing files' });
 }
 
 /** `floorgap demo`: writes the seeded solder-joint prediction table and the inspector floor table. */
 export async function runDemo(args: DemoArgs, io: CliIO): Promise<number> {
-  const result = await writeDemo(args.out, { rows: args.rows, seed: args.seed, overwrite: args.force });
+  const result = await writeDemo(args.out, { rows: args.rows, seed: args.seed, runs: args.runs, overwrite: args.force });
   await writeOut(
     io,
     `wrote ${result.rows} rows to ${sanitize(result.table)} and floors to ${sanitize(result.floors)}\n` +
-      `next: floorgap report ${sanitize(result.table)} --floor-table ${sanitize(result.floors)}\n`,
+      `next: floorgap report ${sanitize(result.table)} --floor-table ${sanitize(result.floors)} --annotators insp_a,insp_b,insp_c\n`,
   );
   return 0;
 }
