@@ -1,9 +1,9 @@
 /**
  * Statistics for floorgap: normal distribution helpers, effective sample size, confidence
- * intervals for proportions and their differences, tests of proportions, false discovery
- * rate adjustments, inter-rater agreement (Cohen's and Fleiss' kappa), an empirical-Bayes
- * Beta prior for many small proportions, and power-law learning-curve fits. All functions are
- * pure and throw `RangeError` on NaN or out-of-domain input.
+ * intervals for proportions and their differences, tests of proportions (including McNemar's
+ * test for paired outcomes), false discovery rate adjustments, inter-rater agreement (Cohen's
+ * and Fleiss' kappa), an empirical-Bayes Beta prior for many small proportions, and power-law
+ * learning-curve fits. All functions are pure and throw `RangeError` on NaN or out-of-domain input.
  */
 export { normalQuantile, normalCdf, zForConfidence } from './normal.js';
 export { kishEffectiveN } from './kish-effective-n.js';
@@ -13,6 +13,8 @@ export { newcombeInterval } from './newcombe-interval.js';
 export { binomialTestTwoSided } from './binomial-test.js';
 export { proportionTest } from './proportion-test.js';
 export { twoProportionTest } from './two-proportion-test.js';
+export type { McNemarResult } from './mcnemar-test.js';
+export { mcnemarTest } from './mcnemar-test.js';
 export { benjaminiHochberg } from './benjamini-hochberg.js';
 export { benjaminiYekutieli } from './benjamini-yekutieli.js';
 export { cohensKappa } from './cohens-kappa.js';

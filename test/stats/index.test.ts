@@ -14,6 +14,7 @@ describe('src/stats/index.ts', () => {
       'binomialTestTwoSided',
       'proportionTest',
       'twoProportionTest',
+      'mcnemarTest',
       'benjaminiHochberg',
       'benjaminiYekutieli',
       'cohensKappa',
@@ -35,6 +36,12 @@ describe('src/stats/index.ts', () => {
     // contract (fitPowerLaw): fewer than two distinct n -> null
     const fit: stats.PowerLawFit | null = stats.fitPowerLaw([{ n: 10, g: 0.1 }]);
     expect(fit).toBeNull();
+  });
+
+  it('exports the McNemarResult type', () => {
+    // type-level check (compiled by tsc -p tsconfig.test.json); contract (mcnemarTest): no discordant pairs -> p = 1
+    const result: stats.McNemarResult = stats.mcnemarTest(0, 0);
+    expect(result).toEqual({ statistic: null, p: 1, method: 'exact' });
   });
 
   it('exports the Interval type', () => {
