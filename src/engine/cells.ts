@@ -59,6 +59,29 @@ function inList(words: readonly string[]): string {
   return `(${words.map(literal).join(', ')})`;
 }
 
+/**
+ * SQL for a row's error (1 or 0): label ≠ pred as trimmed strings, or the 0/1 error column (or the
+ * `correct` column inverted); with conditions for a value that is not 0/1 and for an unlabelled row.
+ */
+export function errorSql(roles: Pick<Roles, 'label' | 'pred' | 'error' | 'errorIsCorrect'>): { error: string; badError: string; unlabelled: string } {
+  if (roles.error) {
+    const e = `lower(${textSql(roles.error)})`;
+    const one = roles.errorIsCorrect ? FALSE_WORDS : TRUE_WORDS;
+    return {
+      error: `CASE WHEN ${e} IN ${inList(one)} THEN 1 ELSE 0 END`,
+      badError: `(${e} IS NOT NULL AND ${e} NOT IN ${inList([...TRUE_WORDS, ...FALSE_WORDS])})`,
+      unlabelled: `(${e} IS NULL)`,
+    };
+  }
+  const label = textSql(roles.label!);
+  const pred = textSql(roles.pred!);
+  return {
+    error: `CASE WHEN ${label} = ${pred} THEN 0 ELSE 1 END`,
+    badError: 'FALSE',
+    unlabelled: `(${label} IS NULL OR ${pred} IS NULL)`,
+  };
+}
+
 /** SQL pieces that compute a row's weight, error, validity and floor entry. */
 export function rowSql(plan: CellPlan): {
   weight: string;
@@ -71,22 +94,7 @@ export function rowSql(plan: CellPlan): {
   const badWeight = roles.weight ? `(${weight} IS NULL OR ${weight} < 0 OR isnan(${weight}) OR isinf(${weight}))` : 'FALSE';
   const scoreNum = roles.score ? `TRY_CAST(${textSql(roles.score)} AS DOUBLE)` : null;
   const badScore = roles.score ? `(${textSql(roles.score)} IS NOT NULL AND (${scoreNum} IS NULL OR isnan(${scoreNum}) OR isinf(${scoreNum})))` : 'FALSE';
-  let error: string;
-  let badError: string;
-  let unlabelled: string;
-  if (roles.error) {
-    const e = `lower(${textSql(roles.error)})`;
-    const [one, zero] = roles.errorIsCorrect ? [FALSE_WORDS, TRUE_WORDS] : [TRUE_WORDS, FALSE_WORDS];
-    error = `CASE WHEN ${e} IN ${inList(one)} THEN 1 ELSE 0 END`;
-    badError = `(${e} IS NOT NULL AND ${e} NOT IN ${inList([...TRUE_WORDS, ...FALSE_WORDS])})`;
-    unlabelled = `(${e} IS NULL)`;
-  } else {
-    const label = textSql(roles.label!);
-    const pred = textSql(roles.pred!);
-    error = `CASE WHEN ${label} = ${pred} THEN 0 ELSE 1 END`;
-    badError = 'FALSE';
-    unlabelled = `(${label} IS NULL OR ${pred} IS NULL)`;
-  }
+  const { error, badError, unlabelled } = errorSql(roles);
   const status = `CASE WHEN ${badWeight} THEN ${literal(BAD.weight)} WHEN ${badScore} THEN ${literal(BAD.score)} WHEN ${badError} THEN ${literal(BAD.error)} WHEN ${unlabelled} THEN ${literal(BAD.unlabelled)} ELSE COALESCE(${textSql(plan.splitColumn)}, '') END`;
   return { weight, error, status, floorEntry: floorEntrySql(plan.floorEntries) };
 }
@@ -119,7 +127,8 @@ function auditSql(plan: CellPlan): { level1: string[]; level2: string[]; sums: s
   if (anns.length === 0) return { level1: [], level2: [], sums: [] };
   const label = textSql(plan.roles.label!);
   const a = anns.map((_, j) => `fg_a${j}`);
-  const level1 = [...anns.map((col, j) => `${textSql(col)} AS fg_a${j}`), `${label} AS fg_lab`];
+  // a row without a true class (possible with an error column) cannot be scored: its labels are left out
+  const level1 = [...anns.map((col, j) => `CASE WHEN ${label} IS NULL THEN NULL ELSE ${textSql(col)} END AS fg_a${j}`), `${label} AS fg_lab`];
   // c_j: how many annotators gave the same label as annotator j (j included); 0 when j gave none
   const level2 = [
     ...a.map((aj, j) => `CASE WHEN ${aj} IS NULL THEN 0 ELSE ${a.map((ai) => `CASE WHEN ${ai} = ${aj} THEN 1 ELSE 0 END`).join(' + ')} END AS fg_c${j}`),

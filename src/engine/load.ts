@@ -87,6 +87,12 @@ export async function loadCells(duck: Duck, options: LoadOptions): Promise<Loade
     throw error(`${source.where}: --annotators compares human labels with the true class, so it needs a label column (--label)`);
   }
   const roleCols = [...roleColumns(roles), ...annotators];
+  for (const [flag, names] of [['--slice-cols', options.sliceCols], ['--by', options.by]] as const) {
+    for (const name of names ?? []) {
+      if (name === roles.run) throw error(`${flag} names the run column "${name}"; runs are compared by the learning curve, never sliced`);
+      if (annotators.includes(name)) throw error(`${flag} names the annotator column "${name}"; annotator columns give floors, not slices`);
+    }
+  }
   const chosen = chooseSliceColumns(profile, roleCols, options.sliceCols, source.where);
   const by = options.by ? resolveBy(options.by, dataColumns, roles, source.where) : null;
   let floorTable: FloorTable | null = null;
@@ -160,7 +166,7 @@ export async function loadCells(duck: Duck, options: LoadOptions): Promise<Loade
       if (!used.has(i)) warnings.push(`${floorTable.path}: line ${e.line} (${describeKey(e.keys)}) matches no row`);
     }
   }
-  if (costTable) warnings.push(...unmatchedEntries(cells, costTable));
+  if (costTable) warnings.push(...unmatchedEntries(cells, costTable, columns));
   if (annotators.length > 0 && !cells.some((c) => (c.audit?.audited ?? 0) > 0)) {
     warnings.push(`no row has a label in the annotator columns ${annotators.join(', ')}: floors fall back to --floor`);
   }
@@ -262,11 +268,14 @@ async function auditClasses(duck: Duck, columns: readonly string[], where: strin
 
 /**
  * Warnings for cost-table entries whose key matches no cell (judged from the cells, no extra scan;
- * an entry whose key columns no cell holds together is not judged).
+ * an entry whose key columns no cell holds together, or that names a binned column, is not judged).
  */
-function unmatchedEntries(cells: readonly Cell[], table: FloorTable): string[] {
+function unmatchedEntries(cells: readonly Cell[], table: FloorTable, columns: readonly SliceColumn[]): string[] {
+  const binned = new Set(columns.filter((c) => c.kind === 'binned').map((c) => c.name));
   return table.entries.flatMap((e) => {
     const keys = Object.entries(e.keys);
+    // cells hold bin labels for binned columns, not the values an entry names: not judged
+    if (keys.some(([k]) => binned.has(k))) return [];
     const judged = cells.filter((c) => keys.every(([k]) => c.key[k] !== null && c.key[k] !== undefined));
     if (judged.length === 0) return [];
     const hit = judged.some((c) => keys.every(([k, v]) => c.key[k] === v));

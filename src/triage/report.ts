@@ -73,14 +73,18 @@ export function buildReport(
   // annotator floors: one prior per grouping, fitted across its slices
   const priors = new Map<string, BetaPrior>();
   let overallPrior: BetaPrior | null = null;
-  if (overall.audit) {
+  // without a usable audit (no labels, or no row with two labels for the panel rule) there is no
+  // annotator floor at all: the slices keep the table or --floor
+  const overallCounts = overall.audit ? ruleCounts(overall.audit, options.floorRule) : null;
+  if (overallCounts) {
     for (const g of groups) {
       const data = g.slices.flatMap((s) => (s.audit ? [ruleCounts(s.audit, options.floorRule)] : [])).filter((x): x is { x: number; n: number } => x !== null);
+      if (data.length === 0) continue;
       const prior = fitBetaPrior(data);
       overallPrior ??= prior;
       for (const s of g.slices) priors.set(sliceId(s.key), prior);
     }
-    overallPrior ??= fitBetaPrior([ruleCounts(overall.audit, options.floorRule)].filter((x): x is { x: number; n: number } => x !== null));
+    overallPrior ??= fitBetaPrior([overallCounts]);
   }
   const extras = (s: SliceStats): SliceExtras => {
     const id = sliceId(s.key);
@@ -107,6 +111,9 @@ export function buildReport(
     runs,
     overall: result.overall,
     slices: result.slices,
-    warnings: context.warnings,
+    warnings:
+      overall.audit && overall.audit.audited > 0 && !overallCounts
+        ? [...context.warnings, `the ${options.floorRule} rule needs rows with at least two annotator labels and there are none: floors fall back to the floor table or --floor`]
+        : context.warnings,
   };
 }
