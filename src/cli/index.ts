@@ -3,7 +3,9 @@ import { FloorgapError } from '../util/error.js';
 import { readConfig } from '../io/config.js';
 import { sanitize } from '../render/index.js';
 import { VERSION } from '../version.js';
+import { checkOptions, runCheck, type CheckArgs } from './commands/check.js';
 import { demoOptions, runDemo, type DemoArgs } from './commands/demo.js';
+import { exportOptions, runExport, type ExportArgs } from './commands/export.js';
 import { reportOptions, runReport, type ReportArgs } from './commands/report.js';
 import type { CliIO } from './io.js';
 
@@ -45,6 +47,22 @@ export async function main(argv: readonly string[], io: CliIO): Promise<number> 
         (y) => reportOptions(y),
         async (args) => {
           code = await runReport(args as unknown as ReportArgs, io);
+        },
+      )
+      .command(
+        'check [files..]',
+        'exit 1 when a slice breaks a limit or got worse than a baseline (for pipelines)',
+        (y) => checkOptions(y),
+        async (args) => {
+          code = await runCheck(args as unknown as CheckArgs, io);
+        },
+      )
+      .command(
+        'export [files..]',
+        'write the rows behind the chosen slices (flagged by default) to CSV, JSON Lines or Parquet',
+        (y) => exportOptions(y),
+        async (args) => {
+          code = await runExport(args as unknown as ExportArgs, io, argv);
         },
       )
       .command(

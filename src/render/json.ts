@@ -20,7 +20,7 @@ function finite(_key: string, value: unknown): unknown {
  * @example
  * JSON.parse(renderJson(report)).schema; // => 'floorgap.report/1'
  */
-export function renderJson(report: Report): string {
+export function renderJson(report: Report | object): string {
   const json = JSON.stringify(report, finite, 2).replace(
     UNSAFE_IN_STRINGS,
     (ch) => `\\u${ch.charCodeAt(0).toString(16).padStart(4, '0')}`,

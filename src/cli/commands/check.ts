@@ -1,0 +1,136 @@
+import { open, readFile } from 'node:fs/promises';
+import type { Argv } from 'yargs';
+import { pairedCounts } from '../../engine/paired.js';
+import { writeAtomic } from '../../io/write-atomic.js';
+import { renderCheckText } from '../../render/check-text.js';
+import { renderJunit } from '../../render/junit.js';
+import { renderJson } from '../../render/json.js';
+import { mcnemarTest } from '../../stats/index.js';
+import { checkLimits, checkResult, compareReports, comparePaired, LIMIT_NAMES, type Comparison, type Limits } from '../../triage/check.js';
+import type { Report } from '../../triage/types.js';
+import { error } from '../../util/error.js';
+import { analyzeWith, withDuck } from '../analyze.js';
+import type { CliIO } from '../io.js';
+import { useColor, writeOut } from '../io.js';
+import { analysisOptions, toLoadOptions, type AnalysisArgs } from '../options.js';
+
+export interface CheckArgs extends AnalysisArgs {
+  'max-bias'?: number;
+  'max-variance'?: number;
+  'max-mismatch'?: number;
+  'max-dev-error'?: number;
+  strict: boolean;
+  baseline?: string;
+  format: 'text' | 'json';
+  junit?: string;
+}
+
+export function checkOptions<T>(y: Argv<T>) {
+  return analysisOptions(y)
+    .option('max-bias', { type: 'number', describe: 'largest avoidable bias a slice may have (fraction)', group: 'Limits:' })
+    .option('max-variance', { type: 'number', describe: 'largest variance (fraction)', group: 'Limits:' })
+    .option('max-mismatch', { type: 'number', describe: 'largest mismatch (fraction)', group: 'Limits:' })
+    .option('max-dev-error', { type: 'number', describe: 'largest dev error (fraction)', group: 'Limits:' })
+    .option('strict', { type: 'boolean', default: false, describe: 'judge point values, not the interval lower end', group: 'Limits:' })
+    .option('baseline', { type: 'string', describe: 'a saved JSON report, or the baseline model\'s prediction table (paired by id)', group: 'Limits:' })
+    .option('format', { alias: 'f', choices: ['text', 'json'] as const, default: 'text' as const, describe: 'output format', group: 'Output:' })
+    .option('junit', { type: 'string', describe: 'also write a JUnit XML file (one test case per slice and limit)', group: 'Output:' });
+}
+
+/** True when the file is a floorgap JSON report (rather than a prediction table). */
+async function isReport(path: string): Promise<boolean> {
+  const handle = await open(path, 'r').catch((e: NodeJS.ErrnoException) => {
+    throw error(`${path}: ${e.code === 'ENOENT' ? 'no such file' : `cannot read (${e.code})`}`);
+  });
+  try {
+    const buf = Buffer.alloc(512);
+    const { bytesRead } = await handle.read(buf, 0, 512, 0);
+    const head = buf.subarray(0, bytesRead).toString('utf8');
+    return /^\s*\{\s*"schema"\s*:\s*"floorgap\.report\//.test(head);
+  } finally {
+    await handle.close();
+  }
+}
+
+async function readReport(path: string): Promise<Report> {
+  const text = await readFile(path, 'utf8');
+  let value: unknown;
+  try {
+    value = JSON.parse(text);
+  } catch (e) {
+    throw error(`${path}: not valid JSON (${(e as Error).message}); expected a report saved with floorgap report --format json`, e);
+  }
+  const r = value as Partial<Report>;
+  if (r.schema !== 'floorgap.report/1' || !r.overall || !Array.isArray(r.slices)) {
+    throw error(`${path}: not a floorgap.report/1 JSON report`);
+  }
+  return r as Report;
+}
+
+function limitsOf(args: CheckArgs): Limits {
+  const limits: Record<string, number> = {};
+  for (const name of LIMIT_NAMES) {
+    const v = args[name];
+    if (v === undefined) continue;
+    if (!Number.isFinite(v) || v < -1 || v > 1) throw error(`--${name} ${v}: expected a fraction (e.g. 0.05 for 5 points)`);
+    limits[name] = v;
+  }
+  return limits;
+}
+
+/**
+ * `floorgap check`: exit 0 when every slice is within the limits and none regressed against the
+ * baseline, 1 when not, 2 on bad usage or input.
+ */
+export async function runCheck(args: CheckArgs, io: CliIO): Promise<number> {
+  const limits = limitsOf(args);
+  if (Object.keys(limits).length === 0 && !args.baseline) {
+    throw error('check needs at least one limit (--max-bias, --max-variance, --max-mismatch, --max-dev-error) or a --baseline');
+  }
+  const result = await withDuck(args, async (duck) => {
+    const { report, loaded } = await analyzeWith(duck, args);
+    const warnings = [...report.warnings];
+    let comparisons: Comparison[] = [];
+    let baseline: { path: string; kind: 'report' | 'paired' } | null = null;
+    if (args.baseline) {
+      if (await isReport(args.baseline)) {
+        const before = await readReport(args.baseline);
+        const same = JSON.stringify(before.by) === JSON.stringify(report.by);
+        if (!same) {
+          const show = (b: readonly string[] | null) => (b ? `--by ${b.join(',')}` : 'the overview (no --by)');
+          throw error(`${args.baseline}: the baseline report is grouped by ${show(before.by)}, this check by ${show(report.by)}; use the same grouping`);
+        }
+        comparisons = compareReports(report, before, report.fdr, report.fdr_method);
+        baseline = { path: args.baseline, kind: 'report' };
+      } else {
+        const groupings = report.by ? [[...report.by]] : loaded.overviewColumns.map((c) => [c]);
+        const { sums, warnings: more } = await pairedCounts(duck, loaded, args.baseline, toLoadOptions(args).roles, groupings, args.where ?? null, report.run);
+        warnings.push(...more);
+        const thinByKey = new Map([report.overall, ...report.slices].map((s) => [JSON.stringify(Object.entries(s.key).sort()), s]));
+        const counts = sums
+          .map((s) => {
+            const slice = thinByKey.get(JSON.stringify(Object.entries(s.key).sort()));
+            return slice ? { ...s, label: slice.label, thin: slice.focus === 'thin', rank: slice.rank } : null;
+          })
+          .filter((s): s is NonNullable<typeof s> => s !== null)
+          .sort((a, b) => a.rank - b.rank);
+        comparisons = comparePaired(counts, (b, c) => mcnemarTest(b, c), report.fdr, report.fdr_method);
+        baseline = { path: args.baseline, kind: 'paired' };
+      }
+    }
+    return checkResult({
+      strict: args.strict,
+      fdr: report.fdr,
+      fdr_method: report.fdr_method,
+      limits,
+      checks: checkLimits(report, limits, args.strict),
+      baseline,
+      comparisons,
+      warnings,
+      sliceCount: report.slices.length,
+    });
+  });
+  if (args.junit) await writeAtomic(args.junit, async (put) => put(renderJunit(result)), { overwrite: true });
+  await writeOut(io, args.format === 'json' ? renderJson(result) : renderCheckText(result, useColor(io)));
+  return result.passed ? 0 : 1;
+}

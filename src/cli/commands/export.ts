@@ -1,0 +1,219 @@
+import type { Argv } from 'yargs';
+import { EXPORT_COLUMNS, exportCountSql, exportSql, type ExportQuery } from '../../engine/export-sql.js';
+import { openSource } from '../../engine/source.js';
+import { normalizeSplit } from '../../engine/roles.js';
+import { SPLITS, type Split } from '../../engine/types.js';
+import { exportFormatFor, checkOutput, fingerprint, manifestPathFor, writeExport, type ExportHooks } from '../../io/export-rows.js';
+import { sanitize } from '../../render/index.js';
+import { namedGrouping, parseSliceKey, selectSlices, type ChosenSlice, type NamedSlice, type Selection } from '../../triage/select-slices.js';
+import { VERSION } from '../../version.js';
+import { error } from '../../util/error.js';
+import { analyzeWith, withDuck } from '../analyze.js';
+import type { CliIO } from '../io.js';
+import { writeOut } from '../io.js';
+import { analysisOptions, toLoadOptions, toTriageOptions, type AnalysisArgs } from '../options.js';
+
+/** The manifest's schema name; it changes when a field is removed or changes meaning. */
+export const EXPORT_SCHEMA = 'floorgap.export/1';
+
+export interface ExportArgs extends AnalysisArgs {
+  out: string;
+  top?: number;
+  slice?: string | string[];
+  splits: string;
+  'errors-only': boolean;
+  'limit-per-slice'?: number;
+  raw: boolean;
+  force: boolean;
+}
+
+/** The analysis options of `report` plus export's own. */
+export function exportOptions<T>(y: Argv<T>) {
+  return analysisOptions(y)
+    .option('out', { alias: 'o', type: 'string', demandOption: true, describe: 'file to write: .csv (default), .jsonl/.ndjson or .parquet; F.manifest.json goes beside it', group: 'Export:' })
+    .option('top', { type: 'number', describe: "the first N slices in the report's order (default: the flagged slices)", group: 'Export:' })
+    .option('slice', { type: 'string', describe: 'a slice by its key, e.g. "station=S5,lighting=dome" (repeatable; \\, for a comma in a value)', group: 'Export:' })
+    .option('splits', { type: 'string', default: 'train,dev', describe: 'splits whose rows are written: train, train_dev, dev, test', group: 'Export:' })
+    .option('errors-only', { type: 'boolean', default: false, describe: "only rows the model got wrong", group: 'Export:' })
+    .option('limit-per-slice', { type: 'number', describe: 'at most N rows per slice (likely label errors first)', group: 'Export:' })
+    .option('raw', { type: 'boolean', default: false, describe: "write text as it is (no ' before formula-like cells)", group: 'Export:' })
+    .option('force', { type: 'boolean', default: false, describe: 'overwrite an existing file and manifest', group: 'Export:' });
+}
+
+function wholePositive(name: string, v: number | undefined): number | null {
+  if (v === undefined) return null;
+  if (!Number.isInteger(v) || v <= 0) throw error(`--${name} ${v}: expected a whole number > 0`);
+  return v;
+}
+
+/**
+ * Parses `--splits`: canonical names or accepted spellings, comma-separated, returned in split order.
+ * @param text e.g. `dev,train`
+ * @returns the splits, each once
+ * @throws FloorgapError for an unknown split or an empty list
+ * @example
+ * parseSplits('val,train'); // => ['train', 'dev']
+ */
+export function parseSplits(text: string): Split[] {
+  const out: Split[] = [];
+  for (const raw of String(text).split(',').map((s) => s.trim()).filter(Boolean)) {
+    const s = normalizeSplit(raw);
+    if (s === null) throw error(`--splits ${text}: "${raw}" is not a split; expected some of ${SPLITS.join(', ')}`);
+    if (!out.includes(s)) out.push(s);
+  }
+  if (out.length === 0) throw error(`--splits "${text}": expected some of ${SPLITS.join(', ')}, comma-separated`);
+  return SPLITS.filter((s) => out.includes(s));
+}
+
+function asList(v: string | string[] | undefined): string[] {
+  if (v === undefined) return [];
+  return (Array.isArray(v) ? v : [v]).map(String);
+}
+
+/** The selection the flags ask for, and the `--by` the analysis must use for it. */
+function selectionOf(args: ExportArgs): { selection: Selection; by: string | undefined; named: NamedSlice[] } {
+  const named = asList(args.slice).map(parseSliceKey);
+  const top = wholePositive('top', args.top);
+  if (named.length > 0 && top !== null) throw error('--top and --slice choose slices in two ways; give one of them');
+  if (named.length === 0) return { selection: top === null ? { kind: 'flagged' } : { kind: 'top', n: top }, by: args.by, named };
+  const grouping = namedGrouping(named);
+  if (args.by !== undefined) {
+    const by = String(args.by).split(',').map((s) => s.trim()).filter(Boolean);
+    const bad = named.find((s) => s.pairs.length !== by.length || !s.pairs.every(([c]) => by.includes(c)));
+    if (bad) throw error(`--slice "${bad.text}" does not name the --by columns ${by.join(', ')}; a named slice needs no --by (its columns define the grouping)`);
+    return { selection: { kind: 'named', slices: named }, by: args.by, named };
+  }
+  return { selection: { kind: 'named', slices: named }, by: grouping ? grouping.join(',') : undefined, named };
+}
+
+/** The options that shaped the report and so the selection, as given (defaults filled in). */
+const SHAPING: readonly (keyof AnalysisArgs)[] = [
+  'where', 'label', 'pred', 'error', 'split', 'id', 'score', 'weight', 'run-column', 'run', 'by', 'slice-cols', 'bins', 'max-cells',
+  'floor', 'floor-table', 'annotators', 'floor-rule', 'cost-table', 'confidence', 'fdr', 'fdr-method', 'min-rows', 'floor-margin',
+  'min-headroom', 'curve-exponent', 'label-cost',
+];
+
+/**
+ * `floorgap export`: the rows behind the chosen slices of the report, with `fg_` columns, to a file
+ * written by DuckDB, and a manifest beside it.
+ * @param args parsed flags
+ * @param io stdout/stderr
+ * @param argv the command line as given (recorded in the manifest)
+ * @param hooks optional steps inside the writer (tests use them to inject failures)
+ */
+export async function runExport(args: ExportArgs, io: CliIO, argv: readonly string[], hooks?: ExportHooks): Promise<number> {
+  const out = String(args.out);
+  if (out.trim() === '') throw error('--out: expected a file name, e.g. --out rows.csv');
+  const format = exportFormatFor(out);
+  const splits = parseSplits(args.splits);
+  const limit = wholePositive('limit-per-slice', args['limit-per-slice']);
+  const { selection, by, named } = selectionOf(args);
+  const analysisArgs: AnalysisArgs = { ...args, by };
+  toTriageOptions(analysisArgs); // bad options fail before the engine starts
+  const loadOptions = toLoadOptions(analysisArgs);
+  await checkOutput(out, args.force);
+
+  return withDuck(analysisArgs, async (duck) => {
+    const source = await openSource(duck, loadOptions.source);
+    if (source.columns.includes('fg_rows') && source.columns.includes('fg_errors')) {
+      throw error(`${source.where}: holds ready-made cells (fg_rows, fg_errors, …); export writes rows, so give the prediction table itself`);
+    }
+    for (const c of source.columns) {
+      if ((EXPORT_COLUMNS as readonly string[]).includes(c) || c.startsWith('__fg_')) {
+        throw error(`${source.where}: column "${c}" clashes with a column export adds (${EXPORT_COLUMNS.join(', ')}); rename it`);
+      }
+    }
+    for (const s of named) {
+      for (const [c] of s.pairs) {
+        if (!source.columns.includes(c) && c !== 'label' && c !== 'pred') {
+          throw error(`--slice "${s.text}": no column "${c}"; the columns are ${source.columns.map((x) => JSON.stringify(x)).join(', ')}`);
+        }
+      }
+    }
+    const { report, loaded } = await analyzeWith(duck, analysisArgs);
+    const resolve = (c: string) => (source.columns.includes(c) ? c : c === 'label' ? loaded.roles.label ?? c : c === 'pred' ? loaded.roles.pred ?? c : c);
+    const resolved: Selection =
+      selection.kind === 'named'
+        ? { kind: 'named', slices: selection.slices.map((s) => ({ text: s.text, pairs: s.pairs.map(([c, v]) => [resolve(c), v] as const) })) }
+        : selection;
+    const chosen = selectSlices(report, resolved);
+    const query: ExportQuery = {
+      columns: loaded.source.columns,
+      plan: { roles: loaded.roles, splitColumn: loaded.roles.split ?? loaded.source.splitColumn!, where: loadOptions.where, annotators: loaded.annotators },
+      sliceColumns: loaded.columns,
+      slices: chosen.map((c) => ({ key: c.slice.key, label: c.slice.label, focus: c.slice.focus, rank: c.slice.rank, reason: c.reason })),
+      splits,
+      errorsOnly: args['errors-only'],
+      limitPerSlice: limit,
+      neutralize: !args.raw,
+      run: report.run !== null && loaded.roles.run ? { column: loaded.roles.run, value: report.run } : null,
+    };
+    let total = 0;
+    const manifest = async () => {
+      const counts = await duck.all(exportCountSql(query));
+      total = counts.reduce((sum, r) => sum + Number(r.rows), 0);
+      const perSplit = (pick: (r: Record<string, unknown>) => number) =>
+        Object.fromEntries(splits.map((s) => [s, pick(counts.find((r) => r.split === s) ?? {})]));
+      const inputs = [];
+      for (const i of loaded.source.inputs) inputs.push({ ...(await fingerprint(i.path)), ...(i.split ? { split: i.split } : {}) });
+      const tables: Record<string, unknown> = {};
+      if (loadOptions.floorTable) tables.floor_table = await fingerprint(loadOptions.floorTable);
+      if (loadOptions.costTable) tables.cost_table = await fingerprint(loadOptions.costTable);
+      return {
+        schema: EXPORT_SCHEMA,
+        file: out,
+        format,
+        created: new Date().toISOString(),
+        version: VERSION,
+        argv: ['floorgap', ...argv],
+        selection: {
+          mode: selection.kind,
+          top: selection.kind === 'top' ? selection.n : null,
+          named: named.map((s) => s.text),
+          by: report.by,
+          splits,
+          errors_only: args['errors-only'],
+          limit_per_slice: limit,
+          raw: args.raw,
+          run: report.run,
+        },
+        options: Object.fromEntries(SHAPING.filter((k) => analysisArgs[k] !== undefined).map((k) => [k, analysisArgs[k]])),
+        slices: chosen.map((c, i) => manifestSlice(c, (r) => Number(r[`s${i}`] ?? 0), perSplit, selection)),
+        rows: { total, ...perSplit((r) => Number(r.rows ?? 0)) },
+        columns: [...loaded.source.columns, ...EXPORT_COLUMNS],
+        inputs,
+        ...tables,
+      };
+    };
+    const written = await writeExport(duck, { path: out, format, sql: exportSql(query), force: args.force, manifest, hooks });
+    if (chosen.length === 0) {
+      const why = selection.kind === 'flagged' ? 'no slice is flagged' : 'the report has no slices';
+      io.stderr.write(`floorgap: ${why}, so no rows were written; choose slices with --top N or --slice KEY\n`);
+    }
+    await writeOut(
+      io,
+      `wrote ${total} rows of ${chosen.length} slice${chosen.length === 1 ? '' : 's'} to ${sanitize(written.data)} (manifest ${sanitize(manifestPathFor(out))})\n`,
+    );
+    return 0;
+  });
+}
+
+function manifestSlice(
+  c: ChosenSlice,
+  count: (r: Record<string, unknown>) => number,
+  perSplit: (pick: (r: Record<string, unknown>) => number) => Record<string, number>,
+  selection: Selection,
+) {
+  const rows = perSplit(count);
+  return {
+    rank: c.slice.rank,
+    label: c.slice.label,
+    key: c.slice.key,
+    focus: c.slice.focus,
+    flagged: c.slice.flagged,
+    chosen: c.chosen === 'top' && selection.kind === 'top' ? `top ${selection.n}` : c.chosen,
+    named: c.named,
+    reason: c.reason,
+    rows: { total: Object.values(rows).reduce((a, b) => a + b, 0), ...rows },
+  };
+}
