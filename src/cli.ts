@@ -1,7 +1,7 @@
 #!/usr/bin/env node
 import { main } from './cli/index.js';
 
-const io = { stdout: process.stdout, stderr: process.stderr, env: process.env, cwd: process.cwd() };
+const io = { stdout: process.stdout, stderr: process.stderr, stdin: process.stdin, env: process.env, cwd: process.cwd() };
 main(process.argv.slice(2), io).then(
   (code) => {
     process.exitCode = code;

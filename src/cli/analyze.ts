@@ -1,7 +1,7 @@
 import { openDuck, type Duck } from '../engine/duck.js';
 import { loadCells, type Loaded } from '../engine/load.js';
-import { buildReport } from '../triage/report.js';
-import type { Report } from '../triage/types.js';
+import { buildReport, type ReportContext } from '../triage/report.js';
+import type { Report, TriageOptions } from '../triage/types.js';
 import { VERSION } from '../version.js';
 import { error } from '../util/error.js';
 import { toLoadOptions, toTriageOptions, type AnalysisArgs } from './options.js';
@@ -10,6 +10,9 @@ import { toLoadOptions, toTriageOptions, type AnalysisArgs } from './options.js'
 export interface Analysis {
   readonly report: Report;
   readonly loaded: Loaded;
+  /** what buildReport was given besides the cells, so a regroup gives the same kind of report */
+  readonly context: ReportContext;
+  readonly options: TriageOptions;
 }
 
 /**
@@ -37,21 +40,16 @@ export async function analyzeWith(duck: Duck, args: AnalysisArgs): Promise<Analy
         : `--run ${triageOptions.run}: the input has no run column (name it with --run-column)`,
     );
   }
-  const report = buildReport(
-    loaded.cells,
-    loaded.by,
-    loaded.overviewColumns,
-    {
-      inputs: loaded.source.inputs.map((i) => ({ path: i.path, bytes: i.bytes, modified: i.modified, ...(i.split ? { split: i.split } : {}) })),
-      roles,
-      annotators: loaded.annotators,
-      where: loadOptions.where,
-      version: VERSION,
-      warnings: loaded.warnings,
-    },
-    triageOptions,
-  );
-  return { report, loaded };
+  const context: ReportContext = {
+    inputs: loaded.source.inputs.map((i) => ({ path: i.path, bytes: i.bytes, modified: i.modified, ...(i.split ? { split: i.split } : {}) })),
+    roles,
+    annotators: loaded.annotators,
+    where: loadOptions.where,
+    version: VERSION,
+    warnings: loaded.warnings,
+  };
+  const report = buildReport(loaded.cells, loaded.by, loaded.overviewColumns, context, triageOptions);
+  return { report, loaded, context, options: triageOptions };
 }
 
 /** Opens the engine with the user's resource settings and runs `use` on it, closing it afterwards. */

@@ -6,6 +6,7 @@ import { VERSION } from '../version.js';
 import { checkOptions, runCheck, type CheckArgs } from './commands/check.js';
 import { demoOptions, runDemo, type DemoArgs } from './commands/demo.js';
 import { exportOptions, runExport, type ExportArgs } from './commands/export.js';
+import { exploreOptions, runExplore, type ExploreArgs } from './commands/explore.js';
 import { reportOptions, runReport, type ReportArgs } from './commands/report.js';
 import type { CliIO } from './io.js';
 
@@ -42,11 +43,19 @@ export async function main(argv: readonly string[], io: CliIO): Promise<number> 
         throw new FloorgapError(`${msg}; see floorgap --help`, EXIT.usage);
       })
       .command(
-        ['report [files..]', '$0 [files..]'],
+        'report [files..]',
         'rank data slices by the error they could give back, against human-level floors',
         (y) => reportOptions(y),
         async (args) => {
           code = await runReport(args as unknown as ReportArgs, io);
+        },
+      )
+      .command(
+        ['explore [files..]', '$0 [files..]'],
+        'the interactive slice explorer (prints the report when not on a terminal)',
+        (y) => exploreOptions(y),
+        async (args) => {
+          code = await runExplore(args as unknown as ExploreArgs, io, argv);
         },
       )
       .command(

@@ -2,6 +2,8 @@
 export interface CliIO {
   readonly stdout: NodeJS.WritableStream & { isTTY?: boolean; columns?: number };
   readonly stderr: NodeJS.WritableStream & { isTTY?: boolean };
+  /** the keyboard, for the explorer (absent in tests that only print) */
+  readonly stdin?: NodeJS.ReadStream;
   readonly env: Readonly<Record<string, string | undefined>>;
   readonly cwd: string;
 }

@@ -49,6 +49,8 @@ export interface Loaded {
   readonly classes: readonly string[];
   /** runs in the input (sorted), [] without a run column */
   readonly runs: readonly string[];
+  /** the scan's plan, for later scans of the same rows (a regroup that grouping sets do not cover) */
+  readonly plan: CellPlan;
 }
 
 /** Maps role names used in `--by` (label, pred) to the columns that play them. */
@@ -146,10 +148,7 @@ export async function loadCells(duck: Duck, options: LoadOptions): Promise<Loade
   await checkIssues(duck, source, roles, plan, scanned.issues, warnings);
   if (grouping.kind === 'sets' && by && by.length > 2) {
     // a by of three or more columns: one more GROUP BY for exactly those columns
-    const exact = { ...plan, columns: columns.filter((c) => by.includes(c.name)) };
-    const more = toCells(await duck.all(cellSql(exact, { kind: 'cross' })), exact).cells;
-    const allNames = columns.map((c) => c.name);
-    cells = [...cells, ...more.map((c) => ({ ...c, key: Object.fromEntries(allNames.map((n) => [n, c.key[n] ?? null])) }))];
+    cells = [...cells, ...(await scanGrouping(duck, plan, by))];
   }
   const counts = splitCounts(cells, grouping);
   for (const required of ['train', 'dev'] as const) {
@@ -172,7 +171,7 @@ export async function loadCells(duck: Duck, options: LoadOptions): Promise<Loade
   }
   const runs = runsOf(cells);
   const overviewColumns = chosen.columns.map((c) => c.name);
-  return { source, roles, columns, overviewColumns, by, cells, grouping, floorTable, costTable, warnings, profile, annotators, classes: plan.classes ?? [], runs };
+  return { source, roles, columns, overviewColumns, by, cells, grouping, floorTable, costTable, warnings, profile, annotators, classes: plan.classes ?? [], runs, plan };
 }
 
 function scanError(source: Source, e: unknown): Error {
@@ -281,4 +280,22 @@ function unmatchedEntries(cells: readonly Cell[], table: FloorTable, columns: re
     const hit = judged.some((c) => keys.every(([k, v]) => c.key[k] === v));
     return hit ? [] : [`${table.path}: line ${e.line} (${describeKey(e.keys)}) matches no row`];
   });
+}
+
+/** True when cells made with `grouping` can serve the `by` grouping without another scan. */
+export function groupingCovers(grouping: Grouping, by: readonly string[]): boolean {
+  if (grouping.kind === 'cross' || by.length <= 1) return true;
+  const want = [...by].sort().join('\u0000');
+  return grouping.sets.some((set) => [...set].sort().join('\u0000') === want);
+}
+
+/**
+ * One more GROUP BY for exactly the `by` columns (when grouping sets do not hold that grouping); the
+ * cells keep every slice column in their key, null for the columns not grouped.
+ */
+export async function scanGrouping(duck: Duck, plan: CellPlan, by: readonly string[]): Promise<Cell[]> {
+  const exact = { ...plan, columns: plan.columns.filter((c) => by.includes(c.name)) };
+  const more = toCells(await duck.all(cellSql(exact, { kind: 'cross' })), exact).cells;
+  const allNames = plan.columns.map((c) => c.name);
+  return more.map((c) => ({ ...c, key: Object.fromEntries(allNames.map((n) => [n, c.key[n] ?? null])) }));
 }

@@ -1,0 +1,124 @@
+import { existsSync } from 'node:fs';
+import { render } from 'ink';
+import type { Argv } from 'yargs';
+import { openDuck, type Duck } from '../../engine/duck.js';
+import { App } from '../../tui/App.js';
+import { explorerData, type Exporter } from '../../tui/session.js';
+import type { SliceReport } from '../../triage/types.js';
+import { FloorgapError } from '../../util/error.js';
+import { analyzeWith } from '../analyze.js';
+import type { CliIO } from '../io.js';
+import { useColor } from '../io.js';
+import { toTriageOptions } from '../options.js';
+import { runExport, type ExportArgs } from './export.js';
+import { reportOptions, runReport, type ReportArgs } from './report.js';
+
+export interface ExploreArgs extends ReportArgs {
+  ascii: boolean;
+}
+
+export function exploreOptions<T>(y: Argv<T>) {
+  return reportOptions(y).option('ascii', { type: 'boolean', default: false, describe: 'draw with ASCII only (no block glyphs or arrows)', group: 'Output:' });
+}
+
+/** A slice key as `--slice` text: `col=value` pairs, commas, `=` and backslashes escaped. */
+export function sliceKeyText(slice: SliceReport): string {
+  const esc = (s: string) => s.replace(/[\\,=]/g, (c) => `\\${c}`);
+  return Object.entries(slice.key)
+    .map(([k, v]) => `${esc(k)}=${esc(v)}`)
+    .join(',');
+}
+
+const ENTER = '\x1b[?1049h\x1b[?25l';
+const LEAVE = '\x1b[?25h\x1b[?1049l';
+
+/**
+ * `floorgap explore`: the full-screen keyboard explorer. Without a terminal on stdin and stdout (or
+ * with an explicit --format other than text) it prints the report instead.
+ */
+export async function runExplore(args: ExploreArgs, io: CliIO, argv: readonly string[]): Promise<number> {
+  const stdin = io.stdin;
+  const interactive = Boolean(io.stdout.isTTY && stdin?.isTTY) && args.format === 'text';
+  if (!interactive || !stdin) return runReport(args, io);
+  toTriageOptions(args); // bad options fail before the screen changes
+
+  let duck: Duck | null = null;
+  const exporter: Exporter = async (slices, path, force) => {
+    const out: string[] = [];
+    const capture = { write: (chunk: string | Uint8Array, cb?: (e?: Error | null) => void) => (out.push(String(chunk)), cb?.(), true) } as unknown as NodeJS.WritableStream;
+    const exportArgs: ExportArgs = {
+      ...args,
+      by: undefined,
+      out: path,
+      force,
+      slice: slices.map(sliceKeyText),
+      splits: 'train,dev',
+      'errors-only': false,
+      raw: false,
+    };
+    try {
+      await runExport(exportArgs, { ...io, stdout: capture, stderr: capture }, ['explore', ...argv, '--out', path]);
+    } catch (e) {
+      if (e instanceof FloorgapError) return e.message;
+      throw e;
+    }
+    return out.join('').trim().split('\n')[0] ?? `wrote ${path}`;
+  };
+
+  const stdout = io.stdout as NodeJS.WriteStream;
+  let restored = false;
+  const restore = () => {
+    if (restored) return;
+    restored = true;
+    try {
+      if (stdin.isTTY) stdin.setRawMode?.(false);
+    } catch {
+      /* the terminal may be gone (SIGHUP) */
+    }
+    stdout.write(LEAVE);
+  };
+  stdout.write(ENTER);
+
+  return new Promise<number>((resolve) => {
+    let finished = false;
+    const finish = (code: number, error?: unknown) => {
+      if (finished) return;
+      finished = true;
+      instance.unmount();
+      restore();
+      duck?.close();
+      for (const [sig, handler] of handlers) process.off(sig, handler);
+      process.off('uncaughtException', onCrash);
+      if (error !== undefined) {
+        const msg = error instanceof Error ? error.message : String(error);
+        io.stderr.write(`floorgap: ${msg.split('\n')[0]}\n`);
+      }
+      resolve(code);
+    };
+    const handlers: [NodeJS.Signals, () => void][] = [
+      ['SIGTERM', () => finish(143)],
+      ['SIGHUP', () => finish(129)],
+      ['SIGINT', () => finish(130)],
+    ];
+    for (const [sig, handler] of handlers) process.on(sig, handler);
+    const onCrash = (e: unknown) => finish(3, e);
+    process.on('uncaughtException', onCrash);
+
+    const instance = render(
+      <App
+        title={args.files?.join(', ') ?? 'the prediction table'}
+        color={useColor(io)}
+        ascii={args.ascii}
+        load={async () => {
+          duck = await openDuck({ threads: args.threads, memoryLimit: args['memory-limit'] });
+          const analysis = await analyzeWith(duck, args);
+          return explorerData(duck, analysis, exporter);
+        }}
+        onExit={(code, error) => finish(code, code === 2 ? error : undefined)}
+        defaultExportPath={() => `floorgap-export-${new Date().toISOString().slice(0, 19).replace(/[:T]/g, '-')}.csv`}
+        fileExists={(p) => existsSync(p)}
+      />,
+      { stdout, stdin, stderr: io.stderr as NodeJS.WriteStream, exitOnCtrlC: false, patchConsole: false },
+    );
+  });
+}

@@ -1,0 +1,299 @@
+import { Box, Text, useInput } from 'ink';
+import { useEffect, useMemo, useReducer, useRef, useState } from 'react';
+import type { ErrorExample } from '../engine/examples.js';
+import { sanitize, truncate } from '../render/sanitize.js';
+import type { SliceReport } from '../triage/types.js';
+import { Line } from './components/Line.js';
+import { SliceTable } from './components/SliceTable.js';
+import { detailLines } from './detail.js';
+import { headerLines } from './header.js';
+import { useTerminalSize } from './hooks/use-terminal-size.js';
+import { DETAIL_HINT, DETAIL_HINT_ASCII, HINT, HINT_ASCII, KEYS } from './keys.js';
+import { barScale, clampCursor, SORT_LABEL, tableColumns, windowStart } from './model.js';
+import { initialState, reduce, shownSlices } from './state.js';
+import type { ExplorerData } from './session.js';
+import type { Span } from './theme.js';
+
+/** Loading progress as the engine reports it. */
+export interface LoadProgress {
+  readonly percent: number | null;
+  readonly rows?: number | null;
+}
+
+/** Props of {@link App}. */
+export interface AppProps {
+  /** loads the data; the first frame shows before it resolves */
+  readonly load: () => Promise<ExplorerData>;
+  /** polled while loading */
+  readonly progress?: () => LoadProgress | null;
+  /** what is being loaded, for the loading screen */
+  readonly title: string;
+  readonly color: boolean;
+  readonly ascii: boolean;
+  /** fixed size (tests, benchmarks); otherwise the terminal's, following resizes */
+  readonly columns?: number;
+  readonly rows?: number;
+  /** called once: 0 after q, 130 after Ctrl-C, 2 with the error when loading failed */
+  readonly onExit: (code: number, error?: unknown) => void;
+  /** the path the export prompt proposes */
+  readonly defaultExportPath: () => string;
+  readonly fileExists: (path: string) => boolean;
+}
+
+
+function lineOf(text: string, style: Omit<Span, 'text'> = {}): Span[] {
+  return [{ text, ...style }];
+}
+
+/**
+ * The explorer: header, slice table (or detail pane, grouping picker, help), status line and key
+ * hints, never taller than the terminal minus one line. All keyboard; see keys.ts.
+ */
+export function App(props: AppProps) {
+  const size = useTerminalSize({ columns: props.columns, rows: props.rows });
+  const width = Math.max(20, size.columns);
+  const height = Math.max(8, size.rows - 1); // ink clears the scrollback when a frame fills the screen
+  const [data, setData] = useState<ExplorerData | null>(null);
+  const [failure, setFailure] = useState<string | null>(null);
+  const [progress, setProgress] = useState<LoadProgress | null>(null);
+  const [elapsed, setElapsed] = useState(0);
+  const [state, dispatch] = useReducer(reduce, initialState);
+  const [drill, setDrill] = useState<readonly SliceReport[] | 'loading' | null>(null);
+  const [examples, setExamples] = useState<readonly ErrorExample[] | string | 'loading' | null>(null);
+  const startRef = useRef(0);
+  const exited = useRef(false);
+  const exit = (code: number, error?: unknown) => {
+    if (exited.current) return;
+    exited.current = true;
+    props.onExit(code, error);
+  };
+  const { report, mode, sortKey, descending, filter, draft, marked, intervals, pickerCursor, picked, detailScroll, message, busy } = state;
+
+  // load once; poll progress meanwhile
+  useEffect(() => {
+    let alive = true;
+    const t0 = Date.now();
+    const timer = setInterval(() => {
+      if (!alive) return;
+      setElapsed(Date.now() - t0);
+      if (props.progress) setProgress(props.progress());
+    }, 250);
+    props.load().then(
+      (d) => {
+        if (!alive) return;
+        clearInterval(timer);
+        setData(d);
+        dispatch({ type: 'loaded', report: d.report, columns: d.columns });
+      },
+      (e: unknown) => {
+        if (!alive) return;
+        clearInterval(timer);
+        setFailure(e instanceof Error ? e.message : String(e));
+        setTimeout(() => exit(2, e), 1200);
+      },
+    );
+    return () => {
+      alive = false;
+      clearInterval(timer);
+    };
+    // eslint-disable-next-line react-hooks/exhaustive-deps
+  }, []);
+
+  const shown = useMemo(() => shownSlices(state), [report, filter, sortKey, descending]); // eslint-disable-line react-hooks/exhaustive-deps
+  const cursor = clampCursor(state.cursor, shown.length);
+  const selected: SliceReport | undefined = shown[cursor];
+  const hasMismatch = Boolean(report?.overall.gaps.mismatch);
+  const columns = useMemo(() => tableColumns(width, { intervals, mismatch: hasMismatch }), [width, intervals, hasMismatch]);
+  const scale = useMemo(() => barScale(shown), [shown]);
+  const bodyHeight = Math.max(1, height - 3 - 1 - 2);
+  const start = windowStart(shown.length, cursor, bodyHeight, startRef.current);
+  startRef.current = start;
+  const drillColumns = useMemo(() => (data && selected ? data.columns.filter((c) => !(c in selected.key)) : []), [data, selected]);
+  const drillColumn = drillColumns.length > 0 ? drillColumns[state.drillIndex % drillColumns.length] : null;
+
+  useEffect(() => {
+    dispatch({ type: 'page', page: bodyHeight });
+  }, [bodyHeight]);
+
+  // carry out what the reducer asked for
+  useEffect(() => {
+    const r = state.request;
+    if (!r) return;
+    if (r.kind === 'exit') return exit(r.code);
+    if (!data) return;
+    if (r.kind === 'regroup') {
+      data.regroup(r.by).then(
+        (next) => dispatch({ type: 'regrouped', report: next, message: r.by.length ? `grouped by ${r.by.join(' × ')}` : 'overview: one-column slices' }),
+        (e: unknown) => dispatch({ type: 'done', message: `regroup failed: ${e instanceof Error ? e.message : String(e)}` }),
+      );
+    } else if (r.kind === 'export') {
+      data.exportSlices(r.slices, r.path, r.force).then(
+        (m) => dispatch({ type: 'done', message: m }),
+        (e: unknown) => dispatch({ type: 'done', message: `export failed: ${e instanceof Error ? e.message : String(e)}` }),
+      );
+    }
+    // eslint-disable-next-line react-hooks/exhaustive-deps
+  }, [state.requestId]);
+
+  // the detail pane's breakdown and examples, loaded when it shows a slice
+  useEffect(() => {
+    if (mode !== 'detail' || !data || !selected) return;
+    let alive = true;
+    setDrill(drillColumn ? 'loading' : null);
+    setExamples('loading');
+    if (drillColumn) {
+      data.drill(selected, drillColumn).then(
+        (d) => alive && setDrill(d),
+        (e: unknown) => alive && dispatch({ type: 'done', message: `breakdown: ${e instanceof Error ? e.message : String(e)}` }),
+      );
+    }
+    data.examples(selected).then(
+      (x) => alive && setExamples(x),
+      (e: unknown) => alive && setExamples(`examples: ${e instanceof Error ? e.message : String(e)}`),
+    );
+    return () => {
+      alive = false;
+    };
+  }, [mode, data, selected, drillColumn]);
+
+  useInput((input, key) => {
+    if (failure) return exit(key.ctrl && input === 'c' ? 130 : 2, new Error(failure));
+    const common = { defaultExportPath: props.defaultExportPath(), fileExists: props.fileExists };
+    // several printable keys in one read (a paste, a burst over SSH) are applied one by one
+    const plain = !key.ctrl && !key.meta && !key.return && !key.escape && !key.tab && !key.backspace && !key.delete;
+    const chars = [...input];
+    if (plain && chars.length > 1 && !input.includes('\x1b')) {
+      for (const ch of chars) dispatch({ type: 'key', input: ch, key: {}, ...common });
+      return;
+    }
+    dispatch({ type: 'key', input, key, ...common });
+  });
+
+  // ---- frame -------------------------------------------------------------------------------------
+  const lines: { spans: Span[]; selected?: boolean }[] = [];
+  if (!report) {
+    lines.push({ spans: lineOf('floorgap', { bold: true }) });
+    if (failure) {
+      lines.push({ spans: lineOf('') });
+      for (const l of wrapText(`floorgap: ${sanitize(failure)}`, width)) lines.push({ spans: lineOf(l, { color: 'red' }) });
+    } else {
+      const pct = progress?.percent;
+      const bar = pct !== null && pct !== undefined ? progressBar(pct, Math.min(40, width - 20), props.ascii) : '';
+      lines.push({ spans: lineOf(truncate(`loading ${sanitize(props.title)}`, width)) });
+      lines.push({ spans: lineOf(`${bar}${pct !== null && pct !== undefined ? ` ${pct.toFixed(0)}%` : ''}  ${(elapsed / 1000).toFixed(1)} s`, { dim: true }) });
+    }
+    return <Frame lines={lines} width={width} height={height} color={props.color} />;
+  }
+
+  for (const l of headerLines(report, width)) lines.push({ spans: l });
+  if (mode === 'help') {
+    lines.push({ spans: lineOf('keys', { bold: true }) });
+    for (const [k, what] of KEYS) lines.push({ spans: lineOf(truncate(`  ${k.padEnd(20)} ${what}`, width)) });
+    lines.push({ spans: lineOf('  gap bar: ' + (props.ascii ? '. floor  # bias  = variance  ~ mismatch' : '░ floor  █ bias  ▓ variance  ▒ mismatch') + '   * flagged  + marked', { dim: true }) });
+    lines.push({ spans: lineOf('  any key closes this help', { dim: true }) });
+  } else if (mode === 'picker') {
+    const cols = data?.columns ?? [];
+    lines.push({ spans: lineOf('group by (space toggles, Enter applies, Esc cancels; none = overview)', { bold: true }) });
+    const top = windowStart(cols.length, pickerCursor, bodyHeight, 0);
+    cols.slice(top, top + bodyHeight).forEach((c, i) => {
+      const at = top + i;
+      lines.push({ spans: lineOf(truncate(`  [${picked.has(c) ? 'x' : ' '}] ${sanitize(c)}`, width)), selected: at === pickerCursor });
+    });
+  } else if (mode === 'detail' && selected) {
+    const all = detailLines(selected, report, { drillColumn, drill, examples }, width);
+    const room = height - 3 - 2;
+    const scroll = Math.min(detailScroll, Math.max(0, all.length - room));
+    for (const l of all.slice(scroll, scroll + room)) lines.push({ spans: l });
+  } else {
+    return (
+      <Box flexDirection="column" width={width} height={height}>
+        {lines.map((l, i) => (
+          <Line key={i} spans={l.spans} color={props.color} />
+        ))}
+        <SliceTable
+          slices={shown}
+          columns={columns}
+          cursor={cursor}
+          start={start}
+          height={bodyHeight}
+          marked={marked}
+          grouped={report.by !== null}
+          groupHeader={report.by ? truncate(report.by.join(' · '), 40) : 'slice'}
+          intervals={intervals}
+          scale={scale}
+          color={props.color}
+          ascii={props.ascii}
+        />
+        {shown.length === 0 ? <Text>{filter ? '  no slice matches the filter (Esc clears it)' : '  no slices'}</Text> : null}
+        <Box flexGrow={1} />
+        <Line spans={statusSpans()} color={props.color} />
+        <Line spans={bottomSpans()} color={props.color} />
+      </Box>
+    );
+  }
+  return (
+    <Box flexDirection="column" width={width} height={height}>
+      {lines.map((l, i) => (
+        <Line key={i} spans={l.spans} color={props.color} selected={l.selected} />
+      ))}
+      <Box flexGrow={1} />
+      <Line spans={statusSpans()} color={props.color} />
+      <Line spans={bottomSpans()} color={props.color} />
+    </Box>
+  );
+
+  function statusSpans(): Span[] {
+    const arrow = props.ascii ? (descending ? 'v' : '^') : descending ? '↓' : '↑';
+    const parts = [
+      `sort ${SORT_LABEL[sortKey]} ${arrow}`,
+      filter ? `filter "${truncate(sanitize(filter), 24)}" (${shown.length} of ${report!.slices.length})` : `${shown.length} slices`,
+      `${marked.size} marked`,
+    ];
+    if (intervals) parts.push('± on');
+    if (selected) parts.push(`${cursor + 1}/${shown.length}`);
+    const note = busy ?? message;
+    return [{ text: truncate(parts.join(' · ') + (note ? `  ${note}` : ''), width), dim: !note }];
+  }
+
+  function bottomSpans(): Span[] {
+    if (mode === 'filter') return [{ text: truncate(`/${draft}▏ (Enter keeps, Esc clears)`, width), bold: true }];
+    if (mode === 'export-path') return [{ text: truncate(`export rows to: ${draft}▏ (Enter writes, Esc cancels)`, width), bold: true }];
+    if (mode === 'export-confirm') return [{ text: truncate(`${draft.trim()} exists: overwrite it and its manifest? (y/n)`, width), bold: true, color: 'yellow' }];
+    const hint = mode === 'detail' ? (props.ascii ? DETAIL_HINT_ASCII : DETAIL_HINT) : props.ascii ? HINT_ASCII : HINT;
+    return [{ text: truncate(hint, width), dim: true }];
+  }
+}
+
+function progressBar(percent: number, width: number, ascii: boolean): string {
+  const filled = Math.round((Math.max(0, Math.min(100, percent)) / 100) * width);
+  return ascii ? `[${'#'.repeat(filled)}${'-'.repeat(width - filled)}]` : `${'█'.repeat(filled)}${'░'.repeat(width - filled)}`;
+}
+
+function wrapText(text: string, width: number): string[] {
+  const out: string[] = [];
+  let rest = text;
+  while (rest.length > width) {
+    out.push(rest.slice(0, width));
+    rest = rest.slice(width);
+  }
+  out.push(rest);
+  return out;
+}
+
+/** Props of {@link Frame}. */
+interface FrameProps {
+  readonly lines: readonly { spans: Span[]; selected?: boolean }[];
+  readonly width: number;
+  readonly height: number;
+  readonly color: boolean;
+}
+
+function Frame({ lines, width, height, color }: FrameProps) {
+  return (
+    <Box flexDirection="column" width={width} height={height}>
+      {lines.slice(0, height).map((l, i) => (
+        <Line key={i} spans={l.spans} color={color} selected={l.selected} />
+      ))}
+    </Box>
+  );
+}

@@ -1,0 +1,84 @@
+/**
+ * The explorer's data side: the loaded cells stay in memory (and the engine stays open on the rows),
+ * so regrouping, drilling down, examples and export never re-read what they do not need.
+ */
+import type { Analysis } from '../cli/analyze.js';
+import type { Duck } from '../engine/duck.js';
+import { topErrors, type ErrorExample } from '../engine/examples.js';
+import { groupingCovers, scanGrouping } from '../engine/load.js';
+import { cellsFor } from '../engine/slices.js';
+import type { Cell } from '../engine/types.js';
+import { buildReport } from '../triage/report.js';
+import type { Report, SliceReport } from '../triage/types.js';
+
+/** What the explorer asks of its data; a fake implements it in component tests. */
+export interface ExplorerData {
+  /** the report the explorer opens with */
+  readonly report: Report;
+  /** columns the grouping picker offers */
+  readonly columns: readonly string[];
+  /** the report for another grouping ([] = the overview), from the cells */
+  regroup(by: readonly string[]): Promise<Report>;
+  /** the slice broken down by another column */
+  drill(slice: SliceReport, column: string): Promise<readonly SliceReport[]>;
+  /** the slice's most confident dev errors, or why there are none to show */
+  examples(slice: SliceReport): Promise<ErrorExample[] | string>;
+  /** writes the rows of the slices to `path`; returns a one-line message */
+  exportSlices(slices: readonly SliceReport[], path: string, force: boolean): Promise<string>;
+}
+
+/** Exports through the export command's own code (injected, so this module stays free of the CLI). */
+export type Exporter = (slices: readonly SliceReport[], path: string, force: boolean) => Promise<string>;
+
+function matches(cell: Cell, key: Readonly<Record<string, string>>): boolean {
+  for (const [k, v] of Object.entries(key)) if (cell.key[k] !== v) return false;
+  return true;
+}
+
+/**
+ * Wraps an analysis for the explorer. `duck` stays open on the rows until `close`.
+ * @example
+ * const data = explorerData(duck, analysis, exporter);
+ * (await data.regroup(['station', 'lighting'])).slices.length; // => 24
+ */
+export function explorerData(duck: Duck | null, analysis: Analysis, exporter: Exporter | null): ExplorerData {
+  const { loaded, context, options } = analysis;
+  let cells: Cell[] = [...loaded.cells];
+  const scanned = new Set<string>();
+
+  async function cellsCovering(by: readonly string[]): Promise<readonly Cell[]> {
+    const id = [...by].sort().join('\u0000');
+    if (groupingCovers(loaded.grouping, by) || scanned.has(id)) return cells;
+    if (!duck) throw new Error('this grouping needs the rows, and only cells were loaded');
+    cells = [...cells, ...(await scanGrouping(duck, loaded.plan, by))];
+    scanned.add(id);
+    return cells;
+  }
+
+  const run = analysis.report.run;
+  return {
+    report: analysis.report,
+    columns: loaded.columns.map((c) => c.name),
+    async regroup(by) {
+      const use = await cellsCovering(by);
+      return buildReport(use, by.length > 0 ? by : null, loaded.overviewColumns, context, options);
+    },
+    async drill(slice, column) {
+      const keyCols = Object.keys(slice.key);
+      if (keyCols.includes(column)) return [];
+      const by = [...keyCols, column];
+      const use = cellsFor(await cellsCovering(by), by).filter((c) => matches(c, slice.key));
+      return buildReport(use, [column], [], context, options).slices;
+    },
+    async examples(slice) {
+      if (!duck) return 'examples need the rows (the input is ready-made cells)';
+      if (!loaded.roles.score) return 'no score column: name it with --score to see the most confident errors';
+      const runFilter = run !== null && loaded.roles.run ? { column: loaded.roles.run, value: run } : null;
+      return topErrors(duck, loaded.plan, slice.key, 6, runFilter);
+    },
+    async exportSlices(slices, path, force) {
+      if (!exporter) return 'export needs the rows (the input is ready-made cells)';
+      return exporter(slices, path, force);
+    },
+  };
+}
