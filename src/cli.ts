@@ -1,5 +1,8 @@
 #!/usr/bin/env node
-import { main } from './cli/index.js';
+// React (under the explorer) picks its production build from NODE_ENV when it is first loaded: the
+// development build profiles every render and is several times slower. So set it before loading.
+process.env.NODE_ENV ??= 'production';
+const { main } = await import('./cli/index.js');
 
 const io = { stdout: process.stdout, stderr: process.stderr, stdin: process.stdin, env: process.env, cwd: process.cwd() };
 main(process.argv.slice(2), io).then(

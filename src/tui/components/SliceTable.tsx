@@ -53,7 +53,20 @@ export function rowSpans(s: SliceReport, p: Omit<SliceTableProps, 'slices' | 'cu
     const color = c.id === 'focus' ? FOCUS_COLOR[s.focus] : undefined;
     spans.push({ text: sep + text, color, dim, bold: c.id === 'mark' && s.flagged });
   });
-  return spans;
+  return p.color ? mergeSpans(spans) : [{ text: spans.map((x) => x.text).join('') }];
+}
+
+/** Joins neighbouring spans of the same style, so a row is a handful of text nodes, not one per cell. */
+export function mergeSpans(spans: readonly Span[]): Span[] {
+  const out: Span[] = [];
+  for (const s of spans) {
+    const last = out[out.length - 1];
+    const plain = (x: Span) => !x.color && !x.bold && !x.dim && !x.inverse;
+    if (last && ((plain(last) && plain(s)) || (last.color === s.color && last.bold === s.bold && last.dim === s.dim && last.inverse === s.inverse))) {
+      out[out.length - 1] = { ...last, text: last.text + s.text };
+    } else out.push(s);
+  }
+  return out;
 }
 
 /**
@@ -67,7 +80,8 @@ export function SliceTable(props: SliceTableProps) {
     <Box flexDirection="column">
       <Line spans={headerSpans(props.columns, props.groupHeader)} color={props.color} />
       {rows.map((s, i) => (
-        <Line key={`${props.start + i}:${s.label}`} spans={rowSpans(s, props)} color={props.color} selected={props.start + i === props.cursor} />
+        // keyed by screen position: a re-sort updates the rows in place instead of remounting them
+        <Line key={i} spans={rowSpans(s, props)} color={props.color} selected={props.start + i === props.cursor} />
       ))}
     </Box>
   );
