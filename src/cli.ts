@@ -4,6 +4,14 @@
 process.env.NODE_ENV ??= 'production';
 const { main } = await import('./cli/index.js');
 
+// a reader that stops early (`floorgap report … | head`) closes the pipe: that is not an error
+for (const stream of [process.stdout, process.stderr]) {
+  stream.on('error', (e: NodeJS.ErrnoException) => {
+    if (e.code === 'EPIPE') process.exit(process.exitCode ?? 0);
+    throw e;
+  });
+}
+
 const io = { stdout: process.stdout, stderr: process.stderr, stdin: process.stdin, env: process.env, cwd: process.cwd() };
 main(process.argv.slice(2), io).then(
   (code) => {
