@@ -156,6 +156,17 @@ export function App(props: AppProps) {
     };
   }, [mode, data, selected, drillColumn]);
 
+  // the detail pane's lines, and how far they can scroll (told to the reducer so ↑ works at once)
+  const detailRoom = height - 3 - 2;
+  const detail = useMemo(
+    () => (mode === 'detail' && selected && report ? detailLines(selected, report, { drillColumn, drill, examples }, width) : null),
+    [mode, selected, report, drillColumn, drill, examples, width],
+  );
+  const detailMax = detail ? Math.max(0, detail.length - detailRoom) : 0;
+  useEffect(() => {
+    if (detail) dispatch({ type: 'detail-limit', max: detailMax });
+  }, [detail, detailMax]);
+
   useInput((input, key) => {
     if (failure) return exit(key.ctrl && input === 'c' ? 130 : 2, new Error(failure));
     const common = { defaultExportPath: props.defaultExportPath(), fileExists: props.fileExists };
@@ -200,10 +211,9 @@ export function App(props: AppProps) {
       lines.push({ spans: lineOf(truncate(`  [${picked.has(c) ? 'x' : ' '}] ${sanitize(c)}`, width)), selected: at === pickerCursor });
     });
   } else if (mode === 'detail' && selected) {
-    const all = detailLines(selected, report, { drillColumn, drill, examples }, width);
-    const room = height - 3 - 2;
-    const scroll = Math.min(detailScroll, Math.max(0, all.length - room));
-    for (const l of all.slice(scroll, scroll + room)) lines.push({ spans: l });
+    const all = detail ?? [];
+    const scroll = Math.min(detailScroll, detailMax);
+    for (const l of all.slice(scroll, scroll + detailRoom)) lines.push({ spans: l });
   } else {
     return (
       <Box flexDirection="column" width={width} height={height}>
@@ -218,7 +228,7 @@ export function App(props: AppProps) {
           height={bodyHeight}
           marked={marked}
           grouped={report.by !== null}
-          groupHeader={report.by ? truncate(report.by.join(' · '), 40) : 'slice'}
+          groupHeader={report.by ? truncate(sanitize(report.by.join(' · ')), 40) : 'slice'}
           intervals={intervals}
           scale={scale}
           color={props.color}
@@ -233,7 +243,7 @@ export function App(props: AppProps) {
   }
   return (
     <Box flexDirection="column" width={width} height={height}>
-      {lines.map((l, i) => (
+      {lines.slice(0, Math.max(0, height - 2)).map((l, i) => (
         <Line key={i} spans={l.spans} color={props.color} selected={l.selected} />
       ))}
       <Box flexGrow={1} />
@@ -252,13 +262,13 @@ export function App(props: AppProps) {
     if (intervals) parts.push('± on');
     if (selected) parts.push(`${cursor + 1}/${shown.length}`);
     const note = busy ?? message;
-    return [{ text: truncate(parts.join(' · ') + (note ? `  ${note}` : ''), width), dim: !note }];
+    return [{ text: truncate(parts.join(' · ') + (note ? `  ${sanitize(note)}` : ''), width), dim: !note }];
   }
 
   function bottomSpans(): Span[] {
-    if (mode === 'filter') return [{ text: truncate(`/${draft}▏ (Enter keeps, Esc clears)`, width), bold: true }];
-    if (mode === 'export-path') return [{ text: truncate(`export rows to: ${draft}▏ (Enter writes, Esc cancels)`, width), bold: true }];
-    if (mode === 'export-confirm') return [{ text: truncate(`${draft.trim()} exists: overwrite it and its manifest? (y/n)`, width), bold: true, color: 'yellow' }];
+    if (mode === 'filter') return [{ text: truncate(`/${sanitize(draft)}▏ (Enter keeps, Esc clears)`, width), bold: true }];
+    if (mode === 'export-path') return [{ text: truncate(`export rows to: ${sanitize(draft)}▏ (Enter writes, Esc cancels)`, width), bold: true }];
+    if (mode === 'export-confirm') return [{ text: truncate(`${sanitize(draft.trim())} exists: overwrite it and its manifest? (y/n)`, width), bold: true, color: 'yellow' }];
     const hint = mode === 'detail' ? (props.ascii ? DETAIL_HINT_ASCII : DETAIL_HINT) : props.ascii ? HINT_ASCII : HINT;
     return [{ text: truncate(hint, width), dim: true }];
   }

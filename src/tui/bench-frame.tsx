@@ -3,6 +3,7 @@
  * step) and of drawing the table view that follows it, at a given size.
  */
 import { Box, renderToString } from 'ink';
+import { sanitize } from '../render/sanitize.js';
 import type { Report } from '../triage/types.js';
 import { Line } from './components/Line.js';
 import { SliceTable } from './components/SliceTable.js';
@@ -37,7 +38,7 @@ export function renderFrameForBench(report: Report, width: number, height: numbe
         height={body}
         marked={state.marked}
         grouped={report.by !== null}
-        groupHeader={report.by ? report.by.join(' · ') : 'slice'}
+        groupHeader={report.by ? sanitize(report.by.join(' · ')) : 'slice'}
         intervals={state.intervals}
         scale={barScale(shown)}
         color={false}

@@ -104,7 +104,7 @@ export function detailLines(s: SliceReport, report: Report, extras: DetailExtras
   out.push(line({ text: 'most confident dev errors', bold: true }));
   const ex = extras.examples;
   if (ex === 'loading' || ex === null) out.push(line({ text: '  …', dim: true }));
-  else if (typeof ex === 'string') out.push(line({ text: `  ${ex}`, dim: true }));
+  else if (typeof ex === 'string') out.push(line({ text: `  ${sanitize(ex)}`, dim: true }));
   else if (ex.length === 0) out.push(line({ text: '  none: the model made no dev error here', dim: true }));
   else {
     out.push(line({ text: `  ${'id'.padEnd(16)} ${'label'.padEnd(14)} ${'prediction'.padEnd(14)} score`, dim: true }));

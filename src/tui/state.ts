@@ -29,6 +29,8 @@ export interface ExplorerState {
   readonly pickerCursor: number;
   readonly picked: ReadonlySet<string>;
   readonly detailScroll: number;
+  /** how far the detail pane can scroll (reported by the App once it knows the pane's length) */
+  readonly detailMax: number;
   readonly drillIndex: number;
   readonly message: string;
   readonly busy: string | null;
@@ -53,6 +55,7 @@ export const initialState: ExplorerState = {
   pickerCursor: 0,
   picked: new Set(),
   detailScroll: 0,
+  detailMax: Number.MAX_SAFE_INTEGER,
   drillIndex: 0,
   message: '',
   busy: null,
@@ -67,6 +70,8 @@ export type Action =
   | { readonly type: 'regrouped'; readonly report: Report; readonly message: string }
   | { readonly type: 'done'; readonly message: string }
   | { readonly type: 'page'; readonly page: number }
+  /** the detail pane's largest useful scroll (its lines − the room for them) */
+  | { readonly type: 'detail-limit'; readonly max: number }
   | { readonly type: 'key'; readonly input: string; readonly key: Partial<Key>; readonly defaultExportPath: string; readonly fileExists: (path: string) => boolean };
 
 /** The slices on screen: the report's, filtered then sorted. */
@@ -120,6 +125,10 @@ export function reduce(state: ExplorerState, action: Action): ExplorerState {
       return { ...state, busy: null, message: action.message };
     case 'page':
       return action.page === state.page ? state : { ...state, page: action.page };
+    case 'detail-limit':
+      return action.max === state.detailMax && state.detailScroll <= action.max
+        ? state
+        : { ...state, detailMax: action.max, detailScroll: Math.min(state.detailScroll, action.max) };
     case 'key':
       return onKey(state, action);
   }
@@ -170,9 +179,9 @@ function onKey(state: ExplorerState, a: Extract<Action, { type: 'key' }>): Explo
   if (state.mode === 'detail') {
     if (key.return || key.escape) return { ...state, mode: 'table' };
     if (key.upArrow || input === 'k') return { ...state, detailScroll: Math.max(0, state.detailScroll - 1) };
-    if (key.downArrow || input === 'j') return { ...state, detailScroll: state.detailScroll + 1 };
+    if (key.downArrow || input === 'j') return { ...state, detailScroll: Math.min(state.detailMax, state.detailScroll + 1) };
     if (key.pageUp) return { ...state, detailScroll: Math.max(0, state.detailScroll - state.page) };
-    if (key.pageDown) return { ...state, detailScroll: state.detailScroll + state.page };
+    if (key.pageDown) return { ...state, detailScroll: Math.min(state.detailMax, state.detailScroll + state.page) };
     if (key.leftArrow) return move(state, state.cursor - 1);
     if (key.rightArrow) return move(state, state.cursor + 1);
     if (input === 'd') return { ...state, detailScroll: 0, drillIndex: state.drillIndex + 1 };

@@ -14,11 +14,13 @@ export interface LineProps {
 export function Line({ spans, color, selected = false }: LineProps) {
   return (
     <Text wrap="truncate-end" inverse={selected}>
-      {spans.map((s, i) => (
-        <Text key={i} color={color ? s.color : undefined} bold={s.bold} dimColor={color ? s.dim : undefined} inverse={s.inverse}>
-          {s.text}
-        </Text>
-      ))}
+      {spans.some((s) => s.text !== '')
+        ? spans.map((s, i) => (
+            <Text key={i} color={color ? s.color : undefined} bold={s.bold} dimColor={color ? s.dim : undefined} inverse={s.inverse}>
+              {s.text}
+            </Text>
+          ))
+        : ' ' /* an empty Text takes no line at all; a blank line must still take one */}
     </Text>
   );
 }
