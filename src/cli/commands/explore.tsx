@@ -43,6 +43,7 @@ export async function runExplore(args: ExploreArgs, io: CliIO, argv: readonly st
   toTriageOptions(args); // bad options fail before the screen changes
 
   let duck: Duck | null = null;
+  let stopped = false;
   const exporter: Exporter = async (slices, path, force) => {
     const out: string[] = [];
     const capture = { write: (chunk: string | Uint8Array, cb?: (e?: Error | null) => void) => (out.push(String(chunk)), cb?.(), true) } as unknown as NodeJS.WritableStream;
@@ -86,8 +87,16 @@ export async function runExplore(args: ExploreArgs, io: CliIO, argv: readonly st
       finished = true;
       instance.unmount();
       restore();
-      duck?.close();
-      for (const [sig, handler] of handlers) process.off(sig, handler);
+      // closing DuckDB under a running query (the load, a regroup, the detail pane's) hangs the process
+      // for good: stop the query now, close the database once the process is done
+      stopped = true;
+      duck?.connection.interrupt();
+      process.once('exit', () => duck?.close());
+      // removed on the next turn: a signal's other listeners (signal-exit, via ink) still run in this
+      // one, and re-raise the signal (killing the process) when they find no listener but their own
+      setImmediate(() => {
+        for (const [sig, handler] of handlers) process.off(sig, handler);
+      });
       process.off('uncaughtException', onCrash);
       if (error !== undefined) {
         const msg = error instanceof Error ? error.message : String(error);
@@ -111,6 +120,7 @@ export async function runExplore(args: ExploreArgs, io: CliIO, argv: readonly st
         ascii={args.ascii}
         load={async () => {
           duck = await openDuck({ threads: args.threads, memoryLimit: args['memory-limit'] });
+          if (stopped) throw new Error('stopped'); // quit while the engine was starting: no scan
           const analysis = await analyzeWith(duck, args);
           return explorerData(duck, analysis, exporter);
         }}
