@@ -18,7 +18,7 @@ export const KEYS: readonly (readonly [string, string])[] = [
 ];
 
 /** The one-line hint shown at the bottom of the table. */
-export const HINT = '↑↓ move  ⏎ detail  s sort  r rev  h headroom  g group  / filter  ␣ mark  e export  i ±  ? help  q quit';
+export const HINT = '↑↓ move  ⏎ detail  s sort  r rev  h headroom  g group  / filter  ␣ mark  e export  ? help  q quit';
 export const HINT_ASCII = 'arrows move  Enter detail  s sort  r rev  h headroom  g group  / filter  space mark  e export  ? help  q quit';
 export const DETAIL_HINT = '↑↓ scroll  ←→ prev/next slice  d breakdown  ⏎ back  ? help  q quit';
 export const DETAIL_HINT_ASCII = 'up/down scroll  left/right slice  d breakdown  Enter back  ? help  q quit';
