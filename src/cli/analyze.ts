@@ -1,10 +1,14 @@
+import { loadCellFiles } from '../engine/cells-input.js';
 import { openDuck, type Duck } from '../engine/duck.js';
-import { loadCells, type Loaded } from '../engine/load.js';
+import { loadCells, withCells, type LoadHooks, type Loaded } from '../engine/load.js';
+import { cacheDir, cacheKey, readCache } from '../io/cell-cache.js';
 import { buildReport, type ReportContext } from '../triage/report.js';
 import type { Report, TriageOptions } from '../triage/types.js';
 import { VERSION } from '../version.js';
 import { error } from '../util/error.js';
-import { toLoadOptions, toTriageOptions, type AnalysisArgs } from './options.js';
+import type { CliIO } from './io.js';
+import { list, toLoadOptions, toTriageOptions, type AnalysisArgs } from './options.js';
+import { scanProgress } from './progress.js';
 
 /** The result of the shared analysis: the report, and the cells and plan it came from. */
 export interface Analysis {
@@ -15,14 +19,37 @@ export interface Analysis {
   readonly options: TriageOptions;
 }
 
-/**
- * read → cells → slices → triage on an open database, which keeps the `fg_rows` view afterwards, so a
- * command can go on to read rows (export, paired checks).
- */
-export async function analyzeWith(duck: Duck, args: AnalysisArgs): Promise<Analysis> {
-  const triageOptions = toTriageOptions(args);
-  const loadOptions = toLoadOptions(args);
-  const loaded = await loadCells(duck, loadOptions);
+/** Where progress goes and where the cache lives; without it, no progress and the cache under process.env. */
+export type AnalysisIO = Pick<CliIO, 'stderr' | 'env'>;
+
+/** Options that shape cells from rows; with --cells they have no effect. */
+const ROW_OPTIONS: readonly (keyof AnalysisArgs)[] = ['where', 'label', 'pred', 'error', 'split', 'id', 'score', 'weight', 'run-column', 'slice-cols', 'floor', 'floor-table', 'annotators', 'cost-table'];
+
+function usesCells(args: AnalysisArgs): boolean {
+  return Array.isArray(args.cells) ? args.cells.length > 0 : args.cells !== undefined;
+}
+
+function cellPaths(args: AnalysisArgs, io?: AnalysisIO): string[] {
+  const paths = (Array.isArray(args.cells) ? args.cells : [args.cells]).map(String).filter((p) => p !== '');
+  const rows = [...(args.files ?? []), args.train, args['train-dev'], args.dev, args.test].filter((f) => f !== undefined);
+  if (rows.length > 0) throw error(`--cells and prediction tables (${rows.join(', ')}) were both given; give one of them`);
+  const ignored = ROW_OPTIONS.filter((k) => args[k] !== undefined);
+  if (ignored.length > 0 && io) {
+    io.stderr.write(`floorgap: ${ignored.map((k) => `--${k}`).join(', ')} ignored: cells already carry what the rows gave (floorgap sql takes these options)\n`);
+  }
+  return paths;
+}
+
+function hooksFor(args: AnalysisArgs, io?: AnalysisIO): LoadHooks {
+  const env = io?.env ?? process.env;
+  return {
+    cache: args.cache === false ? null : { dir: cacheDir(env), cwd: process.cwd(), version: VERSION },
+    onScan: io ? scanProgress(io, args.progress ?? 'auto') : undefined,
+  };
+}
+
+/** cells → slices → triage: the report of loaded cells. */
+function reportOf(loaded: Loaded, args: AnalysisArgs, triageOptions: TriageOptions, where: string | null): Analysis {
   const roles: Record<string, string | null> = {
     label: loaded.roles.label,
     pred: loaded.roles.pred,
@@ -44,12 +71,29 @@ export async function analyzeWith(duck: Duck, args: AnalysisArgs): Promise<Analy
     inputs: loaded.source.inputs.map((i) => ({ path: i.path, bytes: i.bytes, modified: i.modified, ...(i.split ? { split: i.split } : {}) })),
     roles,
     annotators: loaded.annotators,
-    where: loadOptions.where,
+    where,
     version: VERSION,
     warnings: loaded.warnings,
   };
-  const report = buildReport(loaded.cells, loaded.by, loaded.overviewColumns, context, triageOptions);
+  const report = buildReport(loaded.table, loaded.by, loaded.overviewColumns, context, triageOptions);
   return { report, loaded, context, options: triageOptions };
+}
+
+/**
+ * read → cells → slices → triage on an open database, which keeps the `fg_rows` view afterwards, so a
+ * command can go on to read rows (export, paired checks). With `--cells`, the cells come from files
+ * and there is no rows view (`loaded.origin` is 'cells').
+ * @param io stderr for progress and env for the cache folder; without it no progress is shown
+ */
+export async function analyzeWith(duck: Duck, args: AnalysisArgs, io?: AnalysisIO): Promise<Analysis> {
+  const triageOptions = toTriageOptions(args);
+  if (usesCells(args)) {
+    const loaded = await loadCellFiles(duck, cellPaths(args, io), list(args.by));
+    return reportOf(loaded, args, triageOptions, null);
+  }
+  const loadOptions = toLoadOptions(args);
+  const loaded = await loadCells(duck, loadOptions, hooksFor(args, io));
+  return reportOf(loaded, args, triageOptions, loadOptions.where);
 }
 
 /** Opens the engine with the user's resource settings and runs `use` on it, closing it afterwards. */
@@ -62,8 +106,18 @@ export async function withDuck<T>(args: Pick<AnalysisArgs, 'threads' | 'memory-l
   }
 }
 
-/** read → cells → slices → triage: the shared path of every analysing command. */
-export function analyze(args: AnalysisArgs): Promise<Analysis> {
-  toTriageOptions(args); // bad options fail before the engine starts
-  return withDuck(args, (duck) => analyzeWith(duck, args));
+/**
+ * read → cells → slices → triage: the shared path of every analysing command. Cells cached from an
+ * earlier run on the same unchanged files are used without starting the engine.
+ */
+export async function analyze(args: AnalysisArgs, io?: AnalysisIO): Promise<Analysis> {
+  const triageOptions = toTriageOptions(args); // bad options fail before the engine starts
+  if (!usesCells(args)) {
+    const loadOptions = toLoadOptions(args);
+    const cache = hooksFor(args, io).cache;
+    const key = cache ? await cacheKey(loadOptions, cache.version, cache.cwd) : null;
+    const hit = cache && key ? await readCache(cache.dir, key) : null;
+    if (hit) return reportOf(withCells(hit), args, triageOptions, loadOptions.where);
+  }
+  return withDuck(args, (duck) => analyzeWith(duck, args, io));
 }

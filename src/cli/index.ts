@@ -8,6 +8,7 @@ import { demoOptions, runDemo, type DemoArgs } from './commands/demo.js';
 import { exportOptions, runExport, type ExportArgs } from './commands/export.js';
 import { exploreOptions, runExplore, type ExploreArgs } from './commands/explore.js';
 import { reportOptions, runReport, type ReportArgs } from './commands/report.js';
+import { runSql, sqlOptions, type SqlArgs } from './commands/sql.js';
 import type { CliIO } from './io.js';
 
 /** Exit codes: 0 fine, 1 a check found violations, 2 bad usage or input, 3 an unexpected internal error. */
@@ -72,6 +73,14 @@ export async function main(argv: readonly string[], io: CliIO): Promise<number> 
         (y) => exportOptions(y),
         async (args) => {
           code = await runExport(args as unknown as ExportArgs, io, argv);
+        },
+      )
+      .command(
+        'sql [files..]',
+        'print the GROUP BY that computes the cells in your own SQL engine (or run it here with --out)',
+        (y) => sqlOptions(y),
+        async (args) => {
+          code = await runSql(args as unknown as SqlArgs, io);
         },
       )
       .command(

@@ -15,6 +15,9 @@ export function analysisOptions<T>(y: Argv<T>) {
     .option('test', { type: 'string', describe: 'file holding the test split', group: 'Inputs:' })
     .option('config', { type: 'string', describe: 'project file (default: ./floorgap.json when present)', group: 'Inputs:' })
     .option('where', { type: 'string', describe: 'keep rows matching a DuckDB SQL condition (columns are text)', group: 'Inputs:' })
+    .option('cells', { type: 'string', array: true, describe: 'ready-made cells (from floorgap sql) instead of rows: CSV, Parquet or JSON Lines; shards are summed', group: 'Inputs:' })
+    .option('cache', { type: 'boolean', default: true, describe: 'reuse the cells of an earlier run on the same unchanged files (--no-cache: scan again)', group: 'Engine:' })
+    .option('progress', { choices: ['auto', 'always', 'never'] as const, default: 'auto' as const, describe: 'show progress of long scans on stderr (auto: large files only)', group: 'Engine:' })
     .option('label', { type: 'string', describe: 'column with the true class', group: 'Columns:' })
     .option('pred', { type: 'string', describe: 'column with the predicted class', group: 'Columns:' })
     .option('error', { type: 'string', describe: '0/1 error column, instead of label and pred', group: 'Columns:' })
@@ -81,9 +84,19 @@ export interface AnalysisArgs {
   'label-cost': number;
   threads: number;
   'memory-limit': string;
+  /** ready-made cells files, instead of rows */
+  cells?: string[];
+  /** false with --no-cache (undefined counts as true) */
+  cache?: boolean;
+  progress?: 'auto' | 'always' | 'never';
 }
 
-function list(value: string | undefined | string[]): string[] | null {
+/**
+ * A comma-separated option as a list, or null when absent or empty.
+ * @example
+ * list('station, lighting'); // => ['station', 'lighting']
+ */
+export function list(value: string | undefined | string[]): string[] | null {
   if (value === undefined) return null;
   const text = Array.isArray(value) ? value.join(',') : String(value);
   const items = text.split(',').map((s) => s.trim()).filter(Boolean);

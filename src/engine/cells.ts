@@ -2,9 +2,11 @@ import type { Duck } from './duck.js';
 import { binLabel, textSql } from './profile.js';
 import type { Roles } from './roles.js';
 import { normalizeSplit, SPLIT_HELP } from './roles.js';
-import { ROWS_VIEW, whereSql } from './source.js';
-import { ident, literal } from './sql.js';
-import { addAudit, type AuditSums, type Cell, type SliceColumn, type Split } from './types.js';
+import { AUDIT_COLUMNS, cellColumnNames, cellQuery, STATUS_SPLITS, type ColumnKind } from './cell-query.js';
+import type { CellTable } from './cell-table.js';
+import { readCells } from './read-cells.js';
+import { literal } from './sql.js';
+import type { Cell, SliceColumn, Split } from './types.js';
 import type { FloorEntry } from '../io/read-floor-table.js';
 import { error } from '../util/error.js';
 
@@ -117,129 +119,6 @@ export function floorEntrySql(entries: readonly FloorEntry[]): string {
   return `CASE ${whens.join(' ')} ELSE -1 END`;
 }
 
-function listSql(values: readonly (number | null)[]): string {
-  return `[${values.map((v) => (v === null ? 'NULL' : String(v))).join(', ')}]::DOUBLE[]`;
-}
-
-/** Per-row SQL for the annotator audit: the labels a_j, their agreement counts and the row's panel error. */
-function auditSql(plan: CellPlan): { level1: string[]; level2: string[]; sums: string[] } {
-  const anns = plan.annotators ?? [];
-  if (anns.length === 0) return { level1: [], level2: [], sums: [] };
-  const label = textSql(plan.roles.label!);
-  const a = anns.map((_, j) => `fg_a${j}`);
-  // a row without a true class (possible with an error column) cannot be scored: its labels are left out
-  const level1 = [...anns.map((col, j) => `CASE WHEN ${label} IS NULL THEN NULL ELSE ${textSql(col)} END AS fg_a${j}`), `${label} AS fg_lab`];
-  // c_j: how many annotators gave the same label as annotator j (j included); 0 when j gave none
-  const level2 = [
-    ...a.map((aj, j) => `CASE WHEN ${aj} IS NULL THEN 0 ELSE ${a.map((ai) => `CASE WHEN ${ai} = ${aj} THEN 1 ELSE 0 END`).join(' + ')} END AS fg_c${j}`),
-    `${a.map((aj) => `CASE WHEN ${aj} IS NULL THEN 0 ELSE 1 END`).join(' + ')} AS fg_nlab`,
-  ];
-  const c = a.map((_, j) => `fg_c${j}`);
-  const m = c.length === 1 ? c[0] : `greatest(${c.join(', ')})`;
-  const top = (j: number) => `(${c[j]} = ${m} AND ${a[j]} IS NOT NULL)`;
-  const topWrong = a.map((aj, j) => `CASE WHEN ${top(j)} AND ${aj} <> fg_lab THEN 1 ELSE 0 END`).join(' + ');
-  const topAll = a.map((_, j) => `CASE WHEN ${top(j)} THEN 1 ELSE 0 END`).join(' + ');
-  const panel = 'fg_nlab >= 2';
-  const classes = plan.classes ?? [];
-  const sums = [
-    `sum(CASE WHEN fg_nlab >= 1 THEN 1 ELSE 0 END) AS fg_audited`,
-    `sum(CASE WHEN ${panel} THEN 1 ELSE 0 END) AS fg_panel_rows`,
-    // majority vote: among the k labels tied for most votes, the share that is wrong
-    `coalesce(sum(CASE WHEN ${panel} THEN (${topWrong})::DOUBLE / (${topAll}) END), 0) AS fg_panel_errors`,
-    // pairwise agreement of the row: Σ_j (c_j − 1) / (n (n − 1)) = Σ_c n_c (n_c − 1) / (n (n − 1))
-    `coalesce(sum(CASE WHEN ${panel} THEN (${a.map((aj, j) => `CASE WHEN ${aj} IS NULL THEN 0 ELSE ${c[j]} - 1 END`).join(' + ')})::DOUBLE / (fg_nlab * (fg_nlab - 1)) END), 0) AS fg_agree_sum`,
-    ...a.flatMap((aj, j) => [
-      `sum(CASE WHEN ${aj} IS NULL THEN 0 ELSE 1 END) AS fg_ann_rows_${j}`,
-      `sum(CASE WHEN ${aj} IS NOT NULL AND ${aj} IS DISTINCT FROM fg_lab THEN 1 ELSE 0 END) AS fg_ann_errors_${j}`,
-      ...classes.map((cls, k) => `sum(CASE WHEN ${panel} AND ${aj} = ${literal(cls)} THEN 1 ELSE 0 END) AS fg_ann_cls_${j}_${k}`),
-      `sum(CASE WHEN ${panel} AND ${aj} IS NOT NULL${classes.length ? ` AND ${aj} NOT IN (${classes.map(literal).join(', ')})` : ''} THEN 1 ELSE 0 END) AS fg_ann_cls_${j}_${classes.length}`,
-    ]),
-  ];
-  return { level1, level2, sums };
-}
-
-/**
- * The one-scan GROUP BY that computes cells. Keys are aliased k0, k1, … in column order.
- * Output columns: fg_split (as written, trimmed), fg_run, k0…, fg_floor_entry, fg_floor_n, fg_rows,
- * fg_weight, fg_weight_sq, fg_errors, fg_floor_sum, fg_cost_sum, fg_cost_weight, and with annotators fg_audited,
- * fg_panel_rows, fg_panel_errors, fg_agree_sum, fg_ann_rows_j, fg_ann_errors_j, fg_ann_cls_j_k.
- */
-export function cellSql(plan: CellPlan, grouping: Grouping, table = ROWS_VIEW): string {
-  const r = rowSql(plan);
-  const keys = plan.columns.map((c, i) => `${keySql(c)} AS k${i}`);
-  const floors = listSql([plan.defaultFloor, ...plan.floorEntries.map((e) => e.floor)]);
-  const ns = listSql([null, ...plan.floorEntries.map((e) => e.n)]);
-  const costEntries = plan.costEntries ?? [];
-  // the cost of rows a cost-table entry matches; other rows take --label-cost at triage
-  const cost = costEntries.length
-    ? `list_extract(${listSql([null, ...costEntries.map((e) => e.floor)])}, ${floorEntrySql(costEntries)} + 2)`
-    : 'NULL::DOUBLE';
-  const run = plan.runColumn ? `COALESCE(${textSql(plan.runColumn)}, ${literal(MISSING)})` : 'NULL::VARCHAR';
-  const audit = auditSql(plan);
-  const inner = [
-    `${r.status} AS fg_split`,
-    `${run} AS fg_run`,
-    ...keys,
-    `${r.weight} AS fg_w`,
-    `${r.error} AS fg_e`,
-    `${r.floorEntry} AS fg_floor_entry`,
-    `${cost} AS fg_cost`,
-    ...audit.level1,
-  ].join(',\n    ');
-  const weighted = plan.roles.weight !== null;
-  const sums = [
-    'count(*) AS fg_rows',
-    weighted ? 'sum(fg_w) AS fg_weight' : 'count(*)::DOUBLE AS fg_weight',
-    weighted ? 'sum(fg_w * fg_w) AS fg_weight_sq' : 'count(*)::DOUBLE AS fg_weight_sq',
-    weighted ? 'sum(fg_w * fg_e) AS fg_errors' : 'sum(fg_e)::DOUBLE AS fg_errors',
-    `sum(fg_w * list_extract(${floors}, fg_floor_entry + 2)) AS fg_floor_sum`,
-    'coalesce(sum(fg_w * fg_cost), 0) AS fg_cost_sum',
-    'coalesce(sum(CASE WHEN fg_cost IS NULL THEN 0 ELSE fg_w END), 0) AS fg_cost_weight',
-    ...audit.sums,
-  ];
-  const keyNames = plan.columns.map((_, i) => `k${i}`);
-  // fg_floor_n follows from fg_floor_entry, so grouping by the entry is enough
-  const always = ['fg_split', 'fg_run', 'fg_floor_entry'];
-  let groupBy: string;
-  if (grouping.kind === 'cross') groupBy = [...always, ...keyNames].join(', ');
-  else {
-    const sets = grouping.sets.map((set) => {
-      const idx = set.map((name) => {
-        const i = plan.columns.findIndex((c) => c.name === name);
-        if (i < 0) throw new Error(`grouping set names unknown column ${name}`);
-        return `k${i}`;
-      });
-      return `(${[...always, ...idx].join(', ')})`;
-    });
-    groupBy = `GROUPING SETS (${sets.join(', ')})`;
-  }
-  const from = `(
-  SELECT
-    ${inner}
-  FROM ${table}
-  WHERE ${whereSql(plan.where)}
-)`;
-  const source = audit.level2.length ? `(SELECT *, ${audit.level2.join(', ')} FROM ${from})` : from;
-  return `SELECT fg_split, fg_run, ${keyNames.length ? keyNames.join(', ') + ', ' : ''}fg_floor_entry, list_extract(${ns}, fg_floor_entry + 2) AS fg_floor_n, ${sums.join(', ')}
-FROM ${source}
-GROUP BY ${groupBy}`;
-}
-
-function auditOf(row: Record<string, unknown>, plan: CellPlan): AuditSums | null {
-  const anns = plan.annotators ?? [];
-  if (anns.length === 0) return null;
-  const classes = (plan.classes ?? []).length + 1;
-  return {
-    audited: Number(row.fg_audited),
-    panelRows: Number(row.fg_panel_rows),
-    panelErrors: Number(row.fg_panel_errors),
-    agreeSum: Number(row.fg_agree_sum),
-    annRows: anns.map((_, j) => Number(row[`fg_ann_rows_${j}`])),
-    annErrors: anns.map((_, j) => Number(row[`fg_ann_errors_${j}`])),
-    classCounts: anns.map((_, j) => Array.from({ length: classes }, (_, k) => Number(row[`fg_ann_cls_${j}_${k}`]))),
-  };
-}
-
 /** Rows the scan set aside, by reason. */
 export interface ScanIssues {
   readonly badWeight: number;
@@ -250,88 +129,67 @@ export interface ScanIssues {
 }
 
 /**
- * Converts the scan's raw rows to cells, collecting rows set aside and unknown split values. Raw split
- * spellings that name the same split (`dev`, `val`, `Validation`) are merged into one cell.
+ * Reads the cell query's result into a cell table, counting the rows set aside and the unknown split
+ * values on the way.
  * @param copies how many times the scan counted each row (the number of grouping sets), so that the
  * counts of rows set aside are counts of rows
+ * @param columns the table's slice columns: the plan's, or more (cells of a narrower plan then leave the
+ * others out, as grouping sets do)
  */
-export function toCells(rows: readonly Record<string, unknown>[], plan: CellPlan, copies = 1): { cells: Cell[]; issues: ScanIssues } {
-  const cells: Cell[] = [];
-  const byId = new Map<string, number>();
+export async function readCellResult(
+  duck: Duck,
+  sql: string,
+  plan: CellPlan,
+  copies = 1,
+  columns: readonly string[] = plan.columns.map((c) => c.name),
+): Promise<{ table: CellTable; issues: ScanIssues }> {
+  const names = cellColumnNames(plan, 'local');
+  const anns = plan.annotators ?? [];
+  const classes = (plan.classes ?? []).length + 1;
+  const { table, other } = await readCells(duck, `(${sql}) AS fg_scan`, columns, {
+    keys: columns.map((name) => {
+      const k = plan.columns.findIndex((c) => c.name === name);
+      return k < 0 ? null : names.keys[k];
+    }),
+    split: 'fg_split',
+    run: plan.runColumn ? 'fg_run' : null,
+    stats: ['fg_rows', 'fg_weight', 'fg_weight_sq', 'fg_errors', 'fg_floor_sum', 'fg_floor_entry', 'fg_floor_n', 'fg_cost_sum', 'fg_cost_weight'],
+    audit:
+      anns.length > 0
+        ? { columns: [...AUDIT_COLUMNS, ...anns.flatMap((_, j) => [names.annRows[j], names.annErrors[j], ...names.classCounts[j]])], annotators: anns.length, classes }
+        : null,
+  });
   let badWeight = 0;
   let badScore = 0;
   let badError = 0;
   let unlabelled = 0;
   const unknownSplits = new Map<string, number>();
-  for (const row of rows) {
-    const raw = String(row.fg_split);
-    const count = Number(row.fg_rows);
-    if (raw === BAD.weight) badWeight += count;
-    else if (raw === BAD.score) badScore += count;
-    else if (raw === BAD.error) badError += count;
-    else if (raw === BAD.unlabelled) unlabelled += count;
-    else {
-      const split = normalizeSplit(raw);
-      if (split === null) {
-        unknownSplits.set(raw, (unknownSplits.get(raw) ?? 0) + count);
-        continue;
-      }
-      const key: Record<string, string | null> = {};
-      plan.columns.forEach((c, i) => {
-        const v = row[`k${i}`];
-        key[c.name] = v === null || v === undefined ? null : String(v);
-      });
-      const cell: Cell = {
-        key,
-        split,
-        run: row.fg_run === null || row.fg_run === undefined ? null : String(row.fg_run),
-        rows: count,
-        weight: Number(row.fg_weight),
-        weightSq: Number(row.fg_weight_sq),
-        errors: Number(row.fg_errors),
-        floorSum: Number(row.fg_floor_sum),
-        floorEntry: Number(row.fg_floor_entry),
-        floorN: row.fg_floor_n === null || row.fg_floor_n === undefined ? null : Number(row.fg_floor_n),
-        costSum: Number(row.fg_cost_sum),
-        costWeight: Number(row.fg_cost_weight),
-        audit: auditOf(row, plan),
-      };
-      const id = JSON.stringify([split, cell.run, cell.floorEntry, ...plan.columns.map((c) => key[c.name])]);
-      const at = byId.get(id);
-      if (at === undefined) {
-        byId.set(id, cells.length);
-        cells.push(cell);
-      } else {
-        const prev = cells[at];
-        cells[at] = {
-          ...prev,
-          rows: prev.rows + cell.rows,
-          weight: prev.weight + cell.weight,
-          weightSq: prev.weightSq + cell.weightSq,
-          errors: prev.errors + cell.errors,
-          floorSum: prev.floorSum + cell.floorSum,
-          costSum: prev.costSum + cell.costSum,
-          costWeight: prev.costWeight + cell.costWeight,
-          audit: addAudit(prev.audit, cell.audit),
-        };
-      }
-    }
+  for (const [raw, count] of other) {
+    if (raw === STATUS_SPLITS[4]) badWeight += count;
+    else if (raw === STATUS_SPLITS[3]) badScore += count;
+    else if (raw === STATUS_SPLITS[5]) badError += count;
+    else if (raw === STATUS_SPLITS[2]) unlabelled += count;
+    else unknownSplits.set(raw, (unknownSplits.get(raw) ?? 0) + count / copies);
   }
-  if (copies > 1) {
-    // every row is counted once per grouping set
-    for (const [raw, n] of unknownSplits) unknownSplits.set(raw, n / copies);
-    return {
-      cells,
-      issues: { badWeight: badWeight / copies, badScore: badScore / copies, badError: badError / copies, unlabelled: unlabelled / copies, unknownSplits },
-    };
-  }
-  return { cells, issues: { badWeight, badScore, badError, unlabelled, unknownSplits } };
+  const issues: ScanIssues = {
+    badWeight: badWeight / copies,
+    badScore: badScore / copies,
+    badError: badError / copies,
+    unlabelled: unlabelled / copies,
+    unknownSplits,
+  };
+  return { table, issues };
 }
 
 /** Runs the cell scan. */
-export async function scanCells(duck: Duck, plan: CellPlan, grouping: Grouping): Promise<{ cells: Cell[]; issues: ScanIssues }> {
-  const rows = await duck.all(cellSql(plan, grouping));
-  return toCells(rows, plan, grouping.kind === 'sets' ? grouping.sets.length : 1);
+export async function scanCells(
+  duck: Duck,
+  plan: CellPlan,
+  grouping: Grouping,
+  native: { readonly view: string; readonly kinds: ReadonlyMap<string, ColumnKind> } | null = null,
+): Promise<{ table: CellTable; issues: ScanIssues }> {
+  const sql = native ? cellQuery(plan, grouping, { table: native.view, columnTypes: native.kinds }) : cellQuery(plan, grouping);
+  return readCellResult(duck, sql, plan, grouping.kind === 'sets' ? grouping.sets.length : 1);
 }
 
 /** One-line error for unknown split values. */

@@ -1,4 +1,4 @@
-import { DuckDBInstance, type DuckDBConnection } from '@duckdb/node-api';
+import type { DuckDBConnection } from '@duckdb/node-api';
 import { cpus } from 'node:os';
 
 /** Resource settings for the embedded scan engine. */
@@ -35,11 +35,17 @@ function plain(value: unknown): unknown {
 export async function openDuck(settings: DuckSettings = {}): Promise<Duck> {
   const threads = settings.threads ?? DEFAULT_THREADS;
   const memoryLimit = settings.memoryLimit ?? DEFAULT_MEMORY_LIMIT;
+  // loaded on first use: a report served from the cache never loads the engine
+  const { DuckDBInstance } = await import('@duckdb/node-api');
   const instance = await DuckDBInstance.create(':memory:', {
     threads: String(threads),
     memory_limit: memoryLimit,
   });
   const connection = await instance.connect();
+  // track progress from the start, for watchProgress, without DuckDB printing a bar of its own
+  await connection.run('SET enable_progress_bar = true');
+  await connection.run('SET enable_progress_bar_print = false');
+  await connection.run('SET progress_bar_time = 0');
   return {
     connection,
     async all(sql: string) {

@@ -1,13 +1,18 @@
-import { cellSql, keySql, scanCells, toCells, unknownSplitError, type CellPlan, type Grouping, type ScanIssues } from './cells.js';
+import { keySql, readCellResult, scanCells, unknownSplitError, type CellPlan, type Grouping, type ScanIssues } from './cells.js';
+import { cellQuery } from './cell-query.js';
+import { concatTables, tableCells, type CellTable } from './cell-table.js';
 import type { Duck } from './duck.js';
-import { chooseSliceColumns, profileColumns, sampleTupleCount, sliceColumns, type Profile } from './profile.js';
+import { chooseSliceColumns, createSample, profileColumns, SAMPLE_ROWS, sampleTupleCount, sampleTupleStats, sliceColumns, type Profile } from './profile.js';
+import { chao1 } from '../stats/chao1.js';
 import { resolveRoles, roleColumns, type RoleOptions, type Roles } from './roles.js';
 import { checkWhere, openSource, type Source, type SourceSpec } from './source.js';
-import type { Cell, SliceColumn, Split } from './types.js';
-import { runsOf } from './slices.js';
-import { ROWS_VIEW, whereSql } from './source.js';
+import { ident } from './sql.js';
+import { SPLITS, type Cell, type SliceColumn, type Split } from './types.js';
+import { cellIndicesFor, runsOf } from './slices.js';
 import { textSql } from './profile.js';
+import { cacheKey, readCache, writeCache } from '../io/cell-cache.js';
 import { describeKey, readFloorTable, type FloorEntry, type FloorTable } from '../io/read-floor-table.js';
+import { readError } from '../io/read-table.js';
 import { firstBadRow } from '../io/locate.js';
 import { error } from '../util/error.js';
 
@@ -31,12 +36,17 @@ export interface LoadOptions {
 
 /** Cells and everything known about how they were made. */
 export interface Loaded {
+  /** 'rows': cells scanned from prediction tables (the rows view is open); 'cells': ready-made cells (--cells), no rows */
+  readonly origin?: 'rows' | 'cells';
   readonly source: Source;
   readonly roles: Roles;
   readonly columns: readonly SliceColumn[];
   /** candidate columns for the overview (not label/pred unless asked) */
   readonly overviewColumns: readonly string[];
   readonly by: readonly string[] | null;
+  /** the cells in columns: what the report reads */
+  readonly table: CellTable;
+  /** the cells as objects (made from `table` when first read) */
   readonly cells: readonly Cell[];
   readonly grouping: Grouping;
   readonly floorTable: FloorTable | null;
@@ -67,14 +77,85 @@ export function resolveBy(by: readonly string[], columns: readonly string[], rol
  * read → cells: opens the inputs, resolves roles, runs the sampled pre-pass, reads the floor table, and
  * computes the cells in one DuckDB scan (full cross when small, else grouping sets).
  */
-export async function loadCells(duck: Duck, options: LoadOptions): Promise<Loaded> {
-  const warnings: string[] = [];
+export async function loadCells(duck: Duck, options: LoadOptions, hooks: LoadHooks = {}): Promise<Loaded> {
   const source = await openSource(duck, options.source);
+  const cache = hooks.cache ?? null;
+  const key = cache ? await cacheKey(options, cache.version, cache.cwd) : null;
+  if (cache && key) {
+    const hit = await readCache(cache.dir, key);
+    if (hit) return withCells({ ...hit, source });
+  }
+  const bytes = source.inputs.reduce((a, i) => a + i.bytes, 0);
+  const stop = hooks.onScan?.(duck, { where: source.where, bytes }) ?? (() => undefined);
+  let loaded: Loaded;
+  try {
+    loaded = await scanSource(duck, options, source);
+  } finally {
+    stop();
+  }
+  if (cache && key) await writeCache(cache.dir, key, loaded);
+  return loaded;
+}
+
+/** What a caller can add to a load: a cache of cells, and a watcher of the scan. */
+export interface LoadHooks {
+  /** where cached cells live (see io/cell-cache.ts); no cache when absent */
+  readonly cache?: { readonly dir: string; readonly cwd: string; readonly version: string } | null;
+  /** called when reading the rows starts (never for cached cells); the function it returns when it ends */
+  readonly onScan?: (duck: Duck, info: { readonly where: string; readonly bytes: number }) => () => void;
+}
+
+/** Everything decided before the scan: the plan of the cell query and what it rests on. */
+export interface ScanPlan {
+  readonly source: Source;
+  readonly roles: Roles;
+  readonly plan: CellPlan;
+  readonly grouping: Grouping;
+  /** the cell columns (candidates, plus --by and floor/cost-table key columns) */
+  readonly columns: readonly SliceColumn[];
+  /** the candidate columns, for the overview */
+  readonly overviewColumns: readonly string[];
+  readonly by: readonly string[] | null;
+  readonly floorTable: FloorTable | null;
+  readonly costTable: FloorTable | null;
+  readonly warnings: readonly string[];
+  readonly profile: Profile;
+  readonly annotators: readonly string[];
+}
+
+async function scanSource(duck: Duck, options: LoadOptions, source: Source): Promise<Loaded> {
+  const planned = await planScan(duck, options, source);
+  return scanPlanned(duck, planned);
+}
+
+/**
+ * The sampled pre-pass: roles, candidate columns, bin edges, floor and cost tables, annotator classes,
+ * and the grouping (full cross or grouping sets) — everything the cell query needs.
+ * @param overrides bin edges given by the user (column → interior edges) and a forced grouping
+ */
+export async function planScan(
+  duck: Duck,
+  options: LoadOptions,
+  source: Source,
+  overrides: { readonly edges?: ReadonlyMap<string, readonly number[]>; readonly grouping?: 'cross' | 'sets' | null } = {},
+): Promise<ScanPlan> {
+  const warnings: string[] = [];
   const roles = resolveRoles(source.columns, options.roles, source.where, source.splitColumn !== null);
   const splitColumn = roles.split ?? source.splitColumn!;
   await checkWhere(duck, options.where);
   const dataColumns = source.columns.filter((c) => c !== source.splitColumn);
-  const profile = await profileColumns(duck, dataColumns, options.where);
+  // role columns that never become slice columns are not profiled (an id column's 100,000 distinct
+  // values cost more than all the others), unless named as slice columns
+  const named = new Set([...(options.sliceCols ?? []), ...(options.by ?? [])]);
+  const unsliced = new Set([roles.id, roles.score, roles.weight, roles.error, roles.run, roles.split, ...(options.annotators ?? [])].filter((c): c is string => c !== null));
+  const profiled = dataColumns.filter((c) => !unsliced.has(c) || named.has(c));
+  const sampled = [...new Set([...profiled, splitColumn, ...(roles.label ? [roles.label] : []), ...(options.annotators ?? [])])].filter(
+    (c) => c === splitColumn || source.columns.includes(c),
+  );
+  const sample = await createSample(duck, options.where, SAMPLE_ROWS, sampled).catch((e) => {
+    throw readError(source.where, e);
+  });
+  const profile = await profileColumns(duck, profiled, options.where, SAMPLE_ROWS, sample);
   if (profile.sampleRows === 0) {
     throw error(options.where ? `${source.where}: no rows match --where "${options.where}"` : `${source.where}: no rows; expected a header and data rows`);
   }
@@ -95,7 +176,7 @@ export async function loadCells(duck: Duck, options: LoadOptions): Promise<Loade
       if (annotators.includes(name)) throw error(`${flag} names the annotator column "${name}"; annotator columns give floors, not slices`);
     }
   }
-  const chosen = chooseSliceColumns(profile, roleCols, options.sliceCols, source.where);
+  const chosen = chooseSliceColumns(profile, roleCols, options.sliceCols, source.where, dataColumns);
   const by = options.by ? resolveBy(options.by, dataColumns, roles, source.where) : null;
   let floorTable: FloorTable | null = null;
   if (options.floorTable) {
@@ -120,11 +201,15 @@ export async function loadCells(duck: Duck, options: LoadOptions): Promise<Loade
   const extra = [...(by ?? []), ...(floorTable?.keyColumns ?? []), ...(costTable?.keyColumns ?? [])];
   for (const name of extra) {
     if (wanted.some((c) => c.name === name)) continue;
-    const p = profile.columns.find((c) => c.name === name)!;
-    wanted.push({ name, kind: p.present === p.numeric && p.distinct > 50 && p.present > 0 ? 'binned' : 'category' });
+    const p = profile.columns.find((c) => c.name === name);
+    wanted.push({ name, kind: p && p.present === p.numeric && p.distinct > 50 && p.present > 0 ? 'binned' : 'category' });
   }
   if (wanted.length === 0 && !by) warnings.push('no candidate slice columns (2–50 distinct values, or numeric); name some with --slice-cols');
-  const columns = await sliceColumns(duck, wanted, options.bins, options.where);
+  const edges = overrides.edges ?? new Map<string, readonly number[]>();
+  const columns = (await sliceColumns(duck, wanted.filter((c) => !edges.has(c.name)), options.bins, options.where, sample)).concat(
+    wanted.filter((c) => edges.has(c.name)).map((c): SliceColumn => ({ name: c.name, kind: 'binned', edges: [...edges.get(c.name)!] })),
+  );
+  columns.sort((a, b) => wanted.findIndex((w) => w.name === a.name) - wanted.findIndex((w) => w.name === b.name));
   if (options.floor === null && !floorTable && annotators.length === 0) {
     warnings.push('no floor given (--floor or --floor-table): avoidable bias is measured against perfection (floor 0)');
   }
@@ -137,20 +222,31 @@ export async function loadCells(duck: Duck, options: LoadOptions): Promise<Loade
     where: options.where,
     runColumn: roles.run,
     annotators,
-    classes: annotators.length ? await auditClasses(duck, [roles.label!, ...annotators], options.where) : [],
+    classes: annotators.length ? await auditClasses(duck, [roles.label!, ...annotators], sample) : [],
     costEntries: costTable?.entries ?? [],
   };
-  const grouping = await chooseGrouping(duck, plan, profile, options.maxCells, by);
-  const scanned = await scanCells(duck, plan, grouping).catch((e) => {
+  const grouping = overrides.grouping
+    ? overrides.grouping === 'cross'
+      ? ({ kind: 'cross' } as const)
+      : pairSets(columns.map((c) => c.name), by)
+    : await chooseGrouping(duck, plan, profile, options.maxCells, by, sample);
+  return { source, roles, plan, grouping, columns, overviewColumns: chosen.columns.map((c) => c.name), by, floorTable, costTable, warnings, profile, annotators };
+}
+
+/** The scan of a planned load: cells, checks of the rows set aside, warnings. */
+async function scanPlanned(duck: Duck, planned: ScanPlan): Promise<Loaded> {
+  const { source, roles, plan, grouping, columns, by, floorTable, costTable, profile, annotators } = planned;
+  const warnings = [...planned.warnings];
+  const scanned = await scanCells(duck, plan, grouping, source.native ?? null).catch((e) => {
     throw scanError(source, e);
   });
-  let cells = scanned.cells;
+  let table = scanned.table;
   await checkIssues(duck, source, roles, plan, scanned.issues, warnings);
   if (grouping.kind === 'sets' && by && by.length > 2) {
     // a by of three or more columns: one more GROUP BY for exactly those columns
-    cells = [...cells, ...(await scanGrouping(duck, plan, by))];
+    table = concatTables(table, await scanGroupingTable(duck, plan, by));
   }
-  const counts = splitCounts(cells, grouping);
+  const counts = splitCounts(table);
   for (const required of ['train', 'dev'] as const) {
     if (counts[required] === 0) {
       const present = (Object.keys(counts) as Split[]).filter((s) => counts[s] > 0);
@@ -160,18 +256,27 @@ export async function loadCells(duck: Duck, options: LoadOptions): Promise<Loade
     }
   }
   if (floorTable) {
-    const used = new Set(cells.map((c) => c.floorEntry));
+    const used = new Set(table.floorEntry);
     for (const [i, e] of floorTable.entries.entries()) {
       if (!used.has(i)) warnings.push(`${floorTable.path}: line ${e.line} (${describeKey(e.keys)}) matches no row`);
     }
   }
-  if (costTable) warnings.push(...unmatchedEntries(cells, costTable, columns));
-  if (annotators.length > 0 && !cells.some((c) => (c.audit?.audited ?? 0) > 0)) {
+  if (costTable) warnings.push(...unmatchedEntries(table, costTable, columns));
+  if (annotators.length > 0 && !(table.audit?.fields[0].some((v) => v > 0) ?? false)) {
     warnings.push(`no row has a label in the annotator columns ${annotators.join(', ')}: floors fall back to --floor`);
   }
-  const runs = runsOf(cells);
-  const overviewColumns = chosen.columns.map((c) => c.name);
-  return { source, roles, columns, overviewColumns, by, cells, grouping, floorTable, costTable, warnings, profile, annotators, classes: plan.classes ?? [], runs, plan };
+  const runs = runsOf(table);
+  const overviewColumns = planned.overviewColumns;
+  return withCells({ origin: 'rows', source, roles, columns, overviewColumns, by, table, grouping, floorTable, costTable, warnings, profile, annotators, classes: plan.classes ?? [], runs, plan });
+}
+
+/** Adds the `cells` of a Loaded as Cell objects, made from its table when first read. */
+export function withCells(loaded: Omit<Loaded, 'cells'>): Loaded {
+  let cells: Cell[] | null = null;
+  return Object.defineProperty({ ...loaded }, 'cells', {
+    enumerable: true,
+    get: () => (cells ??= tableCells(loaded.table)),
+  }) as Loaded;
 }
 
 function scanError(source: Source, e: unknown): Error {
@@ -180,24 +285,26 @@ function scanError(source: Source, e: unknown): Error {
   return error(`${source.where}: cannot read the rows (${msg.replace(/^[A-Za-z ]+ Error: /, '')})`, e);
 }
 
-function splitCounts(cells: readonly Cell[], grouping: Grouping): Record<Split, number> {
+function splitCounts(table: CellTable): Record<Split, number> {
   const out: Record<Split, number> = { train: 0, train_dev: 0, dev: 0, test: 0 };
-  if (cells.length === 0) return out;
-  // in grouping-sets mode count one set only
-  const names = Object.keys(cells[0].key);
-  const first = names.filter((k) => cells[0].key[k] !== null).join('\u0000');
-  for (const c of cells) {
-    if (grouping.kind === 'sets' && names.filter((k) => c.key[k] !== null).join('\u0000') !== first) continue;
-    out[c.split] += c.rows;
-  }
+  // in grouping-sets mode count one set only: the cells serving the overall slice
+  const use = cellIndicesFor({ table, index: null }, []);
+  for (const i of use) out[SPLITS[table.split[i]]] += table.rows[i];
   return out;
 }
 
-async function chooseGrouping(duck: Duck, plan: CellPlan, profile: Profile, maxCells: number, by: readonly string[] | null): Promise<Grouping> {
+/**
+ * Full cross when the cells it would hold are at most `maxCells`, else grouping sets of every column and
+ * every pair. The count is exact when the sample holds every row; otherwise the product of the columns'
+ * value counts, or, when that is too large, the Chao1 estimate from the sample's key tuples (columns
+ * often nest, e.g. a board belongs to one package, so the product overstates the cross).
+ */
+async function chooseGrouping(duck: Duck, plan: CellPlan, profile: Profile, maxCells: number, by: readonly string[] | null, sample: string): Promise<Grouping> {
   const names = plan.columns.map((c) => c.name);
+  const splitExpr = 'lower(trim(' + `"${plan.splitColumn.replace(/"/g, '""')}"` + '))';
   let estimate: number;
   if (profile.complete) {
-    estimate = await sampleTupleCount(duck, plan.columns.map(keySql), 'lower(trim(' + `"${plan.splitColumn.replace(/"/g, '""')}"` + '))', plan.where);
+    estimate = await sampleTupleCount(duck, plan.columns.map(keySql), splitExpr, plan.where, sample);
   } else {
     estimate = 4;
     for (const c of plan.columns) {
@@ -206,11 +313,23 @@ async function chooseGrouping(duck: Duck, plan: CellPlan, profile: Profile, maxC
       estimate *= values;
       if (estimate > 1e12) break;
     }
+    if (estimate > maxCells) {
+      // raw values are enough for an estimate (trimming merges a few at most)
+      const keys = plan.columns.map((c) => (c.kind === 'binned' && c.edges?.length ? keySql(c) : ident(c.name)));
+      const t = await sampleTupleStats(duck, keys, ident(plan.splitColumn), plan.where, sample);
+      estimate = Math.min(estimate, chao1(t.distinct, t.singletons, t.doubletons));
+    }
   }
   if (estimate <= maxCells) return { kind: 'cross' };
+  return pairSets(names, by);
+}
+
+/** Grouping sets of every column and every pair (and the `by` pair when it is not one of them). */
+export function pairSets(names: readonly string[], by: readonly string[] | null): Grouping {
   const sets: string[][] = names.map((n) => [n]);
   for (let i = 0; i < names.length; i++) for (let j = i + 1; j < names.length; j++) sets.push([names[i], names[j]]);
-  if (by && by.length === 2 && !sets.some((s) => s.join() === by.join())) sets.push([...by]);
+  const want = by ? [...by].sort().join('\u0000') : '';
+  if (by && by.length === 2 && !sets.some((s) => [...s].sort().join('\u0000') === want)) sets.push([...by]);
   return { kind: 'sets', sets };
 }
 
@@ -257,10 +376,10 @@ export const MAX_CLASSES = 50;
  * The classes counted for agreement: the distinct values of the label and annotator columns in the
  * first 100,000 rows (at most 50, the most frequent first).
  */
-async function auditClasses(duck: Duck, columns: readonly string[], where: string | null): Promise<string[]> {
+async function auditClasses(duck: Duck, columns: readonly string[], sample: string): Promise<string[]> {
   const values = columns.map((c) => textSql(c)).join(', ');
   const rows = await duck.all(
-    `SELECT v, count(*) AS n FROM (SELECT unnest([${values}]) AS v FROM (SELECT * FROM ${ROWS_VIEW} WHERE ${whereSql(where)} LIMIT 100000)) WHERE v IS NOT NULL GROUP BY v ORDER BY n DESC, v LIMIT ${MAX_CLASSES}`,
+    `SELECT v, count(*) AS n FROM (SELECT unnest([${values}]) AS v FROM ${sample}) WHERE v IS NOT NULL GROUP BY v ORDER BY n DESC, v LIMIT ${MAX_CLASSES}`,
   );
   return rows.map((r) => String(r.v)).sort();
 }
@@ -269,16 +388,22 @@ async function auditClasses(duck: Duck, columns: readonly string[], where: strin
  * Warnings for cost-table entries whose key matches no cell (judged from the cells, no extra scan;
  * an entry whose key columns no cell holds together, or that names a binned column, is not judged).
  */
-function unmatchedEntries(cells: readonly Cell[], table: FloorTable, columns: readonly SliceColumn[]): string[] {
+function unmatchedEntries(table: CellTable, costTable: FloorTable, columns: readonly SliceColumn[]): string[] {
   const binned = new Set(columns.filter((c) => c.kind === 'binned').map((c) => c.name));
-  return table.entries.flatMap((e) => {
+  return costTable.entries.flatMap((e) => {
     const keys = Object.entries(e.keys);
     // cells hold bin labels for binned columns, not the values an entry names: not judged
     if (keys.some(([k]) => binned.has(k))) return [];
-    const judged = cells.filter((c) => keys.every(([k]) => c.key[k] !== null && c.key[k] !== undefined));
-    if (judged.length === 0) return [];
-    const hit = judged.some((c) => keys.every(([k, v]) => c.key[k] === v));
-    return hit ? [] : [`${table.path}: line ${e.line} (${describeKey(e.keys)}) matches no row`];
+    const idx = keys.map(([k]) => table.columns.indexOf(k));
+    if (idx.some((c) => c < 0)) return [];
+    const want = keys.map(([, v], j) => table.dicts[idx[j]].indexOf(v));
+    let judged = false;
+    for (let i = 0; i < table.size; i++) {
+      if (!idx.every((c) => table.codes[c][i] >= 0)) continue;
+      judged = true;
+      if (idx.every((c, j) => table.codes[c][i] === want[j])) return [];
+    }
+    return judged ? [`${costTable.path}: line ${e.line} (${describeKey(e.keys)}) matches no row`] : [];
   });
 }
 
@@ -294,8 +419,12 @@ export function groupingCovers(grouping: Grouping, by: readonly string[]): boole
  * cells keep every slice column in their key, null for the columns not grouped.
  */
 export async function scanGrouping(duck: Duck, plan: CellPlan, by: readonly string[]): Promise<Cell[]> {
-  const exact = { ...plan, columns: plan.columns.filter((c) => by.includes(c.name)) };
-  const more = toCells(await duck.all(cellSql(exact, { kind: 'cross' })), exact).cells;
-  const allNames = plan.columns.map((c) => c.name);
-  return more.map((c) => ({ ...c, key: Object.fromEntries(allNames.map((n) => [n, c.key[n] ?? null])) }));
+  return tableCells(await scanGroupingTable(duck, plan, by));
+}
+
+/** {@link scanGrouping} as a cell table (columns: every slice column of the plan). */
+export async function scanGroupingTable(duck: Duck, plan: CellPlan, by: readonly string[]): Promise<CellTable> {
+  const exact: CellPlan = { ...plan, columns: plan.columns.filter((c) => by.includes(c.name)) };
+  const { table } = await readCellResult(duck, cellQuery(exact, { kind: 'cross' }), exact, 1, plan.columns.map((c) => c.name));
+  return table;
 }

@@ -25,8 +25,33 @@ export interface Profile {
 export const SAMPLE_ROWS = 100_000;
 export const MAX_CATEGORIES = 50;
 
-function sampleSql(where: string | null, limit: number): string {
-  return `(SELECT * FROM ${ROWS_VIEW} WHERE ${whereSql(where)} LIMIT ${limit})`;
+/**
+ * The sampled rows: the first `limit` rows matching `where`, or `from`, a table that already holds
+ * them (see {@link createSample}).
+ */
+function sampleSql(where: string | null, limit: number, from?: string): string {
+  return from ?? `(SELECT * FROM ${ROWS_VIEW} WHERE ${whereSql(where)} LIMIT ${limit})`;
+}
+
+/** Name of the temporary table holding the sample, once {@link createSample} made it. */
+export const SAMPLE_TABLE = 'fg_sample';
+
+/**
+ * Copies the first 100,000 rows (after `--where`) into a temporary table, so that the pre-pass reads
+ * the input once, not once per question.
+ * @returns the table's name, for the `from` parameter of the pre-pass functions
+ */
+export async function createSample(duck: Duck, where: string | null, sampleRows = SAMPLE_ROWS, columns?: readonly string[]): Promise<string> {
+  const list = columns && columns.length > 0 ? columns.map(ident).join(', ') : '*';
+  // one thread reads the first rows sooner: more threads would read ahead past the limit
+  const [{ t }] = await duck.all(`SELECT current_setting('threads') AS t`);
+  await duck.run('SET threads = 1');
+  try {
+    await duck.run(`CREATE OR REPLACE TEMP TABLE ${SAMPLE_TABLE} AS SELECT ${list} FROM ${ROWS_VIEW} WHERE ${whereSql(where)} LIMIT ${sampleRows}`);
+  } finally {
+    await duck.run(`SET threads = ${Number(t)}`);
+  }
+  return SAMPLE_TABLE;
 }
 
 /** Text value of a column with surrounding space removed and empty as NULL. */
@@ -43,26 +68,42 @@ export async function profileColumns(
   columns: readonly string[],
   where: string | null,
   sampleRows = SAMPLE_ROWS,
+  from?: string,
 ): Promise<Profile> {
-  const aggs = columns.flatMap((c, i) => [
-    `count(DISTINCT ${textSql(c)}) AS d${i}`,
-    `count(${textSql(c)}) AS p${i}`,
-    `count(TRY_CAST(${textSql(c)} AS DOUBLE)) AS x${i}`,
-  ]);
-  const rows = await duck.all(`SELECT count(*) AS n, ${aggs.join(', ')} FROM ${sampleSql(where, sampleRows)}`);
-  const r = rows[0];
-  const n = Number(r.n);
+  const from_ = sampleSql(where, sampleRows, from);
+  // first the raw distinct values per column (cheap); columns with few of them are then profiled on
+  // their distinct values (trim and number parsing once per value, not once per row)
+  const raw = await duck.all(`SELECT ${['count(*) AS n', ...columns.map((c, i) => `count(DISTINCT ${ident(c)}) AS r${i}`)].join(', ')} FROM ${from_}`);
+  const n = Number(raw[0].n);
+  const few = columns.map((_, i) => Number(raw[0][`r${i}`]) <= FEW_VALUES);
+  const stats = new Map<number, { distinct: number; present: number; numeric: number }>();
+  const lowIdx = columns.map((_, i) => i).filter((i) => few[i]);
+  if (lowIdx.length > 0) {
+    const parts = lowIdx.map((i) => `SELECT ${i} AS c, NULLIF(trim(v), '') AS t, n FROM (SELECT ${ident(columns[i])} AS v, count(*) AS n FROM ${from_} GROUP BY 1)`);
+    const rows = await duck.all(
+      `SELECT c, count(DISTINCT t) AS d, coalesce(sum(n) FILTER (WHERE t IS NOT NULL), 0) AS p, coalesce(sum(n) FILTER (WHERE TRY_CAST(t AS DOUBLE) IS NOT NULL), 0) AS x FROM (${parts.join(' UNION ALL ')}) GROUP BY c`,
+    );
+    for (const r of rows) stats.set(Number(r.c), { distinct: Number(r.d), present: Number(r.p), numeric: Number(r.x) });
+  }
+  const highIdx = columns.map((_, i) => i).filter((i) => !few[i]);
+  if (highIdx.length > 0) {
+    const aggs = highIdx.flatMap((i) => [
+      `count(DISTINCT ${textSql(columns[i])}) AS d${i}`,
+      `count(${textSql(columns[i])}) AS p${i}`,
+      `count(TRY_CAST(${textSql(columns[i])} AS DOUBLE)) AS x${i}`,
+    ]);
+    const [r] = await duck.all(`SELECT ${aggs.join(', ')} FROM ${from_}`);
+    for (const i of highIdx) stats.set(i, { distinct: Number(r[`d${i}`]), present: Number(r[`p${i}`]), numeric: Number(r[`x${i}`]) });
+  }
   return {
     sampleRows: n,
     complete: n < sampleRows,
-    columns: columns.map((name, i) => ({
-      name,
-      distinct: Number(r[`d${i}`]),
-      present: Number(r[`p${i}`]),
-      numeric: Number(r[`x${i}`]),
-    })),
+    columns: columns.map((name, i) => ({ name, ...(stats.get(i) ?? { distinct: 0, present: 0, numeric: 0 }) })),
   };
 }
+
+/** Columns with at most this many raw values in the sample are profiled on their distinct values. */
+const FEW_VALUES = 2000;
 
 /** A column is numeric when every non-empty sampled value parses as a number. */
 export function isNumeric(p: ColumnProfile): boolean {
@@ -78,6 +119,7 @@ export function chooseSliceColumns(
   roleCols: readonly string[],
   explicit: readonly string[] | null,
   where: string,
+  allColumns?: readonly string[],
 ): { columns: { name: string; kind: 'category' | 'binned' }[]; skipped: string[] } {
   const byName = new Map(profile.columns.map((c) => [c.name, c]));
   const kindOf = (p: ColumnProfile): 'category' | 'binned' =>
@@ -86,7 +128,7 @@ export function chooseSliceColumns(
     const columns = explicit.map((name) => {
       const p = byName.get(name);
       if (!p) {
-        throw error(`${where}: --slice-cols names "${name}", which is not a column; the columns are ${[...byName.keys()].map((c) => JSON.stringify(c)).join(', ')}`);
+        throw error(`${where}: --slice-cols names "${name}", which is not a column; the columns are ${(allColumns ?? [...byName.keys()]).map((c) => JSON.stringify(c)).join(', ')}`);
       }
       return { name, kind: kindOf(p) };
     });
@@ -104,7 +146,7 @@ export function chooseSliceColumns(
 }
 
 /** Rounds to 3 significant digits, so bin labels show the exact edges used. */
-function round3(x: number): number {
+export function round3(x: number): number {
   return x === 0 ? 0 : Number(x.toPrecision(3));
 }
 
@@ -118,11 +160,12 @@ export async function binEdges(
   bins: number,
   where: string | null,
   sampleRows = SAMPLE_ROWS,
+  from?: string,
 ): Promise<number[]> {
   if (bins < 2) return [];
   const qs = Array.from({ length: bins - 1 }, (_, i) => (i + 1) / bins);
   const rows = await duck.all(
-    `SELECT quantile_cont(v, [${qs.join(', ')}]) AS q FROM (SELECT TRY_CAST(${textSql(column)} AS DOUBLE) AS v FROM ${sampleSql(where, sampleRows)}) WHERE v IS NOT NULL AND NOT isnan(v) AND NOT isinf(v)`,
+    `SELECT quantile_cont(v, [${qs.join(', ')}]) AS q FROM (SELECT TRY_CAST(${textSql(column)} AS DOUBLE) AS v FROM ${sampleSql(where, sampleRows, from)}) WHERE v IS NOT NULL AND NOT isnan(v) AND NOT isinf(v)`,
   );
   const q = (rows[0]?.q ?? null) as unknown;
   const values = q && typeof q === 'object' && 'items' in (q as object) ? ((q as { items: unknown[] }).items as number[]) : (q as number[] | null);
@@ -145,10 +188,11 @@ export async function sliceColumns(
   chosen: readonly { name: string; kind: 'category' | 'binned' }[],
   bins: number,
   where: string | null,
+  from?: string,
 ): Promise<SliceColumn[]> {
   const out: SliceColumn[] = [];
   for (const c of chosen) {
-    if (c.kind === 'binned') out.push({ name: c.name, kind: 'binned', edges: await binEdges(duck, c.name, bins, where) });
+    if (c.kind === 'binned') out.push({ name: c.name, kind: 'binned', edges: await binEdges(duck, c.name, bins, where, SAMPLE_ROWS, from) });
     else out.push({ name: c.name, kind: 'category' });
   }
   return out;
@@ -160,9 +204,27 @@ export async function sampleTupleCount(
   keyExprs: readonly string[],
   splitExpr: string,
   where: string | null,
+  from?: string,
 ): Promise<number> {
   const rows = await duck.all(
-    `SELECT count(*) AS n FROM (SELECT DISTINCT ${[splitExpr, ...keyExprs].join(', ')} FROM ${sampleSql(where, SAMPLE_ROWS)})`,
+    `SELECT count(*) AS n FROM (SELECT DISTINCT ${[splitExpr, ...keyExprs].join(', ')} FROM ${sampleSql(where, SAMPLE_ROWS, from)})`,
   );
   return Number(rows[0].n);
+}
+
+/**
+ * Distinct key tuples × split in the sample, and how many of them occur once and twice (for the Chao1
+ * estimate of the cells of the whole input).
+ */
+export async function sampleTupleStats(
+  duck: Duck,
+  keyExprs: readonly string[],
+  splitExpr: string,
+  where: string | null,
+  from?: string,
+): Promise<{ distinct: number; singletons: number; doubletons: number }> {
+  const rows = await duck.all(
+    `SELECT count(*) AS d, count(*) FILTER (WHERE n = 1) AS f1, count(*) FILTER (WHERE n = 2) AS f2 FROM (SELECT count(*) AS n FROM ${sampleSql(where, SAMPLE_ROWS, from)} GROUP BY ${[splitExpr, ...keyExprs].join(', ')})`,
+  );
+  return { distinct: Number(rows[0].d), singletons: Number(rows[0].f1), doubletons: Number(rows[0].f2) };
 }

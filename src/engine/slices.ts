@@ -1,5 +1,5 @@
-import { op, table } from 'arquero';
-import { addAudit, SPLITS, type AuditSums, type Cell, type Split } from './types.js';
+import { auditFromFields, selectCells, type CellSelection, type CellTable } from './cell-table.js';
+import { SPLITS, type AuditSums, type Cell, type Split } from './types.js';
 
 /** Sums of one split of one slice. */
 export interface SplitSums {
@@ -33,136 +33,248 @@ export interface SliceStats {
   readonly audit: AuditSums | null;
 }
 
+/** Cells as the rollup takes them: Cell objects, or a cell table. */
+export type Cells = readonly Cell[] | CellTable;
+
 /** The runs present in the cells, or [] when the input has no run column. */
-export function runsOf(cells: readonly Cell[]): string[] {
-  const runs = new Set<string>();
-  for (const c of cells) if (c.run !== null) runs.add(c.run);
-  return [...runs].sort();
+export function runsOf(cells: Cells): string[] {
+  const { table, index } = selectCells(cells);
+  if (index === null) {
+    const seen = new Uint8Array(table.runs.length);
+    for (let i = 0; i < table.size; i++) if (table.run[i] >= 0) seen[table.run[i]] = 1;
+    return table.runs.filter((_, r) => seen[r] === 1);
+  }
+  const seen = new Uint8Array(table.runs.length);
+  for (let j = 0; j < index.length; j++) {
+    const r = table.run[index[j]];
+    if (r >= 0) seen[r] = 1;
+  }
+  return table.runs.filter((_, r) => seen[r] === 1);
+}
+
+const crossTables = new WeakMap<CellTable, boolean>();
+
+/** True when no cell of the table leaves a column out (the full cross, not grouping sets). */
+export function isCrossTable(table: CellTable): boolean {
+  let known = crossTables.get(table);
+  if (known === undefined) {
+    known = table.codes.every((codes) => codes.every((k) => k >= 0));
+    crossTables.set(table, known);
+  }
+  return known;
+}
+
+function groupedSignature(table: CellTable, i: number): string {
+  let s = '';
+  for (let c = 0; c < table.codes.length; c++) if (table.codes[c][i] >= 0) s += c + ',';
+  return s;
+}
+
+/**
+ * The indices (into the table) of the cells that serve a grouping: every cell of a full cross; in
+ * grouping-sets mode those of the set equal to `by` (for `by` = [], the set of the first cell, any
+ * one-column set covering every row once). `run` restricts to one run's cells.
+ */
+export function cellIndicesFor(sel: CellSelection, by: readonly string[], run: string | null = null): Uint32Array {
+  const { table, index } = sel;
+  const n = index ? index.length : table.size;
+  const runCode = run === null ? -2 : table.runs.indexOf(run);
+  if (run !== null && runCode < 0) return new Uint32Array(0);
+  const out = new Uint32Array(n);
+  let m = 0;
+  for (let j = 0; j < n; j++) {
+    const i = index ? index[j] : j;
+    if (runCode >= -1 && table.run[i] !== runCode) continue;
+    out[m++] = i;
+  }
+  if (m === 0 || isCrossTable(table)) return out.subarray(0, m);
+  const byIdx = by.map((b) => table.columns.indexOf(b));
+  if (byIdx.some((c) => c < 0)) return new Uint32Array(0);
+  const want = by.length > 0 ? [...byIdx].sort((a, b) => a - b).map((c) => c + ',').join('') : groupedSignature(table, out[0]);
+  let k = 0;
+  for (let j = 0; j < m; j++) if (groupedSignature(table, out[j]) === want) out[k++] = out[j];
+  return out.subarray(0, k);
 }
 
 /** Picks the cells that can serve a grouping: in grouping-sets mode, those of the set equal to `by`. */
 export function cellsFor(cells: readonly Cell[], by: readonly string[]): Cell[] {
   if (cells.length === 0) return [];
-  const allKeys = Object.keys(cells[0].key);
-  const isCross = cells.every((c) => allKeys.every((k) => c.key[k] !== null));
-  if (isCross) return cells as Cell[];
-  const want = [...by].sort().join('\u0000');
-  const grouped = (c: Cell) => allKeys.filter((k) => c.key[k] !== null).sort().join('\u0000');
-  const exact = cells.filter((c) => grouped(c) === want);
-  if (exact.length > 0 || by.length > 0) return exact;
-  // the overall slice: any one-column set covers every row once
-  const first = grouped(cells[0]);
-  return cells.filter((c) => grouped(c) === first);
+  const sel = selectCells(cells);
+  const picked = cellIndicesFor(sel, by);
+  if (sel.index === null && sel.table.size === cells.length) {
+    // the selection is the array itself, in order
+    return Array.from(picked, (i) => cells[i]);
+  }
+  // map table indices back to positions in the array
+  const position = new Map<number, number>();
+  const idx = sel.index ?? Uint32Array.from(cells.keys());
+  for (let j = 0; j < idx.length; j++) if (!position.has(idx[j])) position.set(idx[j], j);
+  return Array.from(picked, (i) => cells[position.get(i)!]);
+}
+
+const SUM_FIELDS = 7; // rows, weight, weightSq, errors, floorSum, costSum, costWeight
+
+const entryRanges = new WeakMap<CellTable, { min: number; max: number }>();
+
+/** The smallest and largest floor entry of the table's cells (-1 is the default floor). */
+function entryRange(table: CellTable): { min: number; max: number } {
+  let r = entryRanges.get(table);
+  if (!r) {
+    let min = -1;
+    let max = -1;
+    for (let i = 0; i < table.size; i++) {
+      const e = table.floorEntry[i];
+      if (e < min) min = e;
+      if (e > max) max = e;
+    }
+    r = { min, max };
+    entryRanges.set(table, r);
+  }
+  return r;
 }
 
 /**
- * Rolls cells up into slices keyed by the `by` columns (an arquero groupby/rollup over the cell table).
- * `by` = [] gives the overall slice.
+ * Rolls cells up into slices keyed by the `by` columns: a loop over the cells' integer-coded keys into
+ * typed-array accumulators (no per-cell objects). `by` = [] gives the overall slice.
  * @example
  * rollupSlices(cells, ['station']); // => [{ key: { station: 'S1' }, splits: { train: {...}, dev: {...} }, ... }, ...]
  */
-export function rollupSlices(cells: readonly Cell[], by: readonly string[], run: string | null = null): SliceStats[] {
-  const use = cellsFor(run === null ? cells : cells.filter((c) => c.run === run), by);
-  const cols: Record<string, unknown[]> = {};
-  by.forEach((b, i) => (cols[`k${i}`] = use.map((c) => c.key[b])));
-  cols.split = use.map((c) => c.split);
-  cols.entry = use.map((c) => c.floorEntry);
-  cols.floorN = use.map((c) => c.floorN);
-  cols.rows = use.map((c) => c.rows);
-  cols.weight = use.map((c) => c.weight);
-  cols.weightSq = use.map((c) => c.weightSq);
-  cols.errors = use.map((c) => c.errors);
-  cols.floorSum = use.map((c) => c.floorSum);
-  cols.costSum = use.map((c) => c.costSum);
-  cols.costWeight = use.map((c) => c.costWeight);
-  const auditCols = flattenAudit(use, cols);
-  const keyCols = by.map((_, i) => `k${i}`);
-  const sums: Record<string, unknown> = {
-    floorN: op.any('floorN'),
-    rows: op.sum('rows'),
-    weight: op.sum('weight'),
-    weightSq: op.sum('weightSq'),
-    errors: op.sum('errors'),
-    floorSum: op.sum('floorSum'),
-    costSum: op.sum('costSum'),
-    costWeight: op.sum('costWeight'),
-  };
-  for (const name of auditCols.names) sums[name] = op.sum(name);
-  const rolled = table(cols)
-    .groupby(...keyCols, 'split', 'entry')
-    .rollup(sums as Parameters<ReturnType<typeof table>['rollup']>[0])
-    .objects() as Record<string, unknown>[];
-
-  type Acc = { key: Record<string, string>; splits: Partial<Record<Split, SplitSums>>; floorParts: FloorPart[]; devFloorParts: FloorPart[]; audit: AuditSums | null };
-  const slices = new Map<string, Acc>();
-  for (const r of rolled) {
-    const key: Record<string, string> = {};
-    by.forEach((b, i) => (key[b] = String(r[`k${i}`])));
-    const id = keyCols.map((k) => String(r[k])).join('\u0000');
-    let acc = slices.get(id);
-    if (!acc) {
-      acc = { key, splits: {}, floorParts: [], devFloorParts: [], audit: null };
-      slices.set(id, acc);
+export function rollupSlices(cells: Cells, by: readonly string[], run: string | null = null): SliceStats[] {
+  const sel = selectCells(cells);
+  const { table } = sel;
+  if (table.size === 0 || by.some((b) => !table.columns.includes(b))) return [];
+  const use = cellIndicesFor(sel, by, run);
+  const m = use.length;
+  if (m === 0) return [];
+  const byIdx = by.map((b) => table.columns.indexOf(b));
+  const byCodes = byIdx.map((c) => table.codes[c]);
+  const sizes = byIdx.map((c) => Math.max(1, table.dicts[c].length));
+  // slot of every used cell: composite integer key → first-appearance slot number
+  const slotOf = new Int32Array(m);
+  const slotCell: number[] = [];
+  let radixOk = true;
+  let span = 1;
+  for (const s of sizes) {
+    span *= s;
+    if (span > 2 ** 52) radixOk = false;
+  }
+  if (radixOk && span <= 1 << 22) {
+    const dense = new Int32Array(span).fill(-1);
+    for (let j = 0; j < m; j++) {
+      const i = use[j];
+      let key = 0;
+      for (let b = byCodes.length - 1; b >= 0; b--) key = key * sizes[b] + byCodes[b][i];
+      let slot = dense[key];
+      if (slot < 0) {
+        slot = slotCell.length;
+        dense[key] = slot;
+        slotCell.push(i);
+      }
+      slotOf[j] = slot;
     }
-    const split = r.split as Split;
-    const prev = acc.splits[split];
-    const rows = Number(r.rows);
-    const weight = Number(r.weight);
-    const weightSq = Number(r.weightSq);
-    const errors = Number(r.errors);
-    const floorSum = Number(r.floorSum);
-    const costSum = Number(r.costSum);
-    const costWeight = Number(r.costWeight);
-    acc.splits[split] = prev
-      ? { rows: prev.rows + rows, weight: prev.weight + weight, weightSq: prev.weightSq + weightSq, errors: prev.errors + errors, floorSum: prev.floorSum + floorSum, costSum: prev.costSum + costSum, costWeight: prev.costWeight + costWeight }
-      : { rows, weight, weightSq, errors, floorSum, costSum, costWeight };
-    acc.audit = addAudit(acc.audit, auditCols.read(r));
-    const part = { entry: Number(r.entry), weight, floorSum, n: r.floorN === null || r.floorN === undefined ? null : Number(r.floorN) };
-    if (split === 'train') acc.floorParts.push(part);
-    if (split === 'dev') acc.devFloorParts.push(part);
+  } else {
+    const lookup = new Map<number | string, number>();
+    for (let j = 0; j < m; j++) {
+      const i = use[j];
+      let key: number | string;
+      if (radixOk) {
+        key = 0;
+        for (let b = byCodes.length - 1; b >= 0; b--) key = key * sizes[b] + byCodes[b][i];
+      } else {
+        key = byCodes.map((codes) => codes[i]).join(',');
+      }
+      let slot = lookup.get(key);
+      if (slot === undefined) {
+        slot = slotCell.length;
+        lookup.set(key, slot);
+        slotCell.push(i);
+      }
+      slotOf[j] = slot;
+    }
   }
-  const out = [...slices.values()];
-  for (const s of out) for (const sp of SPLITS) if (!s.splits[sp]) delete s.splits[sp];
-  return out;
-}
-
-/**
- * Adds the audit sums of the cells as flat numeric columns (a_audited, a_r0, a_c0_1, …) so that arquero
- * rolls them up with the rest, and returns their names and a reader that turns a rolled row back
- * into AuditSums.
- */
-function flattenAudit(
-  use: readonly Cell[],
-  cols: Record<string, unknown[]>,
-): { names: string[]; read: (r: Record<string, unknown>) => AuditSums | null } {
-  const first = use.find((c) => c.audit !== null)?.audit;
-  if (!first) return { names: [], read: () => null };
-  const annotators = first.annRows.length;
-  const classes = first.classCounts[0]?.length ?? 0;
-  const get = (c: Cell) => c.audit ?? first;
-  const zero = (c: Cell) => c.audit === null;
-  const add = (name: string, f: (a: AuditSums) => number) => {
-    cols[name] = use.map((c) => (zero(c) ? 0 : f(get(c))));
-    names.push(name);
+  const slots = slotCell.length;
+  const sums = new Float64Array(slots * 4 * SUM_FIELDS);
+  const present = new Uint8Array(slots * 4);
+  const audit = table.audit;
+  const auditSums = audit ? new Float64Array(slots * audit.fields.length) : null;
+  // floor parts: per slot, split (train or dev) and floor entry; dense while the entries are few
+  const entries = entryRange(table);
+  const width = entries.max - entries.min + 1;
+  const partCount = slots * 2 * width;
+  const dense = partCount <= 1 << 22;
+  const pWeight = dense ? new Float64Array(partCount) : null;
+  const pFloorSum = dense ? new Float64Array(partCount) : null;
+  const pN = dense ? new Float64Array(partCount).fill(NaN) : null;
+  const pSeen = dense ? new Uint8Array(partCount) : null;
+  const sparse = dense ? null : new Map<number, { weight: number; floorSum: number; n: number }>();
+  for (let j = 0; j < m; j++) {
+    const i = use[j];
+    const slot = slotOf[j];
+    const sp = table.split[i];
+    const base = (slot * 4 + sp) * SUM_FIELDS;
+    present[slot * 4 + sp] = 1;
+    sums[base] += table.rows[i];
+    sums[base + 1] += table.weight[i];
+    sums[base + 2] += table.weightSq[i];
+    sums[base + 3] += table.errors[i];
+    sums[base + 4] += table.floorSum[i];
+    sums[base + 5] += table.costSum[i];
+    sums[base + 6] += table.costWeight[i];
+    if (auditSums) {
+      const f = audit!.fields;
+      const ab = slot * f.length;
+      for (let k = 0; k < f.length; k++) auditSums[ab + k] += f[k][i];
+    }
+    if (sp === 0 || sp === 2) {
+      const p = (slot * 2 + (sp === 2 ? 1 : 0)) * width + table.floorEntry[i] - entries.min;
+      if (pWeight) {
+        pSeen![p] = 1;
+        pWeight[p] += table.weight[i];
+        pFloorSum![p] += table.floorSum[i];
+        if (Number.isNaN(pN![p])) pN![p] = table.floorN[i];
+      } else {
+        const part = sparse!.get(p) ?? { weight: 0, floorSum: 0, n: NaN };
+        part.weight += table.weight[i];
+        part.floorSum += table.floorSum[i];
+        if (Number.isNaN(part.n)) part.n = table.floorN[i];
+        sparse!.set(p, part);
+      }
+    }
+  }
+  const floorParts: FloorPart[][] = Array.from({ length: slots }, () => []);
+  const devFloorParts: FloorPart[][] = Array.from({ length: slots }, () => []);
+  const addPart = (p: number, weight: number, floorSum: number, n: number) => {
+    const slot = Math.floor(p / (2 * width));
+    const dev = Math.floor(p / width) % 2 === 1;
+    const part: FloorPart = { entry: (p % width) + entries.min, weight, floorSum, n: Number.isNaN(n) ? null : n };
+    (dev ? devFloorParts : floorParts)[slot].push(part);
   };
-  const names: string[] = [];
-  add('a_audited', (a) => a.audited);
-  add('a_panelRows', (a) => a.panelRows);
-  add('a_panelErrors', (a) => a.panelErrors);
-  add('a_agreeSum', (a) => a.agreeSum);
-  for (let j = 0; j < annotators; j++) {
-    add(`a_r${j}`, (a) => a.annRows[j]);
-    add(`a_e${j}`, (a) => a.annErrors[j]);
-    for (let k = 0; k < classes; k++) add(`a_c${j}_${k}`, (a) => a.classCounts[j][k]);
+  if (pWeight) {
+    for (let p = 0; p < partCount; p++) if (pSeen![p]) addPart(p, pWeight[p], pFloorSum![p], pN![p]);
+  } else {
+    for (const [p, v] of [...sparse!].sort((a, b) => a[0] - b[0])) addPart(p, v.weight, v.floorSum, v.n);
   }
-  const read = (r: Record<string, unknown>): AuditSums => ({
-    audited: Number(r.a_audited),
-    panelRows: Number(r.a_panelRows),
-    panelErrors: Number(r.a_panelErrors),
-    agreeSum: Number(r.a_agreeSum),
-    annRows: Array.from({ length: annotators }, (_, j) => Number(r[`a_r${j}`])),
-    annErrors: Array.from({ length: annotators }, (_, j) => Number(r[`a_e${j}`])),
-    classCounts: Array.from({ length: annotators }, (_, j) => Array.from({ length: classes }, (_, k) => Number(r[`a_c${j}_${k}`]))),
-  });
-  return { names, read };
+  const out: SliceStats[] = [];
+  for (let slot = 0; slot < slots; slot++) {
+    const first = slotCell[slot];
+    const key: Record<string, string> = {};
+    for (let b = 0; b < by.length; b++) key[by[b]] = table.dicts[byIdx[b]][byCodes[b][first]];
+    const splits: Partial<Record<Split, SplitSums>> = {};
+    for (let sp = 0; sp < 4; sp++) {
+      if (!present[slot * 4 + sp]) continue;
+      const base = (slot * 4 + sp) * SUM_FIELDS;
+      splits[SPLITS[sp]] = {
+        rows: sums[base],
+        weight: sums[base + 1],
+        weightSq: sums[base + 2],
+        errors: sums[base + 3],
+        floorSum: sums[base + 4],
+        costSum: sums[base + 5],
+        costWeight: sums[base + 6],
+      };
+    }
+    const a: AuditSums | null = auditSums ? auditFromFields((f) => auditSums[slot * audit!.fields.length + f], audit!.annotators, audit!.classes) : null;
+    out.push({ key, splits, floorParts: floorParts[slot], devFloorParts: devFloorParts[slot], audit: a });
+  }
+  return out;
 }

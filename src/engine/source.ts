@@ -1,7 +1,8 @@
 import type { Duck } from './duck.js';
 import { ident, literal } from './sql.js';
+import type { ColumnKind } from './cell-query.js';
 import type { Split } from './types.js';
-import { describeColumns, detectTable, headerNames, readError, tableSql, type TableInput } from '../io/read-table.js';
+import { describeColumns, detectTable, headerNames, pinnedCsvSql, readError, tableSql, type TableInput } from '../io/read-table.js';
 import { error } from '../util/error.js';
 
 /** Where the rows come from: one or more tables with a split column, or one file per split. */
@@ -18,7 +19,18 @@ export interface Source {
   readonly splitColumn: string | null;
   /** a label for messages: the file, or "a.csv, b.csv" */
   readonly where: string;
+  /**
+   * when every input is Parquet: a second view of the rows with the columns' own types, which the cell
+   * scan reads (converting every value to text first would cost more than the scan itself)
+   */
+  readonly native?: { readonly view: string; readonly kinds: ReadonlyMap<string, ColumnKind> } | null;
 }
+
+/** Name of the view of the rows with their own column types (see {@link Source.native}). */
+export const NATIVE_VIEW = 'fg_rows_native';
+
+/** Types that convert to a double exactly as their text does. */
+const NUMBER_TYPES = new Set(['DOUBLE', 'BIGINT', 'INTEGER', 'SMALLINT', 'TINYINT', 'UBIGINT', 'UINTEGER', 'USMALLINT', 'UTINYINT']);
 
 /** Name of the view holding every input row (all columns VARCHAR). */
 export const ROWS_VIEW = 'fg_rows';
@@ -44,9 +56,19 @@ export async function openSource(duck: Duck, spec: SourceSpec): Promise<Source> 
   const parts: string[] = [];
   const allColumns: string[] = [];
   for (const input of inputs) {
-    const expr = await tableSql(duck, input);
-    const cols = await describeColumns(duck, expr, input.path);
-    checkHeader(input.path, cols, (await headerNames(duck, input)) ?? cols);
+    let cols: string[];
+    let expr: string;
+    if (input.header) {
+      // a plain header read from the first bytes: no sniffing of the file
+      cols = [...input.header];
+      checkHeader(input.path, cols, cols);
+      expr = pinnedCsvSql(input, cols);
+    } else {
+      const detected = await tableSql(duck, input);
+      cols = await describeColumns(duck, detected, input.path);
+      checkHeader(input.path, cols, (await headerNames(duck, input)) ?? cols);
+      expr = input.format === 'csv' || input.format === 'tsv' ? pinnedCsvSql(input, cols) : detected;
+    }
     for (const c of cols) if (!allColumns.includes(c)) allColumns.push(c);
     parts.push(
       input.split
@@ -60,7 +82,30 @@ export async function openSource(duck: Duck, spec: SourceSpec): Promise<Source> 
   } catch (e) {
     throw readError(where, e);
   }
-  return { inputs, columns: allColumns, splitColumn: perSplit.length > 0 ? PER_SPLIT_COLUMN : null, where };
+  const native = inputs.every((i) => i.format === 'parquet') ? await nativeView(duck, inputs) : null;
+  return { inputs, columns: allColumns, splitColumn: perSplit.length > 0 ? PER_SPLIT_COLUMN : null, where, native };
+}
+
+async function nativeView(duck: Duck, inputs: readonly TableInput[]): Promise<Source['native']> {
+  const parts = inputs.map((input) =>
+    input.split
+      ? `SELECT *, ${literal(input.split)} AS ${ident(PER_SPLIT_COLUMN)} FROM read_parquet(${literal(input.path)})`
+      : `SELECT * FROM read_parquet(${literal(input.path)})`,
+  );
+  try {
+    await duck.run(`CREATE OR REPLACE VIEW ${NATIVE_VIEW} AS ${parts.join(' UNION ALL BY NAME ')}`);
+    const rows = await duck.all(`DESCRIBE ${NATIVE_VIEW}`);
+    const kinds = new Map<string, ColumnKind>(
+      rows.map((r) => {
+        const type = String(r.column_type);
+        return [String(r.column_name), type === 'VARCHAR' ? 'text' : NUMBER_TYPES.has(type) ? 'number' : 'other'];
+      }),
+    );
+    return { view: NATIVE_VIEW, kinds };
+  } catch {
+    // the text view still serves the scan
+    return null;
+  }
 }
 
 /** `written`: the header as written in the file (CSV/TSV), where repeated names are still visible. */

@@ -17,6 +17,25 @@ export interface TableInput {
   readonly modified: string;
   /** set when the file was given as `--train F`, `--dev F`, …: every row belongs to that split */
   readonly split?: Split;
+  /**
+   * the header of a CSV or TSV file when its first line is plain (no quotes, no empty, padded or
+   * repeated names), read from the first bytes; the engine then need not sniff the file
+   */
+  readonly header?: readonly string[];
+}
+
+/** The names in a plain header line, or null when DuckDB should read the header itself. */
+function plainHeader(buf: Buffer, format: TableFormat): string[] | null {
+  let text = buf.toString('utf8');
+  if (text.charCodeAt(0) === 0xfeff) text = text.slice(1);
+  const end = text.indexOf('\n');
+  if (end < 0) return null;
+  const line = text.slice(0, end).replace(/\r$/, '');
+  if (line.includes('"') || line.includes('\ufffd') || line.includes('\r')) return null;
+  const names = line.split(format === 'csv' ? ',' : '\t');
+  if (names.some((n) => n === '' || n.trim() !== n || /[\x00-\x1f]/.test(n))) return null;
+  if (new Set(names).size !== names.length) return null;
+  return names;
 }
 
 const EXTENSIONS: Record<string, TableFormat> = {
@@ -101,6 +120,7 @@ export async function detectTable(path: string, split?: Split): Promise<TableInp
       `${path}: unknown format; expected CSV, TSV, JSON Lines or Parquet (optionally .gz), by extension or content`,
     );
   }
+  const header = (chosen === 'csv' || chosen === 'tsv') && !gzipMagic ? plainHeader(buf, chosen) : null;
   return {
     path,
     format: chosen,
@@ -108,6 +128,7 @@ export async function detectTable(path: string, split?: Split): Promise<TableInp
     bytes: info.size,
     modified: info.mtime.toISOString(),
     ...(split ? { split } : {}),
+    ...(header ? { header } : {}),
   };
 }
 
@@ -131,6 +152,18 @@ export async function tableSql(duck: Duck, input: TableInput): Promise<string> {
     case 'parquet':
       return `(SELECT COLUMNS(*)::VARCHAR FROM read_parquet(${path}))`;
   }
+}
+
+/**
+ * The CSV or TSV table expression with its columns named (every one VARCHAR) and detection off: DuckDB
+ * then reads the file without sniffing it again, which a large file would otherwise cost on every query.
+ * @param columns the columns as the detecting read found them
+ */
+export function pinnedCsvSql(input: TableInput, columns: readonly string[]): string {
+  const delim = input.format === 'csv' ? `','` : `'\t'`;
+  const compression = input.gzip ? `'gzip'` : `'uncompressed'`;
+  const spec = columns.map((c) => `${literal(c)}: 'VARCHAR'`).join(', ');
+  return `read_csv(${literal(input.path)}, header = true, auto_detect = false, columns = {${spec}}, delim = ${delim}, quote = '"', escape = '"', compression = ${compression})`;
 }
 
 function csvSql(input: TableInput, header: boolean): string {

@@ -1,7 +1,15 @@
-import betaQuantile from '@stdlib/stats-base-dists-beta-quantile';
+import { createRequire } from 'node:module';
 import { brentRoot } from './brent-root.js';
 import { digammaDifference, lnGammaDifference } from './gamma-differences.js';
 import { assertFinite, checkCount } from './validate-input.js';
+
+type BetaQuantile = typeof import('@stdlib/stats-base-dists-beta-quantile');
+let betaQuantileFn: BetaQuantile | null = null;
+/** @stdlib's beta quantile, loaded on first use (it takes a noticeable time to load, and only audits need it). */
+function betaQuantile(p: number, a: number, b: number): number {
+  betaQuantileFn ??= createRequire(import.meta.url)('@stdlib/stats-base-dists-beta-quantile') as BetaQuantile;
+  return betaQuantileFn(p, a, b);
+}
 
 /**
  * A Beta(α, β) prior for a family of proportions: mean α/(α + β), strength (prior sample size) α + β.

@@ -23,3 +23,4 @@ export type { BetaPrior } from './beta-binomial-fit.js';
 export { fitBetaPrior, betaPosterior } from './beta-binomial-fit.js';
 export type { PowerLawFit } from './power-law-fit.js';
 export { fitPowerLaw, logGapWeight } from './power-law-fit.js';
+export { chao1 } from './chao1.js';

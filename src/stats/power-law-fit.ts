@@ -1,5 +1,13 @@
-import tQuantile from '@stdlib/stats-base-dists-t-quantile';
+import { createRequire } from 'node:module';
 import { assertFinite } from './validate-input.js';
+
+type TQuantile = typeof import('@stdlib/stats-base-dists-t-quantile');
+let tQuantileFn: TQuantile | null = null;
+/** @stdlib's t quantile, loaded on first use (it takes a noticeable time to load, and only runs need it). */
+function tQuantile(p: number, df: number): number {
+  tQuantileFn ??= createRequire(import.meta.url)('@stdlib/stats-base-dists-t-quantile') as TQuantile;
+  return tQuantileFn(p, df);
+}
 
 /**
  * A fitted power-law learning curve g(n) = a·n^(−β).

@@ -1,5 +1,5 @@
-import { rollupSlices, runsOf, type SliceStats } from '../engine/slices.js';
-import type { Cell } from '../engine/types.js';
+import { selectCells } from '../engine/cell-table.js';
+import { rollupSlices, runsOf, type Cells, type SliceStats } from '../engine/slices.js';
 import { fitBetaPrior, type BetaPrior } from '../stats/index.js';
 import { annotatorFloor, ruleCounts } from './annotator-floor.js';
 import { sliceCurve } from './curve.js';
@@ -26,13 +26,19 @@ function sliceId(key: Readonly<Record<string, string>>): string {
  * The run whose numbers are reported: the one named, else the run with the most training rows
  * (ties: the later name). Null when the cells carry no run.
  */
-export function chooseRun(cells: readonly Cell[], wanted: string | null): string | null {
+export function chooseRun(cells: Cells, wanted: string | null): string | null {
   const runs = runsOf(cells);
   if (runs.length === 0) return null;
   if (wanted !== null) return runs.includes(wanted) ? wanted : null;
-  const train = new Map<string, number>();
-  for (const c of cells) if (c.run !== null && c.split === 'train') train.set(c.run, (train.get(c.run) ?? 0) + c.rows);
-  return runs.reduce((best, r) => ((train.get(r) ?? 0) >= (train.get(best) ?? 0) ? r : best), runs[0]);
+  const { table, index } = selectCells(cells);
+  const train = new Float64Array(table.runs.length);
+  const n = index ? index.length : table.size;
+  for (let j = 0; j < n; j++) {
+    const i = index ? index[j] : j;
+    if (table.run[i] >= 0 && table.split[i] === 0) train[table.run[i]] += table.rows[i];
+  }
+  const rowsOf = (r: string) => train[table.runs.indexOf(r)];
+  return runs.reduce((best, r) => (rowsOf(r) >= rowsOf(best) ? r : best), runs[0]);
 }
 
 /**
@@ -44,7 +50,7 @@ export function chooseRun(cells: readonly Cell[], wanted: string | null): string
  * buildReport(cells, ['station'], [], ctx, DEFAULT_TRIAGE_OPTIONS).slices[0].label; // => 'station=S5'
  */
 export function buildReport(
-  cells: readonly Cell[],
+  cells: Cells,
   by: readonly string[] | null,
   overviewColumns: readonly string[],
   context: ReportContext,

@@ -24,6 +24,7 @@ describe('src/stats/index.ts', () => {
       'betaPosterior',
       'fitPowerLaw',
       'logGapWeight',
+      'chao1',
     ];
     for (const name of names) expect(typeof (stats as Record<string, unknown>)[name]).toBe('function');
     expect(Object.keys(stats).sort()).toEqual([...names].sort());

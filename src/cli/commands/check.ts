@@ -88,7 +88,7 @@ export async function runCheck(args: CheckArgs, io: CliIO): Promise<number> {
     throw error('check needs at least one limit (--max-bias, --max-variance, --max-mismatch, --max-dev-error) or a --baseline');
   }
   const result = await withDuck(args, async (duck) => {
-    const { report, loaded } = await analyzeWith(duck, args);
+    const { report, loaded } = await analyzeWith(duck, args, io);
     const warnings = [...report.warnings];
     let comparisons: Comparison[] = [];
     let baseline: { path: string; kind: 'report' | 'paired' } | null = null;
@@ -103,6 +103,9 @@ export async function runCheck(args: CheckArgs, io: CliIO): Promise<number> {
         comparisons = compareReports(report, before, report.fdr, report.fdr_method);
         baseline = { path: args.baseline, kind: 'report' };
       } else {
+        if (loaded.origin === 'cells') {
+          throw error(`${args.baseline}: a baseline model's predictions are paired with the rows by id, and --cells gives no rows; compare with a saved JSON report instead`);
+        }
         const groupings = report.by ? [[...report.by]] : loaded.overviewColumns.map((c) => [c]);
         const { sums, warnings: more } = await pairedCounts(duck, loaded, args.baseline, toLoadOptions(args).roles, groupings, args.where ?? null, report.run);
         warnings.push(...more);

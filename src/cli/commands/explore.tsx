@@ -2,6 +2,7 @@ import { existsSync } from 'node:fs';
 import { render } from 'ink';
 import type { Argv } from 'yargs';
 import { openDuck, type Duck } from '../../engine/duck.js';
+import { watchProgress, type ScanProgress } from '../../engine/progress.js';
 import { App } from '../../tui/App.js';
 import { explorerData, type Exporter } from '../../tui/session.js';
 import type { SliceReport } from '../../triage/types.js';
@@ -44,6 +45,7 @@ export async function runExplore(args: ExploreArgs, io: CliIO, argv: readonly st
 
   let duck: Duck | null = null;
   let stopped = false;
+  let latest: ScanProgress | null = null;
   const exporter: Exporter = async (slices, path, force) => {
     const out: string[] = [];
     const capture = { write: (chunk: string | Uint8Array, cb?: (e?: Error | null) => void) => (out.push(String(chunk)), cb?.(), true) } as unknown as NodeJS.WritableStream;
@@ -118,11 +120,17 @@ export async function runExplore(args: ExploreArgs, io: CliIO, argv: readonly st
         title={args.files?.join(', ') ?? 'the prediction table'}
         color={useColor(io)}
         ascii={args.ascii}
+        progress={() => (latest ? { percent: latest.percentage, rows: latest.rowsProcessed } : null)}
         load={async () => {
           duck = await openDuck({ threads: args.threads, memoryLimit: args['memory-limit'] });
           if (stopped) throw new Error('stopped'); // quit while the engine was starting: no scan
-          const analysis = await analyzeWith(duck, args);
-          return explorerData(duck, analysis, exporter);
+          const stop = watchProgress(duck, (p) => (latest = p), 200);
+          try {
+            const analysis = await analyzeWith(duck, args);
+            return explorerData(duck, analysis, exporter);
+          } finally {
+            stop();
+          }
         }}
         onExit={(code, error) => finish(code, code === 2 ? error : undefined)}
         defaultExportPath={() => `floorgap-export-${new Date().toISOString().slice(0, 19).replace(/[:T]/g, '-')}.csv`}

@@ -102,6 +102,9 @@ const SHAPING: readonly (keyof AnalysisArgs)[] = [
  * @param hooks optional steps inside the writer (tests use them to inject failures)
  */
 export async function runExport(args: ExportArgs, io: CliIO, argv: readonly string[], hooks?: ExportHooks): Promise<number> {
+  if (args.cells !== undefined) {
+    throw error('export writes the rows behind slices, and --cells holds no rows; give the prediction tables the cells came from');
+  }
   const out = String(args.out);
   if (out.trim() === '') throw error('--out: expected a file name, e.g. --out rows.csv');
   const format = exportFormatFor(out);
@@ -130,7 +133,7 @@ export async function runExport(args: ExportArgs, io: CliIO, argv: readonly stri
         }
       }
     }
-    const { report, loaded } = await analyzeWith(duck, analysisArgs);
+    const { report, loaded } = await analyzeWith(duck, analysisArgs, io);
     const resolve = (c: string) => (source.columns.includes(c) ? c : c === 'label' ? loaded.roles.label ?? c : c === 'pred' ? loaded.roles.pred ?? c : c);
     const resolved: Selection =
       selection.kind === 'named'

@@ -21,7 +21,7 @@ export function reportOptions<T>(y: Argv<T>) {
 
 /** `floorgap report`: the ranked slice report on stdout. */
 export async function runReport(args: ReportArgs, io: CliIO): Promise<number> {
-  const { report } = await analyze(args);
+  const { report } = await analyze(args, io);
   const width = Math.max(60, Math.min(100, io.stdout.columns ?? 100));
   await writeOut(io, render(report, args.format, { color: useColor(io), width }));
   return 0;

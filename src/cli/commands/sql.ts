@@ -1,0 +1,159 @@
+import { promises as fs } from 'node:fs';
+import { dirname } from 'node:path';
+import type { Argv } from 'yargs';
+import { cellQuery } from '../../engine/cell-query.js';
+import { DIALECTS, type DialectName } from '../../engine/dialect.js';
+import { round3 } from '../../engine/profile.js';
+import { ROWS_VIEW } from '../../engine/source.js';
+import { literal } from '../../engine/sql.js';
+import { planWarehouse, warehouseQuery } from '../../engine/warehouse.js';
+import { exportFormatFor } from '../../io/export-rows.js';
+import { tempPathFor } from '../../io/write-atomic.js';
+import { sanitize } from '../../render/index.js';
+import { VERSION } from '../../version.js';
+import { error } from '../../util/error.js';
+import { withDuck } from '../analyze.js';
+import type { CliIO } from '../io.js';
+import { writeOut } from '../io.js';
+import { list, toLoadOptions, type AnalysisArgs } from '../options.js';
+import { scanProgress } from '../progress.js';
+
+export interface SqlArgs extends AnalysisArgs {
+  table?: string;
+  dialect: DialectName;
+  'bin-edges'?: string | string[];
+  classes?: string;
+  grouping: 'auto' | 'cross' | 'sets';
+  out?: string;
+  force: boolean;
+}
+
+/** The options of `floorgap sql`: those that shape cells, and where and how the query runs. */
+export function sqlOptions<T>(y: Argv<T>) {
+  return y
+    .positional('files', { type: 'string', array: true, describe: 'a local sample of the table (optional): columns, bins and grouping are then chosen as a local report would' })
+    .option('table', { type: 'string', describe: 'the warehouse table the query reads, as your engine names it (e.g. lake.preds)', group: 'Query:' })
+    .option('dialect', { choices: DIALECTS, default: 'ansi' as DialectName, describe: 'SQL dialect of the query', group: 'Query:' })
+    .option('bin-edges', { type: 'string', describe: 'numeric slice column and its bin edges, e.g. sharpness=0.58,0.65,0.7 (repeatable); a column alone prints a query for its edges', group: 'Query:' })
+    .option('classes', { type: 'string', describe: 'classes counted for annotator agreement, comma-separated (without a sample file)', group: 'Query:' })
+    .option('grouping', { choices: ['auto', 'cross', 'sets'] as const, default: 'auto' as const, describe: 'full cross of the slice columns, or grouping sets of columns and pairs (auto: as a local report)', group: 'Query:' })
+    .option('out', { alias: 'o', type: 'string', describe: 'run the query here over the files and write the cells (.csv, .jsonl or .parquet)', group: 'Query:' })
+    .option('force', { type: 'boolean', default: false, describe: 'overwrite --out', group: 'Query:' })
+    .option('train', { type: 'string', describe: 'file holding the train split', group: 'Inputs:' })
+    .option('train-dev', { type: 'string', describe: 'file holding the train_dev split', group: 'Inputs:' })
+    .option('dev', { type: 'string', describe: 'file holding the dev split', group: 'Inputs:' })
+    .option('test', { type: 'string', describe: 'file holding the test split', group: 'Inputs:' })
+    .option('config', { type: 'string', describe: 'project file (default: ./floorgap.json when present)', group: 'Inputs:' })
+    .option('where', { type: 'string', describe: 'keep rows matching an SQL condition (written into the query as given)', group: 'Inputs:' })
+    .option('label', { type: 'string', describe: 'column with the true class (default: label)', group: 'Columns:' })
+    .option('pred', { type: 'string', describe: 'column with the predicted class (default: pred)', group: 'Columns:' })
+    .option('error', { type: 'string', describe: '0/1 error column, instead of label and pred', group: 'Columns:' })
+    .option('split', { type: 'string', describe: 'column with the split (default: split)', group: 'Columns:' })
+    .option('id', { type: 'string', describe: 'column with the row id', group: 'Columns:' })
+    .option('score', { type: 'string', describe: "column with the model's confidence (checked: a number)", group: 'Columns:' })
+    .option('weight', { type: 'string', describe: 'column with the sample weight (>= 0)', group: 'Columns:' })
+    .option('run-column', { type: 'string', describe: 'column naming the training run', group: 'Columns:' })
+    .option('by', { type: 'string', describe: 'slice by these columns, comma-separated (they join the cell columns)', group: 'Slices:' })
+    .option('slice-cols', { type: 'string', describe: 'slice columns, comma-separated (required without a sample file)', group: 'Slices:' })
+    .option('bins', { type: 'number', default: 5, describe: 'bins for numeric columns', group: 'Slices:' })
+    .option('max-cells', { type: 'number', default: 200_000, describe: 'largest full cross before grouping sets (with a sample file)', group: 'Slices:' })
+    .option('floor', { type: 'number', describe: 'human-level error for every row, a fraction (default 0)', group: 'Floors:' })
+    .option('floor-table', { type: 'string', describe: 'table of floors keyed by slice columns (+ optional n), inlined in the query', group: 'Floors:' })
+    .option('annotators', { type: 'string', describe: 'columns of human labels from an audit, comma-separated', group: 'Floors:' })
+    .option('cost-table', { type: 'string', describe: 'table of label_cost keyed by slice columns, inlined in the query', group: 'Floors:' })
+    .option('threads', { type: 'number', default: 2, describe: 'DuckDB worker threads (sample file, --out)', group: 'Engine:' })
+    .option('memory-limit', { type: 'string', default: '2GB', describe: 'DuckDB memory limit', group: 'Engine:' })
+    .option('progress', { choices: ['auto', 'always', 'never'] as const, default: 'auto' as const, describe: 'progress of --out on stderr', group: 'Engine:' });
+}
+
+/**
+ * Parses --bin-edges values: `col=e1,e2,…` (edges rounded to 3 significant digits, as local bins are,
+ * sorted, duplicates dropped) or `col` alone (numeric, edges not known yet).
+ * @example
+ * parseBinEdges(['sharpness=0.7,0.583']); // => Map { 'sharpness' => [0.583, 0.7] }
+ */
+export function parseBinEdges(values: string | string[] | undefined): Map<string, number[]> {
+  const out = new Map<string, number[]>();
+  const items = (Array.isArray(values) ? values : values === undefined ? [] : [values]).flatMap((v) => String(v).split(';'));
+  for (const item of items.map((s) => s.trim()).filter(Boolean)) {
+    const at = item.indexOf('=');
+    const col = (at < 0 ? item : item.slice(0, at)).trim();
+    if (col === '') throw error(`--bin-edges "${item}": expected COLUMN=e1,e2,… (or a column alone)`);
+    const edges = at < 0 ? [] : item.slice(at + 1).split(',').map((s) => s.trim()).filter(Boolean).map((s) => {
+      const x = Number(s);
+      if (!Number.isFinite(x)) throw error(`--bin-edges ${col}: "${s}" is not a number; expected COLUMN=e1,e2,…`);
+      return round3(x);
+    });
+    if (at >= 0 && edges.length === 0) throw error(`--bin-edges ${col}=: expected at least one edge, e.g. ${col}=0.5`);
+    out.set(col, [...new Set(edges)].sort((a, b) => a - b));
+  }
+  return out;
+}
+
+function copyFormat(path: string): string {
+  const f = exportFormatFor(path);
+  return f === 'csv' ? 'FORMAT csv, HEADER true' : f === 'jsonl' ? 'FORMAT json' : 'FORMAT parquet';
+}
+
+/**
+ * `floorgap sql`: prints the GROUP BY that computes the cells in the user's own SQL engine (or, with
+ * --out, runs it here over the files and writes the cells).
+ */
+export async function runSql(args: SqlArgs, io: CliIO): Promise<number> {
+  const out = args.out === undefined ? null : String(args.out);
+  const hasFiles = (args.files ?? []).length > 0 || [args.train, args['train-dev'], args.dev, args.test].some((f) => f !== undefined);
+  if (out === null && !args.table) throw error('floorgap sql needs --table NAME (the warehouse table the query reads), or --out F to run it here over the files');
+  if (out !== null && !hasFiles) throw error('--out runs the query here, over prediction tables; give the files (e.g. floorgap sql preds.csv --out cells.parquet)');
+  if (args.bins !== undefined && (!Number.isInteger(args.bins) || args.bins < 2)) throw error(`--bins ${args.bins}: expected a whole number >= 2`);
+  const edges = parseBinEdges(args['bin-edges']);
+  const classes = list(args.classes);
+  const loadOptions = toLoadOptions({ ...args, 'max-cells': args['max-cells'] ?? 200_000 });
+  if (out !== null) {
+    if (!args.force && (await fs.lstat(out).then(() => true, () => false))) throw error(`${out}: file exists; pass --force to overwrite it`);
+    const dir = dirname(out);
+    if (!(await fs.stat(dir).then((s) => s.isDirectory(), () => false))) throw error(`${out}: folder ${dir} does not exist`);
+  }
+  return withDuck(args, async (duck) => {
+    const planned = await planWarehouse(duck, loadOptions, { dialect: args.dialect, table: args.table ?? ROWS_VIEW, edges, classes, grouping: args.grouping });
+    if (planned.kind === 'needs') {
+      const text = planned.queries.map((q) => `-- ${q.what}\n${q.sql};\n`).join('\n');
+      await writeOut(io, sanitize(text, { keepWhitespace: true }));
+      io.stderr.write(`floorgap: run the ${planned.queries.length === 1 ? 'query' : 'queries'} above on the table, then run floorgap sql again with what ${planned.queries.length === 1 ? 'it gives' : 'they give'}\n`);
+      return 0;
+    }
+    const { plan, grouping } = planned;
+    if (out !== null) {
+      for (const c of plan.columns) {
+        if (c.name.startsWith('fg_')) throw error(`column "${c.name}" starts with fg_, which cells files keep for statistics; rename it or leave it out with --slice-cols`);
+      }
+      const query = cellQuery(plan, grouping, { table: ROWS_VIEW, textColumns: true, names: 'cells' });
+      const tmp = tempPathFor(out);
+      const bytes = planned.planned?.source.inputs.reduce((a, i) => a + i.bytes, 0) ?? 0;
+      const stop = scanProgress(io, args.progress ?? 'auto')?.(duck, { where: planned.planned?.source.where ?? '', bytes }) ?? (() => undefined);
+      try {
+        await duck.run(`COPY (${query}) TO ${literal(tmp)} (${copyFormat(out)})`);
+        await fs.rename(tmp, out);
+      } catch (e) {
+        await fs.rm(tmp, { force: true });
+        if (e instanceof Error && e.name === 'FloorgapError') throw e;
+        throw error(`${out}: cannot write the cells (${e instanceof Error ? e.message.split('\n')[0] : String(e)})`, e);
+      } finally {
+        stop();
+      }
+      const [{ n }] = await duck.all(`SELECT count(*) AS n FROM (${query})`).catch(() => [{ n: null }]);
+      await writeOut(io, `wrote ${n ?? 'the'} cells to ${sanitize(out)}; next: floorgap report --cells ${sanitize(out)}\n`);
+      return 0;
+    }
+    const query = warehouseQuery(plan, grouping, args.dialect, String(args.table));
+    const head = [
+      `-- floorgap ${VERSION}: the cells of ${args.table} (${args.dialect} SQL)`,
+      `-- slice columns: ${plan.columns.map((c) => (c.kind === 'binned' && c.edges?.length ? `${c.name} (bins at ${c.edges.join(', ')})` : c.name)).join(', ')}`,
+      `-- grouping: ${grouping.kind === 'cross' ? 'full cross' : `${grouping.sets.length} grouping sets`}; split column ${plan.splitColumn}; ${plan.roles.error ? `error column ${plan.roles.error}` : `label ${plan.roles.label}, pred ${plan.roles.pred}`}`,
+      `-- floors: ${plan.floorEntries.length ? `${plan.floorEntries.length} floor-table entries (inlined), ` : ''}default ${plan.defaultFloor}`,
+      `-- save the result as CSV, Parquet or JSON Lines, then: floorgap report --cells FILE`,
+    ];
+    // strings from the data and the options are quoted SQL; sanitize keeps them off the terminal's controls
+    await writeOut(io, sanitize(`${head.join('\n')}\n${query};\n`, { keepWhitespace: true }));
+    return 0;
+  });
+}

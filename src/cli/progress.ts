@@ -1,0 +1,74 @@
+/**
+ * Progress of long scans on stderr: a bar redrawn in place when stderr is a terminal, else one line
+ * when reading starts and one when it ends, nothing more (logs stay short). Only for large inputs
+ * unless `--progress always`; never with `--progress never`.
+ */
+import type { Duck } from '../engine/duck.js';
+import type { LoadHooks } from '../engine/load.js';
+import { watchProgress, type ScanProgress } from '../engine/progress.js';
+import { sanitize, truncate } from '../render/sanitize.js';
+import type { CliIO } from './io.js';
+
+/** Inputs at least this large (bytes, all files together) show progress under `--progress auto`. */
+export const PROGRESS_MIN_BYTES = 64 * 1024 * 1024;
+
+const BAR = 24;
+
+function mb(bytes: number): string {
+  return bytes >= 10 * 1024 * 1024 ? `${Math.round(bytes / 1024 / 1024)} MB` : `${(bytes / 1024 / 1024).toFixed(1)} MB`;
+}
+
+function seconds(ms: number): string {
+  return `${(ms / 1000).toFixed(1)} s`;
+}
+
+/**
+ * The bar line for a reading: percentage, bytes read of all (from DuckDB's percentage), elapsed time
+ * and rate.
+ * @example
+ * progressLine('preds.csv', 629145600, { percentage: 50, rowsProcessed: 0, totalRows: 0 }, 2000);
+ * // => 'reading preds.csv  [############............]  50 %  300 of 600 MB  2.0 s  150 MB/s'
+ */
+export function progressLine(where: string, bytes: number, p: ScanProgress, elapsedMs: number): string {
+  const done = Math.round((p.percentage / 100) * BAR);
+  const bar = '#'.repeat(done) + '.'.repeat(BAR - done);
+  const read = (p.percentage / 100) * bytes;
+  const rate = elapsedMs > 0 ? read / (elapsedMs / 1000) : 0;
+  return `reading ${where}  [${bar}]  ${Math.floor(p.percentage)} %  ${mb(read).replace(' MB', '')} of ${mb(bytes)}  ${seconds(elapsedMs)}  ${mb(rate)}/s`;
+}
+
+/**
+ * The scan watcher for a command's load, or undefined when no progress should show.
+ * @param mode the `--progress` option
+ */
+export function scanProgress(io: Pick<CliIO, 'stderr' | 'env'>, mode: 'auto' | 'always' | 'never' = 'auto'): LoadHooks['onScan'] {
+  if (mode === 'never') return undefined;
+  return (duck: Duck, info) => {
+    if (mode === 'auto' && info.bytes < PROGRESS_MIN_BYTES) return () => undefined;
+    const where = sanitize(info.where);
+    const tty = Boolean(io.stderr.isTTY);
+    const t0 = Date.now();
+    let stop = () => undefined as void;
+    let drawn = false;
+    if (tty) {
+      const width = Math.max(40, ((io.stderr as { columns?: number }).columns ?? 80) - 1);
+      stop = watchProgress(
+        duck,
+        (p) => {
+          io.stderr.write(`\r\x1b[K${truncate(`floorgap: ${progressLine(where, info.bytes, p, Date.now() - t0)}`, width)}`);
+          drawn = true;
+        },
+        100,
+      );
+    } else {
+      io.stderr.write(`floorgap: reading ${where} (${mb(info.bytes)})\n`);
+    }
+    return () => {
+      stop();
+      const ms = Date.now() - t0;
+      if (drawn) io.stderr.write('\r\x1b[K');
+      const rate = ms > 0 ? mb(info.bytes / (ms / 1000)) : '-';
+      io.stderr.write(`floorgap: read ${where} (${mb(info.bytes)}) in ${seconds(ms)} (${rate}/s)\n`);
+    };
+  };
+}
