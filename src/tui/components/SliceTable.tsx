@@ -72,7 +72,7 @@ export function mergeSpans(spans: readonly Span[]): Span[] {
 /**
  * The slice table: a header and only the rows that fit (a window around the cursor), so a report of
  * thousands of slices draws as fast as one of twenty. Thin slices are dimmed; the selected row is
- * shown in inverse video.
+ * shown reversed (inverse colours).
  */
 export function SliceTable(props: SliceTableProps) {
   const rows = props.slices.slice(props.start, props.start + props.height);
