@@ -12,7 +12,7 @@
  */
 import { spawnSync } from 'node:child_process';
 import { createReadStream, existsSync, mkdirSync, mkdtempSync, rmSync, writeFileSync } from 'node:fs';
-import { cpus, tmpdir, totalmem } from 'node:os';
+import { cpus, loadavg, tmpdir, totalmem } from 'node:os';
 import { join } from 'node:path';
 import { op, table as aqTable } from 'arquero';
 import { writeBenchTable } from './bench-table.js';
@@ -119,6 +119,45 @@ async function inProcess(path: string, floors: string): Promise<{ phases: Phases
   rollupSlices(loaded.table, []);
   const slices = now() - t4;
   return { phases: { scan: t1 - t0, slices, triage: Math.max(0, t2 - t1 - slices), render: t3 - t2, total: t3 - t0 }, loaded, report };
+}
+
+/** Where the scan's time goes: each engine statement classified by what it does; the rest is JS. */
+async function scanBreakdown(path: string, floors: string): Promise<Record<string, number>> {
+  const t0 = now();
+  const duck = await openDuck({ threads: 2, memoryLimit: '2GB' });
+  const parts: Record<string, number> = { 'open engine': now() - t0 };
+  const kind = (sql: string): string => {
+    const s = sql.replace(/\s+/g, ' ');
+    if (/^DESCRIBE|^CREATE OR REPLACE VIEW|header = false/.test(s)) return 'open inputs';
+    if (/fg_sample AS SELECT|current_setting|^SET threads/.test(s)) return 'sample (first 100,000 rows)';
+    if (/quantile_cont/.test(s)) return 'bin edges';
+    if (/FILTER \(WHERE n = 1\)/.test(s)) return 'cross-size estimate';
+    if (/^CREATE TEMP TABLE fg_cells_/.test(s)) return 'cell query';
+    if (/fg_cells_|^DROP TABLE/.test(s)) return 'read cells';
+    if (/read_csv\(.*floors/.test(s)) return 'floor table';
+    return 'profile';
+  };
+  const wrap = <T,>(fn: (sql: string) => Promise<T>) => async (sql: string) => {
+    const t = now();
+    try {
+      return await fn(sql);
+    } finally {
+      const k = kind(sql);
+      parts[k] = (parts[k] ?? 0) + now() - t;
+    }
+  };
+  // every statement goes through run (runAndReadAll calls it too)
+  const conn = duck.connection as unknown as { run: (sql: string) => Promise<unknown> };
+  conn.run = wrap(conn.run.bind(conn));
+  const t1 = now();
+  try {
+    await loadCells(duck, loadOptionsFor(path, floors));
+  } finally {
+    duck.close();
+  }
+  const engine = Object.entries(parts).reduce((a, [k, v]) => (k === 'open engine' ? a : a + v), 0);
+  parts['JS (plan, checks, typed arrays)'] = now() - t1 - engine;
+  return Object.fromEntries(Object.entries(parts).map(([k, v]) => [k, Math.round(v)]));
 }
 
 /** The whole `floorgap report --format json` process, with its peak RSS. */
@@ -229,6 +268,8 @@ const machine = {
   cpu: cpus()[0]?.model ?? 'unknown',
   memoryGiB: Math.round(totalmem() / 2 ** 30),
   node: process.version,
+  /** 1-minute load average when the run started (a shared machine runs other work too) */
+  loadBefore: Number(loadavg()[0].toFixed(2)),
 };
 log(`machine: ${machine.cores} cores (${machine.cpu}), ${machine.memoryGiB} GiB; ${reps} repetitions each`);
 
@@ -303,6 +344,7 @@ for (const rows of sizes) {
       } finally {
         duck.close();
       }
+      const breakdown = await scanBreakdown(path, files.floors);
       const floorOf = (pkg: string) => ({ '0201': 0.12, '0402': 0.04, '0603': 0.03, QFN: 0.03, BGA: 0.05, SOIC: 0.02 })[pkg] ?? 0;
       const check = checkCells(loaded!, bareRows, floorOf);
       const m = (f: (p: Phases) => number) => median(phases.map(f));
@@ -325,6 +367,7 @@ for (const rows of sizes) {
         peak_rss_mb: rss || null,
         cells_equal_bare_group_by: check.equal,
         cell_check_problems: check.problems,
+        scan_breakdown_ms: breakdown,
         bare_sql: sql,
       };
       results.push(row);
@@ -414,7 +457,7 @@ for (const rows of sizes) {
 const micro = [rollupMicro(200_000), rollupMicro(1_000_000)];
 const result = {
   when: new Date().toISOString(),
-  machine,
+  machine: { ...machine, loadAfter: Number(loadavg()[0].toFixed(2)) },
   reps,
   startup_ms: median(startup),
   startup_without_explorer_ms: median(startupWithoutExplorer),
@@ -430,7 +473,7 @@ writeFileSync('bench/results/latest.json', JSON.stringify(result, null, 2) + '\n
 const f0 = (x: unknown) => (typeof x === 'number' ? x.toFixed(0) : 'n/a');
 const f2 = (x: unknown) => (typeof x === 'number' ? x.toFixed(2) : 'n/a');
 const out: string[] = [];
-out.push(`Machine: ${machine.cores} cores (${machine.cpu}), ${machine.memoryGiB} GiB memory, Node ${machine.node}; medians of ${reps} runs.`, '');
+out.push(`Machine: ${machine.cores} cores (${machine.cpu}), ${machine.memoryGiB} GiB memory, Node ${machine.node}; load average ${machine.loadBefore} at the start, ${result.machine.loadAfter} at the end; medians of ${reps} runs.`, '');
 out.push('| rows | format | MB | cells | plain read | DuckDB bare GROUP BY | floorgap scan → cells | cells → slices | triage | render | in-process total | `report` process | process ÷ GROUP BY | in-process ÷ GROUP BY | peak RSS (MB) | cells = GROUP BY |');
 out.push('|---:|---|---:|---:|---:|---:|---:|---:|---:|---:|---:|---:|---:|---:|---:|---|');
 for (const r of results) {
@@ -445,6 +488,11 @@ for (const r of interactive) {
   out.push(
     `| ${Number(r.rows).toLocaleString('en')} | ${Number(r.cells).toLocaleString('en')} | ${f0(r.regroup_ms)} | ${f0(r.regroup_objects_ms)} | ${f2(r.resort_2000_ms)} | ${r.frame_2000_ms === null ? 'n/a' : `${f0(r.frame_2000_ms)} / ${f0(r.frame_2000_max_ms)}`} | ${f0(r.reopen_ms)} | ${f0(r.reopen_in_process_ms)} |`,
   );
+}
+out.push('', 'Where `scan → cells` goes (ms, one instrumented run):', '');
+for (const r of results) {
+  const b = r.scan_breakdown_ms as Record<string, number>;
+  out.push(`- ${Number(r.rows).toLocaleString('en')} ${r.format}: ${Object.entries(b).map(([k, v]) => `${k} ${v}`).join(' · ')}`);
 }
 out.push('', `Process start-up (\`floorgap --version\`): ${f0(result.startup_ms)} ms; the same modules without the explorer's (ink, react): ${f0(result.startup_without_explorer_ms)} ms.`, '');
 out.push('| synthetic cells | typed-array rollup (floorgap) | arquero groupby/rollup |', '|---:|---:|---:|');

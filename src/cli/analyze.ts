@@ -49,7 +49,7 @@ function hooksFor(args: AnalysisArgs, io?: AnalysisIO): LoadHooks {
 }
 
 /** cells → slices → triage: the report of loaded cells. */
-function reportOf(loaded: Loaded, args: AnalysisArgs, triageOptions: TriageOptions, where: string | null): Analysis {
+function reportOf(loaded: Loaded, triageOptions: TriageOptions, where: string | null): Analysis {
   const roles: Record<string, string | null> = {
     label: loaded.roles.label,
     pred: loaded.roles.pred,
@@ -89,11 +89,11 @@ export async function analyzeWith(duck: Duck, args: AnalysisArgs, io?: AnalysisI
   const triageOptions = toTriageOptions(args);
   if (usesCells(args)) {
     const loaded = await loadCellFiles(duck, cellPaths(args, io), list(args.by));
-    return reportOf(loaded, args, triageOptions, null);
+    return reportOf(loaded, triageOptions, null);
   }
   const loadOptions = toLoadOptions(args);
   const loaded = await loadCells(duck, loadOptions, hooksFor(args, io));
-  return reportOf(loaded, args, triageOptions, loadOptions.where);
+  return reportOf(loaded, triageOptions, loadOptions.where);
 }
 
 /** Opens the engine with the user's resource settings and runs `use` on it, closing it afterwards. */
@@ -117,7 +117,7 @@ export async function analyze(args: AnalysisArgs, io?: AnalysisIO): Promise<Anal
     const cache = hooksFor(args, io).cache;
     const key = cache ? await cacheKey(loadOptions, cache.version, cache.cwd) : null;
     const hit = cache && key ? await readCache(cache.dir, key) : null;
-    if (hit) return reportOf(withCells(hit), args, triageOptions, loadOptions.where);
+    if (hit) return reportOf(withCells(hit), triageOptions, loadOptions.where);
   }
   return withDuck(args, (duck) => analyzeWith(duck, args, io));
 }

@@ -71,19 +71,7 @@ export interface CellColumnNames {
   readonly classCounts: readonly (readonly string[])[];
 }
 
-/** The statistic columns of every cell, in output order (audit columns follow when there are annotators). */
-export const CELL_STAT_COLUMNS = [
-  'fg_floor_entry',
-  'fg_floor',
-  'fg_floor_n',
-  'fg_rows',
-  'fg_weight',
-  'fg_weight_sq',
-  'fg_errors',
-  'fg_floor_sum',
-  'fg_cost_sum',
-  'fg_cost_weight',
-] as const;
+/** The audit columns of a cell (per-annotator columns follow). */
 export const AUDIT_COLUMNS = ['fg_audited', 'fg_panel_rows', 'fg_panel_errors', 'fg_agree_sum'] as const;
 
 /** The output column names for a plan (see {@link CellQueryOptions.names}). */

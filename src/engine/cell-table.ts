@@ -354,16 +354,9 @@ export function concatTables(a: CellTable, b: CellTable): CellTable {
         floorN: Number.isNaN(t.floorN[i]) ? null : t.floorN[i],
         costSum: t.costSum[i],
         costWeight: t.costWeight[i],
-        audit: t.audit ? { length: t.audit.fields.length, ...Object.fromEntries(t.audit.fields.map((f, k) => [k, f[i]])) } : null,
+        audit: t.audit ? t.audit.fields.map((f) => f[i]) : null,
       });
     }
   }
   return builder.build();
-}
-
-/** Bit mask of the columns a cell groups by (bit c set when column c is not null). */
-export function groupedMask(table: CellTable, i: number): number {
-  let m = 0;
-  for (let c = 0; c < table.codes.length; c++) if (table.codes[c][i] >= 0) m |= 1 << c;
-  return m;
 }

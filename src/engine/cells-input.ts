@@ -4,7 +4,7 @@
  * are summed. The cells enter the flow where the scan's cells would: the result is a `Loaded`.
  * Format: docs/formats.md, "Cells".
  */
-import { AUDIT_COLUMNS, CELL_STAT_COLUMNS } from './cell-query.js';
+import { AUDIT_COLUMNS } from './cell-query.js';
 import type { CellPlan, Grouping } from './cells.js';
 import { unknownSplitError } from './cells.js';
 import type { Duck } from './duck.js';

@@ -1,7 +1,7 @@
 import type { Duck } from './duck.js';
 import { binLabel, textSql } from './profile.js';
 import type { Roles } from './roles.js';
-import { normalizeSplit, SPLIT_HELP } from './roles.js';
+import { SPLIT_HELP } from './roles.js';
 import { AUDIT_COLUMNS, cellColumnNames, cellQuery, STATUS_SPLITS, type ColumnKind } from './cell-query.js';
 import type { CellTable } from './cell-table.js';
 import { readCells } from './read-cells.js';

@@ -1,7 +1,7 @@
 /**
  * Reads cells from a DuckDB query or table into a CellTable without turning every key into a JS string:
- * DuckDB numbers each key column's distinct values (dense_rank), floorgap reads the small dictionaries
- * once and the codes and sums as numbers.
+ * DuckDB numbers each key column's distinct values (a small dictionary per column, joined back to the
+ * cells), floorgap reads the dictionaries once and the codes and sums as typed arrays.
  */
 import type { AuditColumns, CellTable } from './cell-table.js';
 import type { Duck } from './duck.js';

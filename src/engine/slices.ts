@@ -58,7 +58,16 @@ const crossTables = new WeakMap<CellTable, boolean>();
 export function isCrossTable(table: CellTable): boolean {
   let known = crossTables.get(table);
   if (known === undefined) {
-    known = table.codes.every((codes) => codes.every((k) => k >= 0));
+    known = true;
+    for (const codes of table.codes) {
+      for (let i = 0; i < codes.length; i++) {
+        if (codes[i] < 0) {
+          known = false;
+          break;
+        }
+      }
+      if (!known) break;
+    }
     crossTables.set(table, known);
   }
   return known;
@@ -207,36 +216,38 @@ export function rollupSlices(cells: Cells, by: readonly string[], run: string | 
   const pN = dense ? new Float64Array(partCount).fill(NaN) : null;
   const pSeen = dense ? new Uint8Array(partCount) : null;
   const sparse = dense ? null : new Map<number, { weight: number; floorSum: number; n: number }>();
+  // the table's arrays in locals: the loop below is the rollup's whole cost
+  const { split, rows, weight, weightSq, errors, floorSum, costSum, costWeight, floorEntry, floorN } = table;
   for (let j = 0; j < m; j++) {
     const i = use[j];
     const slot = slotOf[j];
-    const sp = table.split[i];
+    const sp = split[i];
     const base = (slot * 4 + sp) * SUM_FIELDS;
     present[slot * 4 + sp] = 1;
-    sums[base] += table.rows[i];
-    sums[base + 1] += table.weight[i];
-    sums[base + 2] += table.weightSq[i];
-    sums[base + 3] += table.errors[i];
-    sums[base + 4] += table.floorSum[i];
-    sums[base + 5] += table.costSum[i];
-    sums[base + 6] += table.costWeight[i];
+    sums[base] += rows[i];
+    sums[base + 1] += weight[i];
+    sums[base + 2] += weightSq[i];
+    sums[base + 3] += errors[i];
+    sums[base + 4] += floorSum[i];
+    sums[base + 5] += costSum[i];
+    sums[base + 6] += costWeight[i];
     if (auditSums) {
       const f = audit!.fields;
       const ab = slot * f.length;
       for (let k = 0; k < f.length; k++) auditSums[ab + k] += f[k][i];
     }
     if (sp === 0 || sp === 2) {
-      const p = (slot * 2 + (sp === 2 ? 1 : 0)) * width + table.floorEntry[i] - entries.min;
+      const p = (slot * 2 + (sp === 2 ? 1 : 0)) * width + floorEntry[i] - entries.min;
       if (pWeight) {
         pSeen![p] = 1;
-        pWeight[p] += table.weight[i];
-        pFloorSum![p] += table.floorSum[i];
-        if (Number.isNaN(pN![p])) pN![p] = table.floorN[i];
+        pWeight[p] += weight[i];
+        pFloorSum![p] += floorSum[i];
+        if (Number.isNaN(pN![p])) pN![p] = floorN[i];
       } else {
         const part = sparse!.get(p) ?? { weight: 0, floorSum: 0, n: NaN };
-        part.weight += table.weight[i];
-        part.floorSum += table.floorSum[i];
-        if (Number.isNaN(part.n)) part.n = table.floorN[i];
+        part.weight += weight[i];
+        part.floorSum += floorSum[i];
+        if (Number.isNaN(part.n)) part.n = floorN[i];
         sparse!.set(p, part);
       }
     }

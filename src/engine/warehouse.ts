@@ -110,7 +110,7 @@ export async function planWarehouse(duck: Duck, options: LoadOptions, w: Warehou
   return { kind: 'ready', plan, grouping, planned: null };
 }
 
-function sample(d: Dialect, table: string, where: string | null): string {
+function sample(table: string, where: string | null): string {
   return `(SELECT * FROM ${table}${where ? ` WHERE (${where})` : ''} LIMIT ${SAMPLE_ROWS}) AS fg_sample`;
 }
 
@@ -118,7 +118,7 @@ function sample(d: Dialect, table: string, where: string | null): string {
 export function edgesQuery(d: Dialect, table: string, column: string, bins: number, where: string | null): string {
   const x = d.toNumber(`CAST(${d.ident(column)} AS ${d.types.text})`);
   const qs = Array.from({ length: bins - 1 }, (_, i) => (i + 1) / bins);
-  const from = `(SELECT ${x} AS fg_x FROM ${sample(d, table, where)}) AS fg_v WHERE fg_x IS NOT NULL AND ${d.isFinite('fg_x')}`;
+  const from = `(SELECT ${x} AS fg_x FROM ${sample(table, where)}) AS fg_v WHERE fg_x IS NOT NULL AND ${d.isFinite('fg_x')}`;
   switch (d.name) {
     case 'duckdb':
       return `SELECT quantile_cont(fg_x, [${qs.join(', ')}]) AS edges FROM ${from}`;
@@ -135,7 +135,7 @@ export function edgesQuery(d: Dialect, table: string, column: string, bins: numb
 
 /** A query for the classes counted for agreement: the 50 most frequent labels of the first 100,000 rows. */
 export function classesQuery(d: Dialect, table: string, columns: readonly string[], where: string | null): string {
-  const parts = columns.map((c) => `SELECT NULLIF(TRIM(CAST(${d.ident(c)} AS ${d.types.text})), '') AS fg_v FROM ${sample(d, table, where)}`);
+  const parts = columns.map((c) => `SELECT NULLIF(TRIM(CAST(${d.ident(c)} AS ${d.types.text})), '') AS fg_v FROM ${sample(table, where)}`);
   return `SELECT fg_v AS class, COUNT(*) AS n FROM (${parts.join(' UNION ALL ')}) AS fg_all WHERE fg_v IS NOT NULL GROUP BY fg_v ORDER BY n DESC, fg_v LIMIT ${MAX_CATEGORIES}`;
 }
 

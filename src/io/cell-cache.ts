@@ -1,6 +1,6 @@
 /**
  * The cells cache: a second report on an unchanged file reads its cells from the user's cache folder
- * instead of scanning the rows again. An entry is found by a key made of floorgap's version, every
+ * instead of scanning the rows again. An entry is found by a key made of floorgap's version and build, every
  * input's path, size, modification time and a SHA-256 of its first and last MB, and every option that
  * shapes the cells (column roles, --where, --by, slice columns, bins, --max-cells, floors, annotators,
  * the floor and cost tables' whole content). A changed file changes its key; nothing is reused then.
@@ -9,9 +9,10 @@
  * besides the cells, and where each array sits), then the cells' typed arrays, 8-byte aligned.
  */
 import { createHash, randomBytes } from 'node:crypto';
-import { promises as fs } from 'node:fs';
+import { promises as fs, statSync } from 'node:fs';
 import { homedir } from 'node:os';
 import { isAbsolute, join, resolve } from 'node:path';
+import { fileURLToPath } from 'node:url';
 import type { AuditColumns, CellTable } from '../engine/cell-table.js';
 import type { LoadOptions, Loaded } from '../engine/load.js';
 
@@ -98,6 +99,7 @@ export async function cacheKey(options: LoadOptions, version: string, cwd: strin
   const shape = {
     format: FORMAT,
     version,
+    build: buildStamp(),
     inputs,
     tables,
     roles: options.roles,
@@ -112,6 +114,18 @@ export async function cacheKey(options: LoadOptions, version: string, cwd: strin
     annotators: options.annotators ?? null,
   };
   return createHash('sha256').update(JSON.stringify(shape)).digest('hex');
+}
+
+/**
+ * When this copy of floorgap was built (the time of this module's file): a rebuilt floorgap of the same
+ * version, e.g. while developing it, never reads cells an older build made.
+ */
+function buildStamp(): number {
+  try {
+    return statSync(fileURLToPath(import.meta.url)).mtimeMs;
+  } catch {
+    return 0;
+  }
 }
 
 type ArrayName = 'split' | 'run' | 'rows' | 'weight' | 'weightSq' | 'errors' | 'floorSum' | 'floorEntry' | 'floorN' | 'costSum' | 'costWeight';
