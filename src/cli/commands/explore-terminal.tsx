@@ -1,6 +1,5 @@
 import { existsSync } from 'node:fs';
 import { render } from 'ink';
-import type { Argv } from 'yargs';
 import { openDuck, type Duck } from '../../engine/duck.js';
 import { watchProgress, type ScanProgress } from '../../engine/progress.js';
 import { App } from '../../tui/App.js';
@@ -12,15 +11,7 @@ import type { CliIO } from '../io.js';
 import { useColor } from '../io.js';
 import { toTriageOptions } from '../options.js';
 import { runExport, type ExportArgs } from './export.js';
-import { reportOptions, runReport, type ReportArgs } from './report.js';
-
-export interface ExploreArgs extends ReportArgs {
-  ascii: boolean;
-}
-
-export function exploreOptions<T>(y: Argv<T>) {
-  return reportOptions(y).option('ascii', { type: 'boolean', default: false, describe: 'draw with ASCII only (no block glyphs or arrows)', group: 'Output:' });
-}
+import type { ExploreArgs } from './explore.js';
 
 /** A slice key as `--slice` text: `col=value` pairs, commas, `=` and backslashes escaped. */
 export function sliceKeyText(slice: SliceReport): string {
@@ -34,13 +25,10 @@ const ENTER = '\x1b[?1049h\x1b[?25l';
 const LEAVE = '\x1b[?25h\x1b[?1049l';
 
 /**
- * `floorgap explore`: the full-screen keyboard explorer. Without a terminal on stdin and stdout (or
- * with an explicit --format other than text) it prints the report instead.
+ * The full-screen keyboard explorer on a terminal (stdin and stdout are TTYs). Loaded only when it
+ * runs, so other commands never pay for the UI libraries at start-up.
  */
-export async function runExplore(args: ExploreArgs, io: CliIO, argv: readonly string[]): Promise<number> {
-  const stdin = io.stdin;
-  const interactive = Boolean(io.stdout.isTTY && stdin?.isTTY) && args.format === 'text';
-  if (!interactive || !stdin) return runReport(args, io);
+export async function runExplorer(args: ExploreArgs, io: CliIO, argv: readonly string[], stdin: NodeJS.ReadStream): Promise<number> {
   toTriageOptions(args); // bad options fail before the screen changes
 
   let duck: Duck | null = null;

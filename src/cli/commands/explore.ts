@@ -1,0 +1,24 @@
+import type { Argv } from 'yargs';
+import type { CliIO } from '../io.js';
+import { reportOptions, runReport, type ReportArgs } from './report.js';
+
+export interface ExploreArgs extends ReportArgs {
+  ascii: boolean;
+}
+
+export function exploreOptions<T>(y: Argv<T>) {
+  return reportOptions(y).option('ascii', { type: 'boolean', default: false, describe: 'draw with ASCII only (no block glyphs or arrows)', group: 'Output:' });
+}
+
+/**
+ * `floorgap explore`: the full-screen keyboard explorer. Without a terminal on stdin and stdout (or
+ * with an explicit --format other than text) it prints the report instead. The terminal UI (ink,
+ * react) is imported only here, when it is about to run.
+ */
+export async function runExplore(args: ExploreArgs, io: CliIO, argv: readonly string[]): Promise<number> {
+  const stdin = io.stdin;
+  const interactive = Boolean(io.stdout.isTTY && stdin?.isTTY) && args.format === 'text';
+  if (!interactive || !stdin) return runReport(args, io);
+  const { runExplorer } = await import('./explore-terminal.js');
+  return runExplorer(args, io, argv, stdin);
+}
