@@ -3,6 +3,8 @@
 // development build profiles every render and is several times slower. So set it before loading.
 process.env.NODE_ENV ??= 'production';
 const { main } = await import('./cli/index.js');
+const { installSignalHandlers } = await import('./cli/signals.js');
+installSignalHandlers(process.stderr);
 
 // a reader that stops early (`floorgap report … | head`) closes the pipe: that is not an error
 for (const stream of [process.stdout, process.stderr]) {

@@ -31,6 +31,7 @@ export function analysisOptions<T>(y: Argv<T>) {
     .option('slice-cols', { type: 'string', describe: 'candidate slice columns, comma-separated (default: detected)', group: 'Slices:' })
     .option('bins', { type: 'number', default: 5, describe: 'bins for numeric columns (about equal frequency)', group: 'Slices:' })
     .option('max-cells', { type: 'number', default: 200_000, describe: 'largest full cross of slice columns before grouping sets are used', group: 'Slices:' })
+    .option('max-slices', { type: 'number', default: 10_000, describe: 'most slices one grouping may list (stops a column of ids)', group: 'Slices:' })
     .option('floor', { type: 'number', describe: 'human-level error for every row, a fraction (default 0)', group: 'Floors:' })
     .option('floor-table', { type: 'string', describe: 'table of floors keyed by slice columns (+ optional n)', group: 'Floors:' })
     .option('annotators', { type: 'string', describe: 'columns of human labels from an audit, comma-separated', group: 'Floors:' })
@@ -72,6 +73,7 @@ export interface AnalysisArgs {
   'slice-cols'?: string;
   bins: number;
   'max-cells': number;
+  'max-slices': number;
   floor?: number;
   'floor-table'?: string;
   confidence: number;
@@ -121,6 +123,7 @@ export function toLoadOptions(a: AnalysisArgs): LoadOptions {
   checkFraction('floor', a.floor);
   checkPositive('bins', a.bins, true);
   checkPositive('max-cells', a['max-cells'], true);
+  if (a['max-slices'] !== undefined) checkPositive('max-slices', a['max-slices'], true);
   const roles: RoleOptions = {};
   for (const r of ['label', 'pred', 'error', 'split', 'id', 'score', 'weight'] as const) if (a[r] !== undefined) roles[r] = String(a[r]);
   if (a['run-column'] !== undefined) roles.run = String(a['run-column']);
@@ -135,6 +138,7 @@ export function toLoadOptions(a: AnalysisArgs): LoadOptions {
     sliceCols: list(a['slice-cols']),
     bins: a.bins,
     maxCells: a['max-cells'],
+    maxSlices: a['max-slices'],
     floor: a.floor ?? null,
     floorTable: a['floor-table'] ?? null,
     annotators: list(a.annotators),

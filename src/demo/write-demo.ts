@@ -1,6 +1,6 @@
 import { promises as fs } from 'node:fs';
 import { join } from 'node:path';
-import { writeAtomic } from '../io/write-atomic.js';
+import { writeAtomic, writeReason } from '../io/write-atomic.js';
 import { error } from '../util/error.js';
 import { checkDemoOptions, demoFloorCsvLines, demoRowsToCsvLines, generateDemoRows, type DemoOptions } from './generate.js';
 
@@ -42,8 +42,7 @@ export async function writeDemo(
   try {
     await fs.mkdir(dir, { recursive: true });
   } catch (e) {
-    const code = (e as NodeJS.ErrnoException).code ?? 'error';
-    throw error(`${dir}: cannot create folder (${code}: ${(e as Error).message})`, e);
+    throw error(`${dir}: cannot create the folder: ${writeReason(e)}`, e);
   }
   if (!overwrite) {
     for (const path of [table, floors]) {
@@ -51,14 +50,6 @@ export async function writeDemo(
       if (exists) throw error(`${path}: file exists; pass --force to overwrite it`);
     }
   }
-
-  await writeAtomic(
-    floors,
-    async (put) => {
-      await put([...demoFloorCsvLines()].join('\n') + '\n');
-    },
-    { overwrite },
-  );
 
   let written = 0;
   await writeAtomic(
@@ -76,6 +67,14 @@ export async function writeDemo(
         }
       }
       if (chunk.length > 0) await put(chunk);
+    },
+    { overwrite },
+  );
+  // the small floors file second: when the table cannot be written, neither is
+  await writeAtomic(
+    floors,
+    async (put) => {
+      await put([...demoFloorCsvLines()].join('\n') + '\n');
     },
     { overwrite },
   );

@@ -166,8 +166,10 @@ export function cellQuery(plan: CellPlan, grouping: Grouping, options: CellQuery
     const l = raw(roles.label!);
     const p = raw(roles.pred!);
     status.push(`WHEN ${l} IS NULL OR ${p} IS NULL OR ${blank(l)} OR ${blank(p)} THEN 2`);
-    // trimmed comparison only where the raw values differ
-    errorExpr = `CASE WHEN ${l} = ${p} THEN 0 WHEN TRIM(${l}) = TRIM(${p}) THEN 0 ELSE 1 END`;
+    // trimmed comparison only where the raw values differ; two numbers compare as numbers (1 = 1.0),
+    // except in ANSI SQL, which has no cast that returns NULL for text that is not a number
+    const sameNumber = d.name === 'ansi' ? '' : `WHEN ${d.toNumber(`TRIM(${l})`)} = ${d.toNumber(`TRIM(${p})`)} THEN 0 `;
+    errorExpr = `CASE WHEN ${l} = ${p} THEN 0 WHEN TRIM(${l}) = TRIM(${p}) THEN 0 ${sameNumber}ELSE 1 END`;
   }
   row.push(`CASE ${status.join(' ')} ELSE 0 END AS fg_st`);
   groupKeys.push('fg_st');

@@ -27,6 +27,8 @@ export interface CellPlan {
   readonly classes?: readonly string[];
   /** cost-table entries (value = label cost per row); rows no entry matches take --label-cost at triage */
   readonly costEntries?: readonly FloorEntry[];
+  /** most cells a scan may read into memory (a query giving more fails with advice); default no limit */
+  readonly cellLimit?: number;
 }
 
 /** How rows are grouped into cells: the full cross of all slice columns, or grouping sets. */
@@ -78,7 +80,8 @@ export function errorSql(roles: Pick<Roles, 'label' | 'pred' | 'error' | 'errorI
   const label = textSql(roles.label!);
   const pred = textSql(roles.pred!);
   return {
-    error: `CASE WHEN ${label} = ${pred} THEN 0 ELSE 1 END`,
+    // two numbers compare as numbers (1 = 1.0), as in the cell query
+    error: `CASE WHEN ${label} = ${pred} THEN 0 WHEN TRY_CAST(${label} AS DOUBLE) = TRY_CAST(${pred} AS DOUBLE) THEN 0 ELSE 1 END`,
     badError: 'FALSE',
     unlabelled: `(${label} IS NULL OR ${pred} IS NULL)`,
   };
@@ -147,6 +150,7 @@ export async function readCellResult(
   const anns = plan.annotators ?? [];
   const classes = (plan.classes ?? []).length + 1;
   const { table, other } = await readCells(duck, `(${sql}) AS fg_scan`, columns, {
+    limit: plan.cellLimit,
     keys: columns.map((name) => {
       const k = plan.columns.findIndex((c) => c.name === name);
       return k < 0 ? null : names.keys[k];

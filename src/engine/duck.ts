@@ -21,6 +21,23 @@ export interface Duck {
   close(): void;
 }
 
+/** Connections of every open database, so that an interrupted run can stop their queries. */
+const open = new Set<DuckDBConnection>();
+
+/**
+ * Stops the running query of every open database (each fails with an "interrupted" error). For the
+ * CLI's signal handling: the process can then exit without waiting for a long scan or export.
+ */
+export function interruptAll(): void {
+  for (const c of open) {
+    try {
+      c.interrupt();
+    } catch {
+      // a connection that is closing
+    }
+  }
+}
+
 function plain(value: unknown): unknown {
   if (typeof value === 'bigint') return Number(value);
   return value;
@@ -42,6 +59,7 @@ export async function openDuck(settings: DuckSettings = {}): Promise<Duck> {
     memory_limit: memoryLimit,
   });
   const connection = await instance.connect();
+  open.add(connection);
   // track progress from the start, for watchProgress, without DuckDB printing a bar of its own
   await connection.run('SET enable_progress_bar = true');
   await connection.run('SET enable_progress_bar_print = false');
@@ -62,6 +80,7 @@ export async function openDuck(settings: DuckSettings = {}): Promise<Duck> {
       await connection.run(sql);
     },
     close() {
+      open.delete(connection);
       connection.closeSync();
       instance.closeSync();
     },

@@ -12,7 +12,7 @@ import { cellIndicesFor, runsOf } from './slices.js';
 import { textSql } from './profile.js';
 import { cacheKey, readCache, writeCache } from '../io/cell-cache.js';
 import { describeKey, readFloorTable, type FloorEntry, type FloorTable } from '../io/read-floor-table.js';
-import { readError } from '../io/read-table.js';
+import { locateReadError, readReason, withReadErrors } from '../io/read-errors.js';
 import { firstBadRow } from '../io/locate.js';
 import { error } from '../util/error.js';
 
@@ -26,6 +26,8 @@ export interface LoadOptions {
   readonly sliceCols: readonly string[] | null;
   readonly bins: number;
   readonly maxCells: number;
+  /** most slices one grouping (the `--by` cross, or the overview) may hold; default {@link MAX_SLICES} */
+  readonly maxSlices?: number;
   readonly floor: number | null;
   readonly floorTable: string | null;
   /** annotator columns: human labels on audited rows */
@@ -152,9 +154,7 @@ export async function planScan(
   const sampled = [...new Set([...profiled, splitColumn, ...(roles.label ? [roles.label] : []), ...(options.annotators ?? [])])].filter(
     (c) => c === splitColumn || source.columns.includes(c),
   );
-  const sample = await createSample(duck, options.where, SAMPLE_ROWS, sampled).catch((e) => {
-    throw readError(source.where, e);
-  });
+  const sample = await withReadErrors(source.inputs, source.where, () => createSample(duck, options.where, SAMPLE_ROWS, sampled));
   const profile = await profileColumns(duck, profiled, options.where, SAMPLE_ROWS, sample);
   if (profile.sampleRows === 0) {
     throw error(options.where ? `${source.where}: no rows match --where "${options.where}"` : `${source.where}: no rows; expected a header and data rows`);
@@ -210,6 +210,7 @@ export async function planScan(
     wanted.filter((c) => edges.has(c.name)).map((c): SliceColumn => ({ name: c.name, kind: 'binned', edges: [...edges.get(c.name)!] })),
   );
   columns.sort((a, b) => wanted.findIndex((w) => w.name === a.name) - wanted.findIndex((w) => w.name === b.name));
+  await checkSliceCount(duck, profile, columns, by, chosen.columns.map((c) => c.name), options, sample);
   if (options.floor === null && !floorTable && annotators.length === 0) {
     warnings.push('no floor given (--floor or --floor-table): avoidable bias is measured against perfection (floor 0)');
   }
@@ -224,6 +225,7 @@ export async function planScan(
     annotators,
     classes: annotators.length ? await auditClasses(duck, [roles.label!, ...annotators], sample) : [],
     costEntries: costTable?.entries ?? [],
+    cellLimit: cellLimit(options.maxCells),
   };
   const grouping = overrides.grouping
     ? overrides.grouping === 'cross'
@@ -233,12 +235,65 @@ export async function planScan(
   return { source, roles, plan, grouping, columns, overviewColumns: chosen.columns.map((c) => c.name), by, floorTable, costTable, warnings, profile, annotators };
 }
 
+/** Default most slices one grouping may hold (`--max-slices`). */
+export const MAX_SLICES = 10_000;
+/**
+ * Most cells a scan reads into memory: 5 × `--max-cells`, and never less than 1,000,000 (about 100 MB),
+ * so that a small `--max-cells` (which only chooses grouping sets sooner) does not refuse small tables.
+ */
+export function cellLimit(maxCells: number): number {
+  return 5 * Math.max(maxCells, 200_000);
+}
+
+/**
+ * Stops a grouping that would list more than `--max-slices` slices before the scan: a column of ids or
+ * serial numbers named in `--by` or `--slice-cols` would otherwise fill memory with one slice per row.
+ * Counted in the sample (the first 100,000 rows), so the count is exact or a lower bound.
+ */
+async function checkSliceCount(
+  duck: Duck,
+  profile: Profile,
+  columns: readonly SliceColumn[],
+  by: readonly string[] | null,
+  overview: readonly string[],
+  options: LoadOptions,
+  sample: string,
+): Promise<void> {
+  const max = options.maxSlices ?? MAX_SLICES;
+  const values = (name: string) => {
+    const c = columns.find((x) => x.name === name);
+    if (c?.kind === 'binned') return (c.edges?.length ?? 0) + 1;
+    return Math.max(1, profile.columns.find((x) => x.name === name)?.distinct ?? 1);
+  };
+  const where = profile.complete ? 'the rows hold' : `the first ${SAMPLE_ROWS.toLocaleString('en-US')} rows alone hold`;
+  const advice = 'slice by fewer or coarser columns (numbers are binned: --bins), narrow the rows with --where, or raise --max-slices';
+  if (by) {
+    let n = by.reduce((p, name) => p * values(name), 1);
+    if (n > max && by.length > 1) {
+      const keys = by.map((name) => keySql(columns.find((c) => c.name === name) ?? { name, kind: 'category' }));
+      n = await sampleTupleCount(duck, keys, '0', options.where, sample);
+    }
+    if (n > max) {
+      throw error(`--by ${by.join(',')}: ${where} ${n.toLocaleString('en-US')} slices, more than --max-slices ${max.toLocaleString('en-US')}; ${advice}`);
+    }
+    return;
+  }
+  const n = overview.reduce((sum, name) => sum + values(name), 0);
+  if (n > max) {
+    const big = [...overview].sort((a, b) => values(b) - values(a))[0];
+    throw error(
+      `the overview's columns give ${n.toLocaleString('en-US')} slices (${big} alone ${values(big).toLocaleString('en-US')}), more than --max-slices ${max.toLocaleString('en-US')}; name fewer or coarser columns in --slice-cols (numbers are binned: --bins), narrow the rows with --where, or raise --max-slices`,
+    );
+  }
+}
+
 /** The scan of a planned load: cells, checks of the rows set aside, warnings. */
 async function scanPlanned(duck: Duck, planned: ScanPlan): Promise<Loaded> {
   const { source, roles, plan, grouping, columns, by, floorTable, costTable, profile, annotators } = planned;
   const warnings = [...planned.warnings];
-  const scanned = await scanCells(duck, plan, grouping, source.native ?? null).catch((e) => {
-    throw scanError(source, e);
+  const scanned = await scanCells(duck, plan, grouping, source.native ?? null).catch(async (e) => {
+    if (e instanceof Error && e.name === 'FloorgapError') throw e;
+    throw (await locateReadError(source.inputs)) ?? scanError(source, e);
   });
   let table = scanned.table;
   await checkIssues(duck, source, roles, plan, scanned.issues, warnings);
@@ -281,8 +336,8 @@ export function withCells(loaded: Omit<Loaded, 'cells'>): Loaded {
 
 function scanError(source: Source, e: unknown): Error {
   if (e instanceof Error && e.name === 'FloorgapError') return e;
-  const msg = e instanceof Error ? e.message.split('\n')[0] : String(e);
-  return error(`${source.where}: cannot read the rows (${msg.replace(/^[A-Za-z ]+ Error: /, '')})`, e);
+  const reason = readReason(e instanceof Error ? e.message : String(e));
+  return error(/^line \d+|^not a valid|^the compressed/.test(reason) ? `${source.where}: ${reason}` : `${source.where}: cannot read the rows (${reason})`, e);
 }
 
 function splitCounts(table: CellTable): Record<Split, number> {
@@ -350,7 +405,7 @@ async function checkIssues(duck: Duck, source: Source, roles: Roles, plan: CellP
   if (issues.unknownSplits.size > 0) throw unknownSplitError(source.where, plan.splitColumn, issues.unknownSplits);
   if (issues.unlabelled > 0) {
     const what = roles.error ? `an empty "${roles.error}"` : `an empty "${roles.label}" or "${roles.pred}"`;
-    warnings.push(`${issues.unlabelled} rows with ${what} were left out`);
+    warnings.push(`${plural(issues.unlabelled, 'row')} with ${what} ${issues.unlabelled === 1 ? 'was' : 'were'} left out`);
   }
 }
 

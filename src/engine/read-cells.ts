@@ -6,6 +6,7 @@
 import type { AuditColumns, CellTable } from './cell-table.js';
 import type { Duck } from './duck.js';
 import { ident, literal } from './sql.js';
+import { error } from '../util/error.js';
 
 /** Where each part of a cell sits among the columns of the source. */
 export interface CellSourceColumns {
@@ -18,6 +19,8 @@ export interface CellSourceColumns {
   readonly stats: readonly [string, string, string, string, string, string, string, string, string];
   /** audit fields in AuditColumns order, and the shape */
   readonly audit: { readonly columns: readonly string[]; readonly annotators: number; readonly classes: number } | null;
+  /** most cells to read; more fail with advice to group coarser */
+  readonly limit?: number;
 }
 
 /** Split spellings (after trimming and lower-casing) and the split index each stands for. */
@@ -51,6 +54,14 @@ export async function readCells(
   const splitCode = `CASE lower(trim(CAST(${ident(src.split)} AS VARCHAR))) ${SPLIT_CODES.map(([s, c]) => `WHEN ${literal(s)} THEN ${c}`).join(' ')} END`;
   await duck.run(`CREATE TEMP TABLE ${tmp} AS SELECT *, ${splitCode} AS fg_split_code FROM ${from}`);
   try {
+    if (src.limit !== undefined) {
+      const [{ n }] = await duck.all(`SELECT count(*) AS n FROM ${tmp}`);
+      if (Number(n) > src.limit) {
+        throw error(
+          `the slice columns give ${Number(n).toLocaleString('en-US')} cells (combinations of their values × split), more than the ${src.limit.toLocaleString('en-US')} floorgap holds in memory (5 × --max-cells, at least 1,000,000); use fewer or coarser --by / --slice-cols columns, fewer --bins, or narrow the rows with --where`,
+        );
+      }
+    }
     const otherRows = await duck.all(`SELECT CAST(${ident(src.split)} AS VARCHAR) AS s, sum(${ident(src.stats[0])}) AS n FROM ${tmp} WHERE fg_split_code IS NULL GROUP BY 1`);
     const other = new Map(otherRows.map((r) => [r.s === null ? '' : String(r.s), Number(r.n)]));
     const known = `fg_split_code IS NOT NULL`;

@@ -2,7 +2,8 @@ import type { Duck } from './duck.js';
 import { ident, literal } from './sql.js';
 import type { ColumnKind } from './cell-query.js';
 import type { Split } from './types.js';
-import { describeColumns, detectTable, headerNames, pinnedCsvSql, readError, tableSql, type TableInput } from '../io/read-table.js';
+import { describeColumns, detectTable, headerNames, pinnedCsvSql, tableSql, type TableInput } from '../io/read-table.js';
+import { withReadErrors } from '../io/read-errors.js';
 import { error } from '../util/error.js';
 
 /** Where the rows come from: one or more tables with a split column, or one file per split. */
@@ -55,6 +56,7 @@ export async function openSource(duck: Duck, spec: SourceSpec): Promise<Source> 
 
   const parts: string[] = [];
   const allColumns: string[] = [];
+  await withReadErrors(inputs, inputs.map((i) => i.path).join(', '), async () => {
   for (const input of inputs) {
     let cols: string[];
     let expr: string;
@@ -76,13 +78,10 @@ export async function openSource(duck: Duck, spec: SourceSpec): Promise<Source> 
         : `SELECT * FROM ${expr}`,
     );
   }
+  await duck.run(`CREATE OR REPLACE VIEW ${ROWS_VIEW} AS ${parts.join(' UNION ALL BY NAME ')}`);
+  });
   const where = inputs.map((i) => i.path).join(', ');
-  try {
-    await duck.run(`CREATE OR REPLACE VIEW ${ROWS_VIEW} AS ${parts.join(' UNION ALL BY NAME ')}`);
-  } catch (e) {
-    throw readError(where, e);
-  }
-  const native = inputs.every((i) => i.format === 'parquet') ? await nativeView(duck, inputs) : null;
+  const native = inputs.every((i) => i.format === 'parquet') ? await withReadErrors(inputs, where, () => nativeView(duck, inputs)) : null;
   return { inputs, columns: allColumns, splitColumn: perSplit.length > 0 ? PER_SPLIT_COLUMN : null, where, native };
 }
 

@@ -5,8 +5,10 @@
  * shapes the cells (column roles, --where, --by, slice columns, bins, --max-cells, floors, annotators,
  * the floor and cost tables' whole content). A changed file changes its key; nothing is reused then.
  *
- * Entry format: `FGCELLS1\n`, a 4-byte little-endian header length, the header (JSON: what was loaded
- * besides the cells, and where each array sits), then the cells' typed arrays, 8-byte aligned.
+ * Entry format: `FGCELLS2\n`, the SHA-256 of everything after it (32 bytes), a 4-byte little-endian
+ * header length, the header (JSON: what was loaded besides the cells, and where each array sits), then
+ * the cells' typed arrays, 8-byte aligned. An entry whose checksum does not match (a disk error, a copy
+ * cut short, an edit) is removed and the rows are scanned again.
  */
 import { createHash, randomBytes } from 'node:crypto';
 import { promises as fs, statSync } from 'node:fs';
@@ -15,10 +17,13 @@ import { isAbsolute, join, resolve } from 'node:path';
 import { fileURLToPath } from 'node:url';
 import type { AuditColumns, CellTable } from '../engine/cell-table.js';
 import type { LoadOptions, Loaded } from '../engine/load.js';
+import { releaseTemp, trackTemp } from './temp-files.js';
 
-const MAGIC = 'FGCELLS1\n';
+const MAGIC = 'FGCELLS2\n';
+/** SHA-256 of everything after it, right after the magic: a damaged or cut entry is never trusted. */
+const SUM = 32;
 /** Change when the entry layout or the meaning of a cached field changes. */
-const FORMAT = 1;
+const FORMAT = 2;
 /** Entries kept; the least recently used beyond this are removed. */
 const MAX_ENTRIES = 32;
 /** Total size kept (bytes). */
@@ -108,6 +113,7 @@ export async function cacheKey(options: LoadOptions, version: string, cwd: strin
     sliceCols: options.sliceCols,
     bins: options.bins,
     maxCells: options.maxCells,
+    maxSlices: options.maxSlices ?? null,
     floor: options.floor,
     floorTable: options.floorTable,
     costTable: options.costTable ?? null,
@@ -175,25 +181,33 @@ export function encodeEntry(key: string, loaded: Loaded): Buffer {
     arrays,
   };
   const json = Buffer.from(JSON.stringify(header), 'utf8');
-  const start = Math.ceil((MAGIC.length + 4 + json.length) / 8) * 8;
+  const body = MAGIC.length + SUM;
+  const start = Math.ceil((body + 4 + json.length) / 8) * 8;
   const out = Buffer.alloc(start + offset);
   out.write(MAGIC, 0, 'latin1');
-  out.writeUInt32LE(json.length, MAGIC.length);
-  json.copy(out, MAGIC.length + 4);
+  out.writeUInt32LE(json.length, body);
+  json.copy(out, body + 4);
   for (let i = 0; i < named.length; i++) {
     const a = named[i][1];
     Buffer.from(a.buffer, a.byteOffset, a.byteLength).copy(out, start + arrays[i].offset);
   }
+  createHash('sha256').update(out.subarray(body)).digest().copy(out, MAGIC.length);
   return out;
 }
 
-/** The inverse of {@link encodeEntry}; null when the bytes are not an entry for `key`. */
+/**
+ * The inverse of {@link encodeEntry}; null when the bytes are not an entry for `key`.
+ * @throws when the checksum does not match or the entry is cut short
+ */
 export function decodeEntry(buf: Buffer, key: string): Omit<Loaded, 'cells'> | null {
-  if (buf.length < MAGIC.length + 4 || buf.toString('latin1', 0, MAGIC.length) !== MAGIC) return null;
-  const len = buf.readUInt32LE(MAGIC.length);
-  const header = JSON.parse(buf.toString('utf8', MAGIC.length + 4, MAGIC.length + 4 + len)) as Header;
+  const body = MAGIC.length + SUM;
+  if (buf.length < body + 4 || buf.toString('latin1', 0, MAGIC.length) !== MAGIC) return null;
+  const sum = createHash('sha256').update(buf.subarray(body)).digest();
+  if (!sum.equals(buf.subarray(MAGIC.length, body))) throw new Error('cache entry is damaged (checksum)');
+  const len = buf.readUInt32LE(body);
+  const header = JSON.parse(buf.toString('utf8', body + 4, body + 4 + len)) as Header;
   if (header.format !== FORMAT || header.key !== key) return null;
-  const start = Math.ceil((MAGIC.length + 4 + len) / 8) * 8;
+  const start = Math.ceil((body + 4 + len) / 8) * 8;
   const get = (name: string): Typed => {
     const spec = header.arrays.find((a) => a.name === name);
     if (!spec) throw new Error(`cache entry lacks ${name}`);
@@ -259,14 +273,17 @@ export async function readCache(dir: string, key: string): Promise<Omit<Loaded, 
  * to its limits. Failures are ignored: the cache only saves time.
  */
 export async function writeCache(dir: string, key: string, loaded: Loaded): Promise<void> {
+  let tmp: string | null = null;
   try {
     await fs.mkdir(dir, { recursive: true });
     const path = join(dir, `${key}.fgcells`);
-    const tmp = join(dir, `.${key}.tmp-${process.pid}-${randomBytes(4).toString('hex')}`);
+    tmp = trackTemp(join(dir, `.${key}.tmp-${process.pid}-${randomBytes(4).toString('hex')}`));
     await fs.writeFile(tmp, encodeEntry(key, loaded));
     await fs.rename(tmp, path);
+    releaseTemp(tmp);
     await trim(dir);
   } catch {
+    if (tmp) await fs.rm(tmp, { force: true }).catch(() => undefined);
     // a read-only or full disk only costs the next report a scan
   }
 }

@@ -10,7 +10,7 @@ import { dirname, extname } from 'node:path';
 import type { Duck } from '../engine/duck.js';
 import { literal } from '../engine/sql.js';
 import { error } from '../util/error.js';
-import { tempPathFor } from './write-atomic.js';
+import { tempPathFor, writeError } from './write-atomic.js';
 
 /** File formats `floorgap export` writes. */
 export type ExportFormat = 'csv' | 'jsonl' | 'parquet';
@@ -159,8 +159,7 @@ export async function writeExport(duck: Duck, w: ExportWrite): Promise<{ data: s
     try {
       await duck.run(`COPY (${w.sql}) TO ${literal(tmpData)} (${copyOptions(w.format)})`);
     } catch (e) {
-      const msg = e instanceof Error ? e.message.split('\n')[0] : String(e);
-      throw error(`${w.path}: cannot write the rows (${msg})`, e);
+      throw writeError(w.path, e, 'the rows');
     }
     await w.hooks?.afterData?.(tmpData);
     const manifest = await w.manifest();
@@ -174,9 +173,7 @@ export async function writeExport(duck: Duck, w: ExportWrite): Promise<{ data: s
     await fs.rename(tmpManifest, manifestPath);
   } catch (e) {
     await cleanup();
-    if (e instanceof Error && e.name !== 'FloorgapError' && typeof (e as NodeJS.ErrnoException).code === 'string') {
-      throw error(`${w.path}: cannot write (${(e as NodeJS.ErrnoException).code}: ${e.message})`, e);
-    }
+    if (e instanceof Error && e.name !== 'FloorgapError' && typeof (e as NodeJS.ErrnoException).code === 'string') throw writeError(w.path, e);
     throw e;
   }
   return { data: w.path, manifest: manifestPath };

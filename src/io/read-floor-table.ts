@@ -22,7 +22,8 @@ export interface FloorTable {
 
 /**
  * Reads a floor table (CSV, TSV or JSON Lines): key columns + `floor` (fraction in [0, 1]) + optional
- * `n`. Rejects floors outside [0, 1], non-positive `n`, and two entries with the same key.
+ * `n`. Rejects floors outside [0, 1] (costs <= 0), non-positive `n`, and two entries with the same key
+ * (naming both lines, and their values when they differ).
  * @example
  * // package,floor,n
  * // 0201,0.12,500
@@ -46,13 +47,15 @@ export async function readFloorTable(duck: Duck, path: string, valueColumn = 'fl
   const keyColumns = columns.filter((c) => c !== valueColumn && c !== 'n');
   if (keyColumns.length === 0) throw error(`${path}: no key columns; add slice columns (e.g. package) beside "${valueColumn}"`);
   const lineOffset = input.format === 'jsonl' ? 1 : 2;
-  const seen = new Map<string, number>();
+  const seen = new Map<string, { line: number; value: number; n: number | null }>();
   const entries: FloorEntry[] = rows.map((row, i) => {
     const line = i + lineOffset;
     const rawValue = String(row[valueColumn] ?? '').trim();
     const value = Number(rawValue);
-    if (rawValue === '' || !Number.isFinite(value) || value < 0 || (valueColumn === 'floor' && value > 1)) {
-      const expected = valueColumn === 'floor' ? 'a fraction in [0, 1] (e.g. 0.02 for 2 %)' : 'a number >= 0';
+    const isFloor = valueColumn === 'floor';
+    if (rawValue === '' || !Number.isFinite(value) || value < 0 || (isFloor && value > 1) || (!isFloor && value === 0)) {
+      // a cost divides the yield: zero would make any slice infinitely cheap
+      const expected = isFloor ? 'a fraction in [0, 1] (e.g. 0.02 for 2 %)' : 'a cost > 0 (e.g. 1, or 4 for a slice four times dearer to label)';
       throw error(`${path}: line ${line}, column "${valueColumn}": expected ${expected}, got "${rawValue}"`);
     }
     let n: number | null = null;
@@ -70,8 +73,15 @@ export async function readFloorTable(duck: Duck, path: string, valueColumn = 'fl
     }
     const id = JSON.stringify(Object.entries(keys).sort());
     const prev = seen.get(id);
-    if (prev !== undefined) throw error(`${path}: lines ${prev} and ${line} have the same key ${describeKey(keys)}; keep one`);
-    seen.set(id, line);
+    if (prev !== undefined) {
+      const same = prev.value === value && prev.n === n;
+      throw error(
+        same
+          ? `${path}: line ${line} repeats line ${prev.line} (${describeKey(keys)}); keep one`
+          : `${path}: lines ${prev.line} and ${line} give ${describeKey(keys)} different values (${valueColumn} ${prev.value} and ${value}${prev.n !== n ? `, n ${prev.n ?? 'none'} and ${n ?? 'none'}` : ''}); keep one`,
+      );
+    }
+    seen.set(id, { line, value, n });
     return { line, keys, floor: value, n };
   });
   return { path, keyColumns, entries };

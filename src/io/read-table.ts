@@ -4,6 +4,9 @@ import type { Duck } from '../engine/duck.js';
 import { ident, literal } from '../engine/sql.js';
 import type { Split } from '../engine/types.js';
 import { error } from '../util/error.js';
+import { readError } from './read-errors.js';
+
+export { readError };
 
 /** File formats floorgap reads. CSV, TSV and JSON Lines may be gzip-compressed. */
 export type TableFormat = 'csv' | 'tsv' | 'jsonl' | 'parquet';
@@ -91,6 +94,9 @@ export async function detectTable(path: string, split?: Split): Promise<TableInp
     await handle.read(buf, 0, buf.length, 0);
   } finally {
     await handle.close();
+  }
+  if (info.size <= buf.length && buf.toString('latin1').trim() === '') {
+    throw error(`${path}: the file holds only blank lines; expected a table with a header line`);
   }
   const byExt = fromExtension(path);
   const gzipMagic = buf.length >= 2 && buf[0] === 0x1f && buf[1] === 0x8b;
@@ -194,14 +200,6 @@ export async function describeColumns(duck: Duck, tableExpr: string, path: strin
   } catch (e) {
     throw readError(path, e);
   }
-}
-
-/** Turns a DuckDB read failure into one user-facing line naming the file. */
-export function readError(path: string, e: unknown): Error {
-  const raw = e instanceof Error ? e.message : String(e);
-  const first = raw.split('\n').find((l) => l.trim().length > 0) ?? raw;
-  const cleaned = first.replace(/^(IO|Invalid Input|Conversion|Parser|Binder|Invalid) Error: /, '');
-  return error(`${path}: cannot read the table (${cleaned.trim()})`, e);
 }
 
 /** Quotes the names of a list of columns for a SELECT list. */

@@ -1,11 +1,44 @@
 import { createWriteStream, promises as fs } from 'node:fs';
 import { basename, dirname, join } from 'node:path';
 import { randomBytes } from 'node:crypto';
-import { error } from '../util/error.js';
+import { error, type FloorgapError } from '../util/error.js';
+import { releaseTemp, trackTemp } from './temp-files.js';
+
+/**
+ * One line for a failed write, in the user's terms, naming the destination (never the temporary file):
+ * a full disk, a read-only file system, a permission, or the system's own words.
+ * @param what what was being written, e.g. "the rows"
+ * @example
+ * writeError('out.csv', Object.assign(new Error('no space left on device, write'), { code: 'ENOSPC' }));
+ * // => FloorgapError('out.csv: cannot write: the disk is full (no space left on device); the file there before, if any, is unchanged')
+ */
+export function writeError(path: string, e: unknown, what = ''): FloorgapError {
+  return error(`${path}: cannot write${what ? ` ${what}` : ''}: ${writeReason(e)}; the file there before, if any, is unchanged`, e);
+}
+
+/** Why a write failed, in a few words (see {@link writeError}). */
+export function writeReason(e: unknown): string {
+  const code = e instanceof Error ? (e as NodeJS.ErrnoException).code : undefined;
+  const msg = e instanceof Error ? e.message : String(e);
+  return code === 'ENOSPC' || /no space left on device/i.test(msg)
+      ? 'the disk is full (no space left on device)'
+      : code === 'EROFS' || /read-only file system/i.test(msg)
+        ? 'the folder is on a read-only file system'
+        : code === 'EACCES' || code === 'EPERM' || /permission denied/i.test(msg)
+          ? 'permission denied'
+          : code === 'EDQUOT' || /quota exceeded/i.test(msg)
+            ? 'the disk quota is used up'
+            : msg
+                .split('\n')[0]
+                .replace(/^[A-Za-z ]+ Error: /, '')
+                .replace(/"[^"]*\.tmp-[^"]*"/g, 'the temporary file')
+                .replace(/'[^']*\.tmp-[^']*'/g, 'the temporary file')
+                .replace(/^E[A-Z]+: /, '');
+}
 
 /** A temporary path in the same folder as `path`, so the final rename is atomic on one file system. */
 export function tempPathFor(path: string): string {
-  return join(dirname(path), `.${basename(path)}.tmp-${process.pid}-${randomBytes(4).toString('hex')}`);
+  return trackTemp(join(dirname(path), `.${basename(path)}.tmp-${process.pid}-${randomBytes(4).toString('hex')}`));
 }
 
 /**
@@ -62,13 +95,12 @@ export async function writeAtomic(
       stream.end(() => resolve());
     });
     await fs.rename(tmp, path);
+    releaseTemp(tmp);
   } catch (e) {
     stream.destroy();
     await fs.rm(tmp, { force: true });
-    if (e instanceof Error && 'code' in e && typeof (e as NodeJS.ErrnoException).code === 'string') {
-      const code = (e as NodeJS.ErrnoException).code;
-      throw error(`${path}: cannot write (${code}: ${e.message})`, e);
-    }
-    throw e;
+    releaseTemp(tmp);
+    if (e instanceof Error && e.name === 'FloorgapError') throw e;
+    throw writeError(path, e);
   }
 }

@@ -444,6 +444,6 @@ describe('loadCells: error and correct columns', () => {
     expect([pick('dev', 'A')?.rows, pick('dev', 'A')?.errors]).toEqual([2, 1]);
     expect([pick('dev', 'B')?.rows, pick('dev', 'B')?.errors]).toEqual([1, 0]);
     expect(loaded.cells).toHaveLength(4);
-    expect(loaded.warnings).toContain('1 rows with an empty "correct" were left out');
+    expect(loaded.warnings).toContain('1 row with an empty "correct" was left out');
   });
 });

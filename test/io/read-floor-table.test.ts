@@ -108,7 +108,7 @@ describe('readFloorTable', () => {
   it('two entries with the same key (after trimming)', async () => {
     const path = file('dup.csv', 'station,lighting,floor\nS1,dome,0.1\nS2,,0.2\n S1 ,dome ,0.3\n');
     const e = await failure(readFloorTable(duck, path));
-    expect(e.message).toBe(`${path}: lines 2 and 4 have the same key station=S1 · lighting=dome; keep one`);
+    expect(e.message).toBe(`${path}: lines 2 and 4 give station=S1 · lighting=dome different values (floor 0.1 and 0.3); keep one`);
   });
 
   it('no floor column lists the columns', async () => {

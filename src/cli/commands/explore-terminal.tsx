@@ -11,6 +11,7 @@ import type { CliIO } from '../io.js';
 import { useColor } from '../io.js';
 import { toTriageOptions } from '../options.js';
 import { runExport, type ExportArgs } from './export.js';
+import { claimSignals } from '../signals.js';
 import type { ExploreArgs } from './explore.js';
 
 /** A slice key as `--slice` text: `col=value` pairs, commas, `=` and backslashes escaped. */
@@ -82,11 +83,8 @@ export async function runExplorer(args: ExploreArgs, io: CliIO, argv: readonly s
       stopped = true;
       duck?.connection.interrupt();
       process.once('exit', () => duck?.close());
-      // removed on the next turn: a signal's other listeners (signal-exit, via ink) still run in this
-      // one, and re-raise the signal (killing the process) when they find no listener but their own
-      setImmediate(() => {
-        for (const [sig, handler] of handlers) process.off(sig, handler);
-      });
+      // released on the next turn: the signal that ended the explorer is still being delivered
+      setImmediate(release);
       process.off('uncaughtException', onCrash);
       if (error !== undefined) {
         const msg = error instanceof Error ? error.message : String(error);
@@ -94,12 +92,8 @@ export async function runExplorer(args: ExploreArgs, io: CliIO, argv: readonly s
       }
       resolve(code);
     };
-    const handlers: [NodeJS.Signals, () => void][] = [
-      ['SIGTERM', () => finish(143)],
-      ['SIGHUP', () => finish(129)],
-      ['SIGINT', () => finish(130)],
-    ];
-    for (const [sig, handler] of handlers) process.on(sig, handler);
+    // Ctrl-C arrives as a key in raw mode; SIGINT from elsewhere, SIGTERM and SIGHUP come here
+    const release = claimSignals((_signal, code) => finish(code));
     const onCrash = (e: unknown) => finish(3, e);
     process.on('uncaughtException', onCrash);
 

@@ -8,7 +8,7 @@ import { ROWS_VIEW } from '../../engine/source.js';
 import { literal } from '../../engine/sql.js';
 import { planWarehouse, warehouseQuery } from '../../engine/warehouse.js';
 import { exportFormatFor } from '../../io/export-rows.js';
-import { tempPathFor } from '../../io/write-atomic.js';
+import { tempPathFor, writeError } from '../../io/write-atomic.js';
 import { sanitize } from '../../render/index.js';
 import { VERSION } from '../../version.js';
 import { error } from '../../util/error.js';
@@ -136,7 +136,7 @@ export async function runSql(args: SqlArgs, io: CliIO): Promise<number> {
       } catch (e) {
         await fs.rm(tmp, { force: true });
         if (e instanceof Error && e.name === 'FloorgapError') throw e;
-        throw error(`${out}: cannot write the cells (${e instanceof Error ? e.message.split('\n')[0] : String(e)})`, e);
+        throw writeError(out, e, 'the cells');
       } finally {
         stop();
       }

@@ -1,0 +1,192 @@
+/**
+ * The bad-input corpus (test/fixtures/bad/, written by its make.mjs) through the built CLI, as a user
+ * runs it: each file ends in a correct report or in exit 2 with one line on stderr naming the file, the
+ * line or column, and what was expected; stdout stays empty on error. Expected messages are this
+ * project's contract (README "Exit codes", docs/reliability.md). Expected numbers come from how each
+ * fixture is built (make.mjs: 40 train and 40 dev rows, one error in every 4 rows).
+ */
+import { mkdtempSync, rmSync, writeFileSync } from 'node:fs';
+import { tmpdir } from 'node:os';
+import { join } from 'node:path';
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import type { Report } from '../../src/triage/types.js';
+import { runCli } from '../helpers/run-cli.js';
+
+const BAD = join('test', 'fixtures', 'bad');
+const f = (name: string) => join(BAD, name);
+
+/** Characters that must never reach a terminal from data: C0 controls but \n, DEL, C1, bidi controls. */
+const LIVE_CONTROL = /[\x00-\x09\x0b-\x1f\x7f-\x9f\u061c\u200e\u200f\u202a-\u202e\u2066-\u2069]/;
+
+async function expectError(args: string[], message: RegExp) {
+  const r = await runCli(args);
+  expect(r.stdout).toBe('');
+  const lines = r.stderr.trimEnd().split('\n');
+  expect(lines, r.stderr).toHaveLength(1);
+  expect(lines[0]).toMatch(/^floorgap: /);
+  expect(lines[0]).toMatch(message);
+  expect(lines[0]).not.toMatch(LIVE_CONTROL);
+  expect(r.code).toBe(2);
+}
+
+async function reportJson(args: string[]): Promise<{ report: Report; stderr: string }> {
+  const r = await runCli([...args, '--format', 'json', '--no-cache']);
+  expect(r.code, r.stderr).toBe(0);
+  return { report: JSON.parse(r.stdout) as Report, stderr: r.stderr };
+}
+
+describe.concurrent('bad files: exit 2 and one line naming what is wrong', () => {
+  const cases: [string, string[], RegExp][] = [
+    ['empty file', [f('empty.csv')], /empty\.csv: the file is empty; expected a table with a header line$/],
+    ['only blank lines', [f('blank-lines.csv')], /blank-lines\.csv: the file holds only blank lines/],
+    ['header only', [f('header-only.csv')], /header-only\.csv: no rows; expected a header and data rows/],
+    ['a row with a field too many', [f('ragged-long.csv')], /ragged-long\.csv: line 11: expected 7 fields as in the header, found 8$/],
+    ['a row with fields missing', [f('ragged-short.csv')], /ragged-short\.csv: line 11: expected 7 fields as in the header, found 5$/],
+    ['a column name twice', [f('duplicate-columns.csv')], /duplicate-columns\.csv: column "station" appears twice in the header/],
+    ['no label column', [f('no-label.csv')], /no-label\.csv: no label column; the columns are "id", "split", "station", "guess"/],
+    ['bytes of no known format', [f('binary.bin')], /binary\.bin: unknown format; expected CSV, TSV, JSON Lines or Parquet/],
+    ['bytes that are not UTF-8', [f('invalid-utf8.csv')], /invalid-utf8\.csv: line 22: bytes that are not valid UTF-8; save the file as UTF-8$/],
+    ['weight NaN', [f('weight-nan.csv')], /weight-nan\.csv: line 7, column "weight": expected a weight >= 0, got "NaN"/],
+    ['weight Infinity', [f('weight-inf.csv')], /weight-inf\.csv: line 52, column "weight": expected a weight >= 0, got "Infinity"/],
+    ['weight negative', [f('weight-negative.csv')], /weight-negative\.csv: line 43, column "weight": expected a weight >= 0, got "-2"/],
+    ['weight empty', [f('weight-empty.csv')], /weight-empty\.csv: line 9, column "weight": expected a weight >= 0, got ""/],
+    ['weight text', [f('weight-text.csv')], /weight-text\.csv: line 62, column "weight": expected a weight >= 0, got "heavy"/],
+    ['score text', [f('score-text.csv')], /score-text\.csv: line 5, column "score": expected a number \(model confidence\), got "high"/],
+    ['only one split', [f('one-split.csv')], /one-split\.csv: no rows with split dev \(found train\); train and dev are required/],
+    ['an unknown split value', [f('unknown-split.csv')], /unknown-split\.csv: column "split" has unknown split values "holdout" \(5 rows\)/],
+    [
+      'a required split file with no rows',
+      ['--train', f('train-only-part.csv'), '--dev', f('dev-header-only.csv')],
+      /no rows with split dev/,
+    ],
+    ['truncated gzip', [f('truncated.csv.gz')], /truncated\.csv\.gz: the gzip data ends early; was the file copied completely\?$/],
+    ['Parquet with a bad footer', [f('bad-footer.parquet')], /bad-footer\.parquet: not a valid Parquet file: its footer is missing or damaged/],
+    // the fifth line lacks its closing brace; the engine's own message points at line 6
+    ['JSON Lines with a broken line', [f('broken.jsonl')], /broken\.jsonl: line 5: not valid JSON \(.*\); every line must hold one JSON object$/],
+    ['column names with control sequences', [f('control-header.csv')], /control-header\.csv: no label column; the columns are "id", "split", "sta\\u001b\[2Jtion", "verdict\\u202e", "guess\\u001b\]52;c;aGk=\\u0007"/],
+    // floor tables
+    ['floor table: a line repeated', [f('valid.csv'), '--floor-table', f('floors-duplicate.csv')], /floors-duplicate\.csv: line 4 repeats line 2 \(package=0402\); keep one$/],
+    [
+      'floor table: one key, two floors',
+      [f('valid.csv'), '--floor-table', f('floors-conflicting.csv')],
+      /floors-conflicting\.csv: lines 2 and 4 give package=0402 different values \(floor 0\.02 and 0\.04, n 400 and 200\); keep one$/,
+    ],
+    ['floor table: a floor above 1', [f('valid.csv'), '--floor-table', f('floors-above-one.csv')], /floors-above-one\.csv: line 3, column "floor": expected a fraction in \[0, 1\].*got "1\.5"$/],
+    ['floor table: a negative floor', [f('valid.csv'), '--floor-table', f('floors-negative.csv')], /floors-negative\.csv: line 2, column "floor": expected a fraction in \[0, 1\].*got "-0\.01"$/],
+    ['floor table: text for a floor', [f('valid.csv'), '--floor-table', f('floors-text.csv')], /floors-text\.csv: line 2, column "floor": .*got "two percent"$/],
+    ['floor table: no key column', [f('valid.csv'), '--floor-table', f('floors-no-key.csv')], /floors-no-key\.csv: no key columns/],
+    // cost tables
+    ['cost table: one key, two costs', [f('valid.csv'), '--cost-table', f('costs-conflicting.csv')], /costs-conflicting\.csv: lines 3 and 4 give package=QFN different values \(label_cost 4 and 2\); keep one$/],
+    ['cost table: a negative cost', [f('valid.csv'), '--cost-table', f('costs-negative.csv')], /costs-negative\.csv: line 3, column "label_cost": expected a cost > 0.*got "-4"$/],
+  ];
+  for (const [name, args, message] of cases) {
+    it(name, async () => {
+      await expectError(args, message);
+    });
+  }
+});
+
+describe.concurrent('awkward but valid files: the right report', () => {
+  it('a UTF-8 byte order mark: the first column keeps its name', async () => {
+    const { report } = await reportJson([f('bom.csv'), '--slice-cols', 'station']);
+    expect(report.source.roles.id).toBe('id'); // the first column, "\ufeffid" if the mark were kept
+    expect(report.overall.error.dev?.n).toBe(40);
+    expect(report.overall.error.dev?.value).toBe(0.25); // make.mjs: errors at i % 4 == 0, 10 of 40
+  });
+
+  it('CRLF line ends: values carry no carriage return', async () => {
+    const { report } = await reportJson([f('crlf.csv'), '--slice-cols', 'station,package']);
+    const values = report.slices.flatMap((s) => Object.values(s.key));
+    expect(values.sort()).toEqual(['0402', 'QFN', 'S1', 'S2', 'S3', 'S4']);
+    expect(report.overall.error.train?.value).toBe(0.25);
+  });
+
+  it('quoted fields with commas, quotes and a line break stay whole values', async () => {
+    const { report } = await reportJson([f('quoted.csv'), '--slice-cols', 'station']);
+    const values = report.slices.map((s) => s.key.station).sort();
+    expect(values).toEqual(['S"2"', 'S1, left', 'S3\nrear', 'S4']);
+    expect(report.overall.error.dev?.n).toBe(40);
+  });
+
+  it('numeric labels with integer and decimal spellings compare as numbers (1 = 1.0)', async () => {
+    const { report } = await reportJson([f('numeric-labels.csv'), '--slice-cols', 'station']);
+    expect(report.overall.error.train?.value).toBe(0.25); // 10 of 40, as with the text labels
+    expect(report.overall.error.dev?.value).toBe(0.25);
+  });
+
+  it('labels that mix numbers and words compare as written', async () => {
+    const { report } = await reportJson([f('mixed-labels.csv'), '--by', 'label']);
+    // make.mjs: good -> "0"; void -> "void" on rows i % 8 == 0, else "1"; predictions mapped the same way
+    expect(report.slices.map((s) => s.key.label).sort()).toEqual(['0', '1', 'void']);
+    expect(report.overall.error.dev?.value).toBe(0.25);
+  });
+
+  it('an empty label: the row is left out with a warning', async () => {
+    const { report } = await reportJson([f('empty-label.csv'), '--slice-cols', 'station']);
+    expect(report.overall.error.train?.n).toBe(39);
+    expect(report.warnings).toContain('1 row with an empty "label" or "pred" was left out');
+  });
+
+  it('control sequences in slice values are escaped in every format', async () => {
+    for (const format of ['text', 'md', 'csv', 'json']) {
+      const r = await runCli([f('control-values.csv'), '--slice-cols', 'station', '--format', format, '--no-cache']);
+      expect(r.code).toBe(0);
+      // CSV ends its records with CRLF (RFC 4180); every other control is data and must be escaped
+      expect(r.stdout.replace(format === 'csv' ? /\r\n/g : /^$/, '\n'), format).not.toMatch(LIVE_CONTROL);
+      expect(r.stderr).not.toMatch(LIVE_CONTROL);
+    }
+    const text = (await runCli([f('control-values.csv'), '--slice-cols', 'station', '--no-cache'])).stdout;
+    expect(text).toContain('station=S1\\x1b[2J'); // visible, not a clear-screen
+    expect(text).toContain('station=S3\\x07');
+    expect(text).toContain('station=S4\\u202eevil');
+    const { report } = await reportJson([f('control-values.csv'), '--slice-cols', 'station']);
+    expect(report.slices.map((s) => s.key.station).sort()).toEqual(['S1\x1b[2J', 'S2\x1b]52;c;ZWNobyBoaQ==\x07', 'S3\x07', 'S4\u202eevil']); // JSON keeps the data exact
+  });
+
+  it('floor-table keys that match no row: a warning per line, the report still made', async () => {
+    const { report } = await reportJson([f('valid.csv'), '--floor-table', f('floors-unmatched.csv'), '--slice-cols', 'package']);
+    expect(report.warnings).toContain(`${f('floors-unmatched.csv')}: line 4 (package=BGA) matches no row`);
+    expect(report.warnings).toContain(`${f('floors-unmatched.csv')}: line 5 (package=0603) matches no row`);
+    const qfn = report.slices.find((s) => s.key.package === 'QFN')!;
+    expect(qfn.floor.value).toBeCloseTo(0.05, 12); // floors-unmatched.csv line 3
+  });
+
+  it('cost-table keys that match no row: a warning', async () => {
+    const { report } = await reportJson([f('valid.csv'), '--cost-table', f('costs-unmatched.csv'), '--slice-cols', 'package']);
+    expect(report.warnings).toContain(`${f('costs-unmatched.csv')}: line 4 (package=BGA) matches no row`);
+  });
+});
+
+describe.concurrent('large cases, written at test time', () => {
+  let dir: string;
+  beforeAll(() => {
+    dir = mkdtempSync(join(tmpdir(), 'floorgap-bad-large-'));
+    // a 1 MB field in a free-text column
+    let big = 'id,split,station,note,label,pred\n';
+    for (let i = 0; i < 80; i++) big += `r${i},${i % 2 ? 'dev' : 'train'},S${i % 4},${i === 7 ? 'x'.repeat(1 << 20) : 'ok'},good,${i % 4 === 0 ? 'void' : 'good'}\n`;
+    writeFileSync(join(dir, 'big-field.csv'), big);
+    // a serial-number column with 100,000 distinct values
+    let many = 'id,split,station,serial,label,pred\n';
+    for (let i = 0; i < 100_000; i++) many += `r${i},${i % 2 ? 'dev' : 'train'},S${i % 4},SN${String(i).padStart(6, '0')},good,${i % 5 ? 'good' : 'void'}\n`;
+    writeFileSync(join(dir, 'many-values.csv'), many);
+  });
+  afterAll(() => rmSync(dir, { recursive: true, force: true }));
+
+  it('a 1 MB field is read, and shown shortened in the text report', async () => {
+    const r = await runCli([join(dir, 'big-field.csv'), '--by', 'note', '--no-cache']);
+    expect(r.code, r.stderr).toBe(0);
+    expect(Math.max(...r.stdout.split('\n').map((l) => l.length))).toBeLessThanOrEqual(100);
+    expect(r.stdout).toMatch(/xxxx…/);
+  });
+
+  it('a slice column of 100,000 values is stopped before the scan, with advice', async () => {
+    await expectError([join(dir, 'many-values.csv'), '--by', 'serial'], /--by serial: the first 100,000 rows alone hold 100,000 slices, more than --max-slices 10,000; slice by fewer or coarser columns/);
+    await expectError([join(dir, 'many-values.csv'), '--slice-cols', 'station,serial'], /the overview's columns give 100,004 slices \(serial alone 100,000\), more than --max-slices 10,000; name fewer or coarser columns in --slice-cols/);
+  });
+
+  it('the overview leaves such a column out by itself', async () => {
+    const { report } = await reportJson([join(dir, 'many-values.csv')]);
+    expect(report.slices.map((s) => Object.keys(s.key)[0])).not.toContain('serial');
+    expect(report.overall.error.dev?.n).toBe(50_000);
+  });
+});
