@@ -252,6 +252,25 @@ describe('stopping while the table loads', () => {
   }, 30_000);
 });
 
+describe('hostile slice values on a real terminal', () => {
+  it('control sequences from the data reach the screen as visible escapes, never as live ones', async () => {
+    // test/fixtures/bad/control-values.csv: stations "S1 ESC[2J", "S2 OSC 52 (clipboard write) BEL", "S3 BEL", "S4 RLO evil"
+    const p = start(['explore', 'test/fixtures/bad/control-values.csv', '--slice-cols', 'station', '--no-cache'], 100, 30);
+    await p.waitFor(TABLE, WAIT);
+    const screen = p.screen().join('\n');
+    expect(screen).toContain('station=S1\\x1b[2J');
+    expect(screen).toContain('station=S3\\x07');
+    expect(screen).toContain('station=S4\\u202e'); // shortened with … at this width
+    const raw = p.raw();
+    expect(raw).not.toContain('\x1b]52'); // no clipboard write
+    expect(raw).not.toContain('S1\x1b[2J'); // the value's own clear-screen never written as such
+    expect(raw).not.toContain('\x07');
+    expect(raw).not.toContain('\u202e');
+    await p.press('q');
+    expect(await p.exited()).toEqual({ exitCode: 0, signal: 0 });
+  }, 30_000);
+});
+
 describe('explore without a terminal on stdout prints the text report', () => {
   it('floorgap explore FILES', async () => {
     const r = await runCli(['explore', ...SAMPLE]);
