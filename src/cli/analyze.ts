@@ -1,6 +1,6 @@
 import { loadCellFiles } from '../engine/cells-input.js';
 import { openDuck, type Duck } from '../engine/duck.js';
-import { loadCells, withCells, type LoadHooks, type Loaded } from '../engine/load.js';
+import { cellLimit, loadCells, withCells, type LoadHooks, type Loaded } from '../engine/load.js';
 import { cacheDir, cacheKey, readCache } from '../io/cell-cache.js';
 import { buildReport, type ReportContext } from '../triage/report.js';
 import type { Report, TriageOptions } from '../triage/types.js';
@@ -88,7 +88,7 @@ function reportOf(loaded: Loaded, triageOptions: TriageOptions, where: string | 
 export async function analyzeWith(duck: Duck, args: AnalysisArgs, io?: AnalysisIO): Promise<Analysis> {
   const triageOptions = toTriageOptions(args);
   if (usesCells(args)) {
-    const loaded = await loadCellFiles(duck, cellPaths(args, io), list(args.by));
+    const loaded = await loadCellFiles(duck, cellPaths(args, io), list(args.by), cellLimit(args['max-cells'] ?? 200_000));
     return reportOf(loaded, triageOptions, null);
   }
   const loadOptions = toLoadOptions(args);

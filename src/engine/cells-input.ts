@@ -91,8 +91,9 @@ async function locate(duck: Duck, input: TableInput, expr: string, predicate: st
 /**
  * Loads ready-made cells from one or more files (shards are summed).
  * @param by the `--by` columns, which must be key columns of the cells
+ * @param limit most cells (after summing shards) read into memory; more fail with advice
  */
-export async function loadCellFiles(duck: Duck, paths: readonly string[], by: readonly string[] | null): Promise<Loaded> {
+export async function loadCellFiles(duck: Duck, paths: readonly string[], by: readonly string[] | null, limit = Infinity): Promise<Loaded> {
   if (paths.length === 0) throw error('--cells: expected one or more cells files');
   const inputs: TableInput[] = [];
   const exprs: string[] = [];
@@ -144,6 +145,7 @@ export async function loadCellFiles(duck: Duck, paths: readonly string[], by: re
   let read;
   try {
     read = await readCells(duck, merged, lay.keys, {
+      limit,
       keys: lay.keys,
       split: 'fg_split',
       run: lay.run ? 'fg_run' : null,
