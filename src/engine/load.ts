@@ -178,23 +178,32 @@ export async function planScan(
   }
   const chosen = chooseSliceColumns(profile, roleCols, options.sliceCols, source.where, dataColumns);
   const by = options.by ? resolveBy(options.by, dataColumns, roles, source.where) : null;
+  // key columns of floor and cost tables are slice columns: label, pred and split are allowed (a floor
+  // per true class), the row-level roles and annotator columns are not
+  const notKeys = new Map<string, string>();
+  for (const r of ['id', 'weight', 'score', 'error', 'run'] as const) {
+    const col = roles[r];
+    if (col) notKeys.set(col, `the ${r} column`);
+  }
+  for (const a of annotators) notKeys.set(a, 'an annotator column');
+  const checkKeys = (path: string, table: FloorTable) => {
+    for (const k of table.keyColumns) {
+      if (!dataColumns.includes(k)) {
+        throw error(`${path}: key column "${k}" is not a column of ${source.where}; the columns are ${dataColumns.map((c) => JSON.stringify(c)).join(', ')}`);
+      }
+      const role = notKeys.get(k);
+      if (role) throw error(`${path}: key column "${k}" is ${role} of ${source.where}; keys must be slice columns (e.g. package), label, pred or split`);
+    }
+  };
   let floorTable: FloorTable | null = null;
   if (options.floorTable) {
     floorTable = await readFloorTable(duck, options.floorTable);
-    for (const k of floorTable.keyColumns) {
-      if (!dataColumns.includes(k)) {
-        throw error(`${options.floorTable}: key column "${k}" is not a column of ${source.where}; the columns are ${dataColumns.map((c) => JSON.stringify(c)).join(', ')}`);
-      }
-    }
+    checkKeys(options.floorTable, floorTable);
   }
   let costTable: FloorTable | null = null;
   if (options.costTable) {
     costTable = await readFloorTable(duck, options.costTable, 'label_cost');
-    for (const k of costTable.keyColumns) {
-      if (!dataColumns.includes(k)) {
-        throw error(`${options.costTable}: key column "${k}" is not a column of ${source.where}; the columns are ${dataColumns.map((c) => JSON.stringify(c)).join(', ')}`);
-      }
-    }
+    checkKeys(options.costTable, costTable);
   }
   // cell columns: candidates, plus --by columns and floor/cost-table keys that are not candidates
   const wanted = [...chosen.columns];

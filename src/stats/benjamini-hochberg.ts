@@ -34,7 +34,8 @@ export function benjaminiHochberg(p: readonly (number | null)[]): (number | null
   for (let rank = m; rank >= 1; rank--) {
     const index = order[rank - 1];
     running = Math.min(running, ((p[index] as number) * m) / rank);
-    out[index] = running;
+    // q ≥ p holds exactly (m/rank ≥ 1), but p·m/rank can round one step below p
+    out[index] = Math.max(running, p[index] as number);
   }
   return out;
 }

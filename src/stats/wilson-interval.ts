@@ -15,7 +15,9 @@ import { assertFinite, checkCount } from './validate-input.js';
  *
  * Weighted data: `x` may be non-integer; pass x = p̂·n_eff and n = n_eff (e.g. Kish's effective
  * n) — the formula depends on x only through p̂ = x/n. Edges are exact: x = 0 gives lo = 0 and
- * x = n gives hi = 1; both ends are clamped to [0, 1] against rounding.
+ * x = n gives hi = 1; both ends are clamped to [0, 1] and to either side of p̂ against rounding. The
+ * lower end is computed as p̂² / ((1 + z²/n) · hi), the same value as centre − half-width (their
+ * product is p̂² / (1 + z²/n)) without its cancellation for tiny p̂.
  * @param x number of successes (may be non-integer), 0 ≤ x ≤ n
  * @param n number of trials (may be non-integer); n ≤ 0 means no data
  * @param confidence two-sided confidence level in (0, 1); default 0.95
@@ -37,7 +39,9 @@ export function wilsonInterval(x: number, n: number, confidence = 0.95): Interva
   const denom = 1 + z2 / n;
   const centre = (p + z2 / (2 * n)) / denom;
   const half = (z * Math.sqrt((p * (1 - p)) / n + z2 / (4 * n * n))) / denom;
-  const lo = xc === 0 ? 0 : Math.max(0, centre - half);
-  const hi = xc === n ? 1 : Math.min(1, centre + half);
+  const hi = xc === n ? 1 : Math.min(1, Math.max(p, centre + half));
+  // lo · hi = p̂² / (1 + z²/n) exactly; dividing avoids centre − half, which loses every digit when p̂
+  // is far below z²/n (a weighted error of 1e-18)
+  const lo = xc === 0 ? 0 : Math.max(0, Math.min(p, (p * p) / (denom * hi)));
   return { lo, hi };
 }
