@@ -75,6 +75,8 @@ describe.concurrent('bad files: exit 2 and one line naming what is wrong', () =>
     ['floor table: a negative floor', [f('valid.csv'), '--floor-table', f('floors-negative.csv')], /floors-negative\.csv: line 2, column "floor": expected a fraction in \[0, 1\].*got "-0\.01"$/],
     ['floor table: text for a floor', [f('valid.csv'), '--floor-table', f('floors-text.csv')], /floors-text\.csv: line 2, column "floor": .*got "two percent"$/],
     ['floor table: no key column', [f('valid.csv'), '--floor-table', f('floors-no-key.csv')], /floors-no-key\.csv: no key columns/],
+    ['floor table: a role column as key', [f('valid.csv'), '--floor-table', f('floors-role-key.csv')], /floors-role-key\.csv: key column "id" is the id column of .*valid\.csv; keys must be slice columns \(e\.g\. package\), label, pred or split$/],
+    ['cost table: a role column as key', [f('valid.csv'), '--cost-table', f('costs-role-key.csv')], /costs-role-key\.csv: key column "weight" is the weight column of/],
     // cost tables
     ['cost table: one key, two costs', [f('valid.csv'), '--cost-table', f('costs-conflicting.csv')], /costs-conflicting\.csv: lines 3 and 4 give package=QFN different values \(label_cost 4 and 2\); keep one$/],
     ['cost table: a negative cost', [f('valid.csv'), '--cost-table', f('costs-negative.csv')], /costs-negative\.csv: line 3, column "label_cost": expected a cost > 0.*got "-4"$/],
