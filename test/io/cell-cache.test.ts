@@ -9,6 +9,7 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { cacheDir, decodeEntry, encodeEntry } from '../../src/io/cell-cache.js';
 import { openDuck } from '../../src/engine/duck.js';
 import { loadCells } from '../../src/engine/load.js';
+import { jsonDifferences } from '../helpers/report-compare.js';
 import { runMain } from '../helpers/run-main.js';
 import { makeTempDir, removeTempDir } from '../helpers/table-variants.js';
 
@@ -137,9 +138,13 @@ describe('damaged entries are detected by their checksum and rebuilt', () => {
     const { mtimeMs } = statSync(path);
     const again = await report(file);
     expect(again.code).toBe(0);
-    expect(again.stdout).toBe(good.stdout);
-    // rebuilt: the same bytes as the first entry, written anew
-    expect(readFileSync(path).equals(bytes)).toBe(true);
+    expect(jsonDifferences(JSON.parse(again.stdout), JSON.parse(good.stdout))).toEqual([]); // the same report, to 1e-9
+    // rebuilt: a whole entry again (its checksum holds), not the damaged bytes; its sums may differ from
+    // the first entry's in the last bits (DuckDB adds floats in parallel), so bytes are not compared
+    const rebuilt = readFileSync(path);
+    expect(rebuilt.equals(damaged)).toBe(false);
+    expect(rebuilt.length).toBe(bytes.length);
+    expect(decodeEntry(rebuilt, made.replace(/\.fgcells$/, ''))).not.toBeNull();
     expect(statSync(path).mtimeMs).toBeGreaterThanOrEqual(mtimeMs);
   });
 
