@@ -12,7 +12,7 @@ import { cellIndicesFor, runsOf } from './slices.js';
 import { textSql } from './profile.js';
 import { cacheKey, readCache, writeCache } from '../io/cell-cache.js';
 import { describeKey, readFloorTable, type FloorEntry, type FloorTable } from '../io/read-floor-table.js';
-import { locateReadError, readReason, withReadErrors } from '../io/read-errors.js';
+import { locateReadError, readError, withReadErrors } from '../io/read-errors.js';
 import { firstBadRow } from '../io/locate.js';
 import { error } from '../util/error.js';
 
@@ -302,7 +302,7 @@ async function scanPlanned(duck: Duck, planned: ScanPlan): Promise<Loaded> {
   const warnings = [...planned.warnings];
   const scanned = await scanCells(duck, plan, grouping, source.native ?? null).catch(async (e) => {
     if (e instanceof Error && e.name === 'FloorgapError') throw e;
-    throw (await locateReadError(source.inputs)) ?? scanError(source, e);
+    throw (await locateReadError(source.inputs)) ?? readError(source.where, e);
   });
   let table = scanned.table;
   await checkIssues(duck, source, roles, plan, scanned.issues, warnings);
@@ -341,12 +341,6 @@ export function withCells(loaded: Omit<Loaded, 'cells'>): Loaded {
     enumerable: true,
     get: () => (cells ??= tableCells(loaded.table)),
   }) as Loaded;
-}
-
-function scanError(source: Source, e: unknown): Error {
-  if (e instanceof Error && e.name === 'FloorgapError') return e;
-  const reason = readReason(e instanceof Error ? e.message : String(e));
-  return error(/^line \d+|^not a valid|^the compressed/.test(reason) ? `${source.where}: ${reason}` : `${source.where}: cannot read the rows (${reason})`, e);
 }
 
 function splitCounts(table: CellTable): Record<Split, number> {

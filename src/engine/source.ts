@@ -56,31 +56,31 @@ export async function openSource(duck: Duck, spec: SourceSpec): Promise<Source> 
 
   const parts: string[] = [];
   const allColumns: string[] = [];
-  await withReadErrors(inputs, inputs.map((i) => i.path).join(', '), async () => {
-  for (const input of inputs) {
-    let cols: string[];
-    let expr: string;
-    if (input.header) {
-      // a plain header read from the first bytes: no sniffing of the file
-      cols = [...input.header];
-      checkHeader(input.path, cols, cols);
-      expr = pinnedCsvSql(input, cols);
-    } else {
-      const detected = await tableSql(duck, input);
-      cols = await describeColumns(duck, detected, input.path);
-      checkHeader(input.path, cols, (await headerNames(duck, input)) ?? cols);
-      expr = input.format === 'csv' || input.format === 'tsv' ? pinnedCsvSql(input, cols) : detected;
-    }
-    for (const c of cols) if (!allColumns.includes(c)) allColumns.push(c);
-    parts.push(
-      input.split
-        ? `SELECT *, ${literal(input.split)} AS ${ident(PER_SPLIT_COLUMN)} FROM ${expr}`
-        : `SELECT * FROM ${expr}`,
-    );
-  }
-  await duck.run(`CREATE OR REPLACE VIEW ${ROWS_VIEW} AS ${parts.join(' UNION ALL BY NAME ')}`);
-  });
   const where = inputs.map((i) => i.path).join(', ');
+  await withReadErrors(inputs, where, async () => {
+    for (const input of inputs) {
+      let cols: string[];
+      let expr: string;
+      if (input.header) {
+        // a plain header read from the first bytes: no sniffing of the file
+        cols = [...input.header];
+        checkHeader(input.path, cols, cols);
+        expr = pinnedCsvSql(input, cols);
+      } else {
+        const detected = await tableSql(duck, input);
+        cols = await describeColumns(duck, detected, input.path);
+        checkHeader(input.path, cols, (await headerNames(duck, input)) ?? cols);
+        expr = input.format === 'csv' || input.format === 'tsv' ? pinnedCsvSql(input, cols) : detected;
+      }
+      for (const c of cols) if (!allColumns.includes(c)) allColumns.push(c);
+      parts.push(
+        input.split
+          ? `SELECT *, ${literal(input.split)} AS ${ident(PER_SPLIT_COLUMN)} FROM ${expr}`
+          : `SELECT * FROM ${expr}`,
+      );
+    }
+    await duck.run(`CREATE OR REPLACE VIEW ${ROWS_VIEW} AS ${parts.join(' UNION ALL BY NAME ')}`);
+  });
   const native = inputs.every((i) => i.format === 'parquet') ? await withReadErrors(inputs, where, () => nativeView(duck, inputs)) : null;
   return { inputs, columns: allColumns, splitColumn: perSplit.length > 0 ? PER_SPLIT_COLUMN : null, where, native };
 }
