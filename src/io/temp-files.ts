@@ -39,7 +39,3 @@ export function removeTempsSync(): number {
   return n;
 }
 
-/** The registered temporary files (for tests). */
-export function liveTemps(): readonly string[] {
-  return [...live];
-}
