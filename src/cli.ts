@@ -20,7 +20,9 @@ main(process.argv.slice(2), io).then(
     process.exitCode = code;
   },
   (e: unknown) => {
-    process.stderr.write(`floorgap: internal error: ${e instanceof Error ? e.message : String(e)}\n`);
+    // main() catches everything it can; this is the last guard, so it escapes controls by itself
+    const msg = (e instanceof Error ? e.message : String(e)).split('\n')[0].replace(/[\x00-\x1f\x7f-\x9f\u061c\u200e\u200f\u2028\u2029\u202a-\u202e\u2066-\u2069]/g, '?');
+    process.stderr.write(`floorgap: internal error: ${msg}\n`);
     process.exitCode = 3;
   },
 );

@@ -12,6 +12,7 @@ import { useColor } from '../io.js';
 import { toTriageOptions } from '../options.js';
 import { runExport, type ExportArgs } from './export.js';
 import { claimSignals } from '../signals.js';
+import { sanitize } from '../../render/sanitize.js';
 import type { ExploreArgs } from './explore.js';
 
 /** A slice key as `--slice` text: `col=value` pairs, commas, `=` and backslashes escaped. */
@@ -88,7 +89,7 @@ export async function runExplorer(args: ExploreArgs, io: CliIO, argv: readonly s
       process.off('uncaughtException', onCrash);
       if (error !== undefined) {
         const msg = error instanceof Error ? error.message : String(error);
-        io.stderr.write(`floorgap: ${msg.split('\n')[0]}\n`);
+        io.stderr.write(`floorgap: ${sanitize(msg.split('\n')[0])}\n`);
       }
       resolve(code);
     };
