@@ -3,6 +3,7 @@
 // development build profiles every render and is several times slower. So set it before loading.
 process.env.NODE_ENV ??= 'production';
 const { main } = await import('./cli/index.js');
+const { sanitize } = await import('./render/sanitize.js');
 const { installSignalHandlers } = await import('./cli/signals.js');
 installSignalHandlers(process.stderr);
 
@@ -20,9 +21,7 @@ main(process.argv.slice(2), io).then(
     process.exitCode = code;
   },
   (e: unknown) => {
-    // main() catches everything it can; this is the last guard, so it escapes controls by itself
-    const msg = (e instanceof Error ? e.message : String(e)).split('\n')[0].replace(/[\x00-\x1f\x7f-\x9f\u061c\u200e\u200f\u2028\u2029\u202a-\u202e\u2066-\u2069]/g, '?');
-    process.stderr.write(`floorgap: internal error: ${msg}\n`);
+    process.stderr.write(`floorgap: internal error: ${sanitize((e instanceof Error ? e.message : String(e)).split('\n')[0])}\n`);
     process.exitCode = 3;
   },
 );
