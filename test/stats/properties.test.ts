@@ -71,6 +71,14 @@ const familyAndPermutation = family.chain((p) =>
   ),
 );
 
+/** Definition of a proportion interval: both ends in [0, 1], the point estimate between them. */
+function expectInUnitAround(lo: number, hi: number, p: number, why: string): void {
+  expect(lo, why).toBeGreaterThanOrEqual(0);
+  expect(hi, why).toBeLessThanOrEqual(1);
+  expect(lo, why).toBeLessThanOrEqual(p);
+  expect(hi, why).toBeGreaterThanOrEqual(p);
+}
+
 describe('wilsonInterval: properties', () => {
   /**
    * Wilson 1927, J. Am. Stat. Assoc. 22:209: the score interval is the set of p whose score test does
@@ -85,10 +93,7 @@ describe('wilsonInterval: properties', () => {
         const { lo, hi } = ci!;
         const p = x / n;
         const why = `wilsonInterval(${x}, ${n}, ${c}) = [${lo}, ${hi}], x/n = ${p}`;
-        expect(lo, why).toBeGreaterThanOrEqual(0);
-        expect(hi, why).toBeLessThanOrEqual(1);
-        expect(lo, why).toBeLessThanOrEqual(p);
-        expect(hi, why).toBeGreaterThanOrEqual(p);
+        expectInUnitAround(lo, hi, p, why);
       }),
       RUNS,
     );
@@ -107,10 +112,7 @@ describe('wilsonInterval: properties', () => {
         expect(ci).not.toBeNull();
         const { lo, hi } = ci!;
         const why = `wilsonInterval(${x}, ${n}, ${c}) = [${lo}, ${hi}], p̂ = ${p}`;
-        expect(lo, why).toBeGreaterThanOrEqual(0);
-        expect(hi, why).toBeLessThanOrEqual(1);
-        expect(lo, why).toBeLessThanOrEqual(p);
-        expect(hi, why).toBeGreaterThanOrEqual(p);
+        expectInUnitAround(lo, hi, p, why);
       }),
       RUNS,
     );
