@@ -1,5 +1,9 @@
+import { mkdtempSync, rmSync } from 'node:fs';
+import { tmpdir } from 'node:os';
+import { join } from 'node:path';
 import { loadCellFiles } from '../engine/cells-input.js';
 import { openDuck, type Duck } from '../engine/duck.js';
+import { releaseTemp, trackScratch } from '../io/temp-files.js';
 import { cellLimit, loadCells, withCells, type LoadHooks, type Loaded } from '../engine/load.js';
 import { cacheDir, cacheKey, readCache } from '../io/cell-cache.js';
 import { buildReport, type ReportContext } from '../triage/report.js';
@@ -96,9 +100,49 @@ export async function analyzeWith(duck: Duck, args: AnalysisArgs, io?: AnalysisI
   return reportOf(loaded, triageOptions, loadOptions.where);
 }
 
-/** Opens the engine with the user's resource settings and runs `use` on it, closing it afterwards. */
-export async function withDuck<T>(args: Pick<AnalysisArgs, 'threads' | 'memory-limit'>, use: (duck: Duck) => Promise<T>): Promise<T> {
-  const duck = await openDuck({ threads: args.threads, memoryLimit: args['memory-limit'] });
+/** The files a command's engine may touch besides the spill folder (see EngineAccess). */
+export interface FileAccess {
+  readonly read: readonly string[];
+  readonly write: readonly string[];
+}
+
+/** The files an analysing command reads: its prediction tables (or cells files), floor and cost tables. */
+export function analysisReads(args: AnalysisArgs): string[] {
+  const cells = Array.isArray(args.cells) ? args.cells : args.cells === undefined ? [] : [args.cells];
+  return [...(args.files ?? []), args.train, args['train-dev'], args.dev, args.test, args['floor-table'], args['cost-table'], ...cells]
+    .filter((f): f is string => f !== undefined && f !== null)
+    .map(String);
+}
+
+/**
+ * Opens the engine with the user's resource settings, locked to `access` (and a spill folder of its
+ * own, removed on close, also when the process is stopped).
+ */
+export async function openEngine(args: Pick<AnalysisArgs, 'threads' | 'memory-limit'>, access: FileAccess): Promise<Duck> {
+  const spill = trackScratch(mkdtempSync(join(tmpdir(), 'floorgap-spill-')));
+  const removeSpill = () => {
+    rmSync(spill, { recursive: true, force: true });
+    releaseTemp(spill);
+  };
+  let duck: Duck;
+  try {
+    duck = await openDuck({ threads: args.threads, memoryLimit: args['memory-limit'] }, { ...access, spill });
+  } catch (e) {
+    removeSpill();
+    throw e;
+  }
+  return {
+    ...duck,
+    close() {
+      duck.close();
+      removeSpill();
+    },
+  };
+}
+
+/** Opens the engine (see {@link openEngine}) and runs `use` on it, closing it afterwards. */
+export async function withDuck<T>(args: Pick<AnalysisArgs, 'threads' | 'memory-limit'>, access: FileAccess, use: (duck: Duck) => Promise<T>): Promise<T> {
+  const duck = await openEngine(args, access);
   try {
     return await use(duck);
   } finally {
@@ -119,5 +163,5 @@ export async function analyze(args: AnalysisArgs, io?: AnalysisIO): Promise<Anal
     const hit = cache && key ? await readCache(cache.dir, key) : null;
     if (hit) return reportOf(withCells(hit), triageOptions, loadOptions.where);
   }
-  return withDuck(args, (duck) => analyzeWith(duck, args, io));
+  return withDuck(args, { read: analysisReads(args), write: [] }, (duck) => analyzeWith(duck, args, io));
 }

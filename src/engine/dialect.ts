@@ -5,6 +5,8 @@
  * a constant table, and GREATEST.
  */
 
+import { hasUnsafeChars, isUnsafeCode } from '../util/unsafe-chars.js';
+
 /** Dialects `floorgap sql --dialect` writes. */
 export const DIALECTS = ['ansi', 'duckdb', 'spark', 'trino', 'bigquery'] as const;
 export type DialectName = (typeof DIALECTS)[number];
@@ -20,7 +22,7 @@ export interface Dialect {
   readonly name: DialectName;
   /** a quoted identifier (column or alias name) */
   ident(name: string): string;
-  /** a quoted string literal */
+  /** a quoted string literal of exactly `value`; unsafe characters (util/unsafe-chars.ts) are written as escapes */
   str(value: string): string;
   /** a number literal of type DOUBLE (or the dialect's double type) */
   num(value: number): string;
@@ -51,9 +53,57 @@ function standardString(value: string): string {
   return `'${value.replace(/'/g, "''")}'`;
 }
 
-/** '…' with backslash escapes: Spark SQL and BigQuery read \' and \\ inside string literals. */
+const hex4 = (code: number) => code.toString(16).toUpperCase().padStart(4, '0');
+
+/**
+ * The value split into runs of safe text and single unsafe code units (see util/unsafe-chars.ts): a
+ * literal carries the exact value, with the unsafe characters written as escapes, so that the printed
+ * query holds no control character, line break or bidi control, and still matches the data.
+ */
+function pieces(value: string): (string | number)[] {
+  const out: (string | number)[] = [];
+  let run = '';
+  for (let i = 0; i < value.length; i++) {
+    const code = value.charCodeAt(i);
+    if (code >= 0xd800 && code <= 0xdbff && i + 1 < value.length) {
+      const next = value.charCodeAt(i + 1);
+      if (next >= 0xdc00 && next <= 0xdfff) {
+        run += value[i] + value[i + 1];
+        i++;
+        continue;
+      }
+    }
+    if (isUnsafeCode(code)) {
+      if (run) out.push(run);
+      run = '';
+      out.push(code);
+    } else run += value[i];
+  }
+  if (run || out.length === 0) out.push(run);
+  return out;
+}
+
+/** DuckDB: '…', and chr(n) joined with || for an unsafe character. */
+function duckString(value: string): string {
+  if (!hasUnsafeChars(value)) return standardString(value);
+  return `(${pieces(value).map((p) => (typeof p === 'number' ? `chr(${p})` : standardString(p))).join(' || ')})`;
+}
+
+/** ANSI and Trino: '…', or a Unicode escape literal U&'…\XXXX…' (SQL:2003) when it holds an unsafe character. */
+function unicodeString(value: string): string {
+  if (!hasUnsafeChars(value)) return standardString(value);
+  const body = pieces(value)
+    .map((p) => (typeof p === 'number' ? `\\${hex4(p)}` : p.replace(/\\/g, '\\\\').replace(/'/g, "''")))
+    .join('');
+  return `U&'${body}'`;
+}
+
+/** '…' with backslash escapes: Spark SQL and BigQuery read \' and \\, \n, \r, \t and \uXXXX inside string literals. */
 function backslashString(value: string): string {
-  const body = value.replace(/[\\'\n\r\t]/g, (c) => ({ '\\': '\\\\', "'": "\\'", '\n': '\\n', '\r': '\\r', '\t': '\\t' })[c]!);
+  const short: Record<string, string> = { '\\': '\\\\', "'": "\\'", '\n': '\\n', '\r': '\\r', '\t': '\\t' };
+  const body = pieces(value)
+    .map((p) => (typeof p === 'number' ? short[String.fromCharCode(p)] ?? `\\u${hex4(p)}` : p.replace(/[\\']/g, (c) => short[c])))
+    .join('');
   return `'${body}'`;
 }
 
@@ -87,7 +137,7 @@ function valuesList(alias: string, columns: readonly ValuesColumn[], rows: reado
 const DUCKDB: Dialect = {
   name: 'duckdb',
   ident: doubleQuoted,
-  str: standardString,
+  str: duckString,
   num: numberText,
   types: { int: 'BIGINT', double: 'DOUBLE', text: 'VARCHAR' },
   toNumber: (t) => `TRY_CAST(${t} AS DOUBLE)`,
@@ -102,7 +152,7 @@ const DUCKDB: Dialect = {
 const ANSI: Dialect = {
   name: 'ansi',
   ident: doubleQuoted,
-  str: standardString,
+  str: unicodeString,
   num: numberText,
   types: { int: 'BIGINT', double: 'DOUBLE PRECISION', text: 'VARCHAR' },
   // ANSI SQL has no cast that yields NULL on bad input: a value that is not a number fails the query
@@ -119,7 +169,7 @@ const ANSI: Dialect = {
 const TRINO: Dialect = {
   name: 'trino',
   ident: doubleQuoted,
-  str: standardString,
+  str: unicodeString,
   num: numberText,
   types: { int: 'BIGINT', double: 'DOUBLE', text: 'VARCHAR' },
   toNumber: (t) => `TRY_CAST(${t} AS DOUBLE)`,

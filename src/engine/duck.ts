@@ -1,5 +1,6 @@
 import type { DuckDBConnection } from '@duckdb/node-api';
 import { cpus } from 'node:os';
+import { resolve } from 'node:path';
 
 /** Resource settings for the embedded scan engine. */
 export interface DuckSettings {
@@ -10,6 +11,19 @@ export interface DuckSettings {
 }
 
 export const DEFAULT_THREADS = Math.max(1, Math.min(2, cpus().length));
+
+/**
+ * The files a locked engine may touch: the exact paths a command reads (its inputs, floor and cost
+ * tables, cells files, a baseline) and the exact temporary files it writes (never a folder: the working
+ * folder may hold `.git/hooks`). Everything else — other files, folders, the network, extensions,
+ * environment variables, settings — is refused by the engine itself once it is open.
+ */
+export interface EngineAccess {
+  readonly read: readonly string[];
+  readonly write: readonly string[];
+  /** an empty folder of the caller's own where the engine spills what does not fit in memory */
+  readonly spill: string;
+}
 export const DEFAULT_MEMORY_LIMIT = '2GB';
 
 /** An open in-process DuckDB database with helpers that return plain JS values (BIGINT → number). */
@@ -43,13 +57,22 @@ function plain(value: unknown): unknown {
   return value;
 }
 
+function listLiteral(paths: readonly string[]): string {
+  return `[${paths.map((p) => `'${p.replace(/'/g, "''")}'`).join(', ')}]`;
+}
+
 /**
- * Opens an in-memory DuckDB with explicit `threads` and `memory_limit`.
+ * Opens an in-memory DuckDB with explicit `threads` and `memory_limit`. With `access`, the engine is
+ * locked before it is returned: it may read and write only the files listed there and spill only to the
+ * folder named there, it has no other file, network or extension access, and no
+ * setting can be changed any more (`lock_configuration`). Every command of the CLI opens its engine
+ * locked; tests of the engine's functions may open it unlocked.
  * @example
- * const duck = await openDuck({ threads: 2, memoryLimit: '1GB' });
+ * const duck = await openDuck({ threads: 2, memoryLimit: '1GB' }, { read: ['preds.csv'], write: [], spill: '/tmp/floorgap-spill-x' });
  * await duck.all('select 1 as one'); // => [{ one: 1 }]
+ * await duck.all("select * from read_csv('/etc/passwd')"); // throws: file system operations are disabled
  */
-export async function openDuck(settings: DuckSettings = {}): Promise<Duck> {
+export async function openDuck(settings: DuckSettings = {}, access?: EngineAccess): Promise<Duck> {
   const threads = settings.threads ?? DEFAULT_THREADS;
   const memoryLimit = settings.memoryLimit ?? DEFAULT_MEMORY_LIMIT;
   // loaded on first use: a report served from the cache never loads the engine
@@ -57,13 +80,21 @@ export async function openDuck(settings: DuckSettings = {}): Promise<Duck> {
   const instance = await DuckDBInstance.create(':memory:', {
     threads: String(threads),
     memory_limit: memoryLimit,
+    ...(access ? { temp_directory: access.spill } : {}),
   });
   const connection = await instance.connect();
-  open.add(connection);
   // track progress from the start, for watchProgress, without DuckDB printing a bar of its own
   await connection.run('SET enable_progress_bar = true');
   await connection.run('SET enable_progress_bar_print = false');
   await connection.run('SET progress_bar_time = 0');
+  if (access) {
+    const files = [...new Set([...access.read, ...access.write].map((p) => resolve(p)))];
+    await connection.run(`SET allowed_paths = ${listLiteral(files)}`);
+    await connection.run(`SET allowed_directories = ${listLiteral([`${resolve(access.spill)}/`])}`);
+    await connection.run('SET enable_external_access = false');
+    await connection.run('SET lock_configuration = true');
+  }
+  open.add(connection);
   return {
     connection,
     async all(sql: string) {

@@ -6,6 +6,7 @@ import { chooseSliceColumns, createSample, profileColumns, SAMPLE_ROWS, sampleTu
 import { chao1 } from '../stats/chao1.js';
 import { resolveRoles, roleColumns, type RoleOptions, type Roles } from './roles.js';
 import { checkWhere, openSource, type Source, type SourceSpec } from './source.js';
+import { safeWhere } from './where.js';
 import { ident } from './sql.js';
 import { SPLITS, type Cell, type SliceColumn, type Split } from './types.js';
 import { cellIndicesFor, runsOf } from './slices.js';
@@ -144,7 +145,10 @@ export async function planScan(
   const warnings: string[] = [];
   const roles = resolveRoles(source.columns, options.roles, source.where, source.splitColumn !== null);
   const splitColumn = roles.split ?? source.splitColumn!;
-  await checkWhere(duck, options.where);
+  // from here on the filter is the checked text DuckDB wrote back, never the text as given
+  const givenWhere = options.where;
+  options = { ...options, where: await safeWhere(duck, options.where) };
+  await checkWhere(duck, options.where, givenWhere);
   const dataColumns = source.columns.filter((c) => c !== source.splitColumn);
   // role columns that never become slice columns are not profiled (an id column's 100,000 distinct
   // values cost more than all the others), unless named as slice columns
@@ -157,7 +161,7 @@ export async function planScan(
   const sample = await withReadErrors(source.inputs, source.where, () => createSample(duck, options.where, SAMPLE_ROWS, sampled));
   const profile = await profileColumns(duck, profiled, options.where, SAMPLE_ROWS, sample);
   if (profile.sampleRows === 0) {
-    throw error(options.where ? `${source.where}: no rows match --where "${options.where}"` : `${source.where}: no rows; expected a header and data rows`);
+    throw error(givenWhere ? `${source.where}: no rows match --where "${givenWhere}"` : `${source.where}: no rows; expected a header and data rows`);
   }
   const annotators = [...(options.annotators ?? [])];
   for (const a of annotators) {

@@ -43,14 +43,9 @@ export const SAMPLE_TABLE = 'fg_sample';
  */
 export async function createSample(duck: Duck, where: string | null, sampleRows = SAMPLE_ROWS, columns?: readonly string[]): Promise<string> {
   const list = columns && columns.length > 0 ? columns.map(ident).join(', ') : '*';
-  // one thread reads the first rows sooner: more threads would read ahead past the limit
-  const [{ t }] = await duck.all(`SELECT current_setting('threads') AS t`);
-  await duck.run('SET threads = 1');
-  try {
-    await duck.run(`CREATE OR REPLACE TEMP TABLE ${SAMPLE_TABLE} AS SELECT ${list} FROM ${ROWS_VIEW} WHERE ${whereSql(where)} LIMIT ${sampleRows}`);
-  } finally {
-    await duck.run(`SET threads = ${Number(t)}`);
-  }
+  // the engine keeps the input's order under LIMIT (preserve_insertion_order): the first rows, whatever
+  // the number of threads (its settings are locked by now, see openDuck)
+  await duck.run(`CREATE OR REPLACE TEMP TABLE ${SAMPLE_TABLE} AS SELECT ${list} FROM ${ROWS_VIEW} WHERE ${whereSql(where)} LIMIT ${sampleRows}`);
   return SAMPLE_TABLE;
 }
 

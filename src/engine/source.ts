@@ -119,14 +119,23 @@ function checkHeader(path: string, cols: readonly string[], written: readonly st
   }
 }
 
-/** Checks a `--where` expression against the source's columns before the scan. */
-export async function checkWhere(duck: Duck, where: string | null): Promise<void> {
+/**
+ * Checks a `--where` condition (already made safe by safeWhere) against the source's columns before the
+ * scan: every column it names exists, and it is true or false for a row (not, say, a bare text value).
+ * @param given the condition as the user wrote it, for messages
+ */
+export async function checkWhere(duck: Duck, where: string | null, given: string | null = where): Promise<void> {
   if (!where) return;
+  let type: string;
   try {
-    await duck.all(`SELECT count(*) AS n FROM (SELECT * FROM ${ROWS_VIEW} LIMIT 0) WHERE (${where})`);
+    const rows = await duck.all(`DESCRIBE SELECT (${where}) AS fg_keep FROM ${ROWS_VIEW}`);
+    type = String(rows[0]?.column_type ?? '');
   } catch (e) {
-    const msg = e instanceof Error ? e.message.split('\n')[0] : String(e);
-    throw error(`--where "${where}": not a valid DuckDB SQL condition on the columns (${msg}); columns are text, so compare numbers with TRY_CAST(col AS DOUBLE)`, e);
+    const msg = (e instanceof Error ? e.message.split('\n')[0] : String(e)).replace(/^(Binder|Parser|Conversion|Catalog) Error: /, '');
+    throw error(`--where "${given}": not a valid DuckDB SQL condition on the columns (${msg}); columns are text, so compare numbers with TRY_CAST(col AS DOUBLE)`, e);
+  }
+  if (type !== 'BOOLEAN' && type !== '"NULL"') {
+    throw error(`--where "${given}": expected a condition that is true or false for each row (e.g. station <> 'S5'), got a value of type ${type}; columns are text: compare them, e.g. col = 'yes'`);
   }
 }
 

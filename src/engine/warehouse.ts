@@ -15,6 +15,8 @@ import { openSource } from './source.js';
 import type { SliceColumn } from './types.js';
 import { readFloorTable, type FloorTable } from '../io/read-floor-table.js';
 import { error } from '../util/error.js';
+import { hasUnsafeChars } from '../util/unsafe-chars.js';
+import { printableWhere, safeWhere } from './where.js';
 
 /** What `floorgap sql` knows beyond the load options. */
 export interface WarehouseOptions {
@@ -50,6 +52,11 @@ export async function planWarehouse(duck: Duck, options: LoadOptions, w: Warehou
     return { kind: 'ready', plan, grouping: planned.grouping, planned };
   }
   const d = dialectOf(w.dialect);
+  // no sample: nothing reads the filter here, it is printed for the warehouse; DuckDB's own SQL is
+  // checked as a local filter is, another engine's by its characters
+  tableRef(w.dialect, w.table);
+  const where = options.where === null ? null : d.name === 'duckdb' ? await safeWhere(duck, options.where) : printableWhere(options.where);
+  options = { ...options, where };
   // no sample: the roles are the flags, or the common names
   const r = options.roles;
   const errorCol = r.error ?? null;
@@ -87,12 +94,12 @@ export async function planWarehouse(duck: Duck, options: LoadOptions, w: Warehou
   const missingEdges = [...w.edges].filter(([, e]) => e.length === 0).map(([c]) => c);
   for (const c of missingEdges) {
     const what = d.name === 'bigquery' ? 'the values between the first and the last' : 'the values';
-    needs.push({ what: `bin edges of "${c}": pass ${what} as --bin-edges ${c}=e1,e2,...`, sql: edgesQuery(d, w.table, c, options.bins, options.where) });
+    needs.push({ what: `bin edges of ${JSON.stringify(c)}: pass ${what} as --bin-edges ${JSON.stringify(`${c}=e1,e2,...`)}`, sql: edgesQuery(d, w.table, c, options.bins, options.where) });
   }
   if (annotators.length > 0 && !w.classes) {
     needs.push({ what: `classes for agreement: pass them as --classes a,b,c`, sql: classesQuery(d, w.table, [roles.label!, ...annotators], options.where) });
   }
-  if (needs.length > 0) return { kind: 'needs', queries: needs };
+  if (needs.length > 0) return { kind: 'needs', queries: needs.map((q) => ({ what: q.what, sql: printable(q.sql, [...names, ...annotators, roles.label ?? '']) })) };
   const columns: SliceColumn[] = names.map((name) => (known.has(name) ? { name, kind: 'binned', edges: [...known.get(name)!] } : { name, kind: 'category' }));
   const plan: CellPlan = {
     roles,
@@ -140,6 +147,52 @@ export function classesQuery(d: Dialect, table: string, columns: readonly string
 }
 
 /**
+ * Checks `--table` as a table name the query can read: dot-separated parts, each a plain name
+ * (letters, digits, `_`, `$`; `-` too for BigQuery's project ids) or a name quoted as the dialect quotes
+ * names (`"…"`, or `` `…` `` for Spark and BigQuery, a doubled quote inside). Anything else — a space, a
+ * `;`, a comment, a parenthesis, a line break — could make the printed text more than one query.
+ * @example
+ * tableRef('trino', 'lake.ml.preds'); // => 'lake.ml.preds'
+ * tableRef('trino', 'preds; DROP TABLE preds'); // throws
+ */
+export function tableRef(dialect: DialectName, table: string): string {
+  const quote = dialect === 'spark' || dialect === 'bigquery' ? '`' : '"';
+  const bare = dialect === 'bigquery' ? /[A-Za-z0-9_$-]/ : /[A-Za-z0-9_$]/;
+  const refuse = (why: string) =>
+    error(`--table ${JSON.stringify(table)}: ${why}; expected a table name such as lake.ml.preds (quote a part as ${quote}my table${quote})`);
+  if (table.trim() === '') throw refuse('empty');
+  if (hasUnsafeChars(table)) throw refuse('holds a line break or control character');
+  let i = 0;
+  let parts = 0;
+  while (i < table.length) {
+    if (table[i] === quote) {
+      let j = i + 1;
+      for (; j < table.length; j++) {
+        if (table[j] === quote) {
+          if (table[j + 1] === quote) j++;
+          else break;
+        }
+      }
+      if (j >= table.length) throw refuse(`a ${quote} is never closed`);
+      if (dialect === 'bigquery' && table.slice(i + 1, j).includes('\\')) throw refuse('a backslash in a quoted name');
+      i = j + 1;
+    } else {
+      const start = i;
+      while (i < table.length && bare.test(table[i])) i++;
+      if (i === start) throw refuse(`${JSON.stringify(table[i])} is not part of a name`);
+    }
+    parts++;
+    if (i < table.length) {
+      if (table[i] !== '.') throw refuse(`${JSON.stringify(table[i])} is not part of a name`);
+      i++;
+      if (i === table.length) throw refuse('it ends with a dot');
+    }
+  }
+  if (parts > 4) throw refuse('more than four dot-separated parts');
+  return table;
+}
+
+/**
  * The cell query for the warehouse, in the cells file format.
  * @example
  * warehouseQuery(plan, { kind: 'cross' }, 'trino', 'lake.preds');
@@ -150,5 +203,18 @@ export function warehouseQuery(plan: CellPlan, grouping: Grouping, dialect: Dial
       throw error(`column "${c.name}" starts with fg_, which cells files keep for statistics; rename it (e.g. with a view) or leave it out with --slice-cols`);
     }
   }
-  return cellQuery(plan, grouping, { dialect: dialectOf(dialect), table, textColumns: false, names: 'cells' });
+  const query = cellQuery(plan, grouping, { dialect: dialectOf(dialect), table: tableRef(dialect, table), textColumns: false, names: 'cells' });
+  const names = [...plan.columns.map((c) => c.name), ...Object.values(plan.roles).filter((v): v is string => typeof v === 'string'), ...(plan.annotators ?? [])];
+  return printable(query, names);
+}
+
+/**
+ * A query to print, checked: literals carry unsafe characters as escapes (see Dialect.str); a quoted
+ * column name keeps a line break or tab as it is (valid inside the quotes, and the name it is); any
+ * other unsafe character can only come from a name, which is refused.
+ */
+function printable(query: string, names: readonly string[]): string {
+  if (!hasUnsafeChars(query.replace(/[\n\r\t]/g, ' '))) return query;
+  const bad = names.find((n) => hasUnsafeChars(n.replace(/[\n\r\t]/g, ' '))) ?? '?';
+  throw error(`column ${JSON.stringify(bad)}: its name holds a control character, which a printed query cannot carry safely; rename it in the warehouse (e.g. with a view) or leave it out with --slice-cols`);
 }

@@ -133,6 +133,8 @@ export interface ExportWrite {
   /** builds the manifest once the rows are written (e.g. from row counts) */
   readonly manifest: () => Promise<unknown> | unknown;
   readonly hooks?: ExportHooks;
+  /** the temporary file the engine writes the rows to (from tempPathFor(path)); chosen here when absent */
+  readonly tempData?: string;
 }
 
 /**
@@ -149,7 +151,7 @@ export interface ExportWrite {
 export async function writeExport(duck: Duck, w: ExportWrite): Promise<{ data: string; manifest: string }> {
   await checkOutput(w.path, w.force);
   const manifestPath = manifestPathFor(w.path);
-  const tmpData = tempPathFor(w.path);
+  const tmpData = w.tempData ?? tempPathFor(w.path);
   const tmpManifest = tempPathFor(manifestPath);
   const cleanup = async () => {
     await fs.rm(tmpData, { force: true });

@@ -4,26 +4,14 @@
  * cursor, clear the screen, write the clipboard (OSC 52) or reorder what the reader sees (bidi overrides).
  */
 
+import { isUnsafeCode } from '../util/unsafe-chars.js';
+
 /** Short escapes for the three whitespace controls; everything else uses `\xNN` or `\uNNNN`. */
 const SHORT_ESCAPES: Readonly<Record<number, string>> = { 0x09: '\\t', 0x0a: '\\n', 0x0d: '\\r' };
 
-/** Bidirectional marks, embeddings, overrides and isolates, plus the Unicode line and paragraph separators. */
-const INVISIBLE_FORMAT = new Set<number>([
-  0x061c, // arabic letter mark
-  0x200e, // left-to-right mark
-  0x200f, // right-to-left mark
-  0x2028, // line separator
-  0x2029, // paragraph separator
-  0x202a, 0x202b, 0x202c, 0x202d, 0x202e, // embeddings and overrides
-  0x2066, 0x2067, 0x2068, 0x2069, // isolates
-]);
-
 function isUnsafe(code: number, keepWhitespace: boolean): boolean {
   if (keepWhitespace && (code === 0x09 || code === 0x0a || code === 0x0d)) return false;
-  if (code < 0x20) return true; // C0 controls, ESC included
-  if (code >= 0x7f && code <= 0x9f) return true; // DEL and C1 controls (CSI, OSC, ST as single code points)
-  if (code >= 0xd800 && code <= 0xdfff) return true; // a lone surrogate (a paired one never reaches here)
-  return INVISIBLE_FORMAT.has(code);
+  return isUnsafeCode(code);
 }
 
 function escapeCode(code: number): string {

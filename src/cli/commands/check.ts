@@ -9,7 +9,7 @@ import { mcnemarTest } from '../../stats/index.js';
 import { checkLimits, checkResult, compareReports, comparePaired, LIMIT_NAMES, type Comparison, type Limits } from '../../triage/check.js';
 import type { Report } from '../../triage/types.js';
 import { error } from '../../util/error.js';
-import { analyzeWith, withDuck } from '../analyze.js';
+import { analysisReads, analyzeWith, withDuck } from '../analyze.js';
 import type { CliIO } from '../io.js';
 import { useColor, writeOut } from '../io.js';
 import { analysisOptions, toLoadOptions, type AnalysisArgs } from '../options.js';
@@ -87,7 +87,9 @@ export async function runCheck(args: CheckArgs, io: CliIO): Promise<number> {
   if (Object.keys(limits).length === 0 && !args.baseline) {
     throw error('check needs at least one limit (--max-bias, --max-variance, --max-mismatch, --max-dev-error) or a --baseline');
   }
-  const result = await withDuck(args, async (duck) => {
+  // the engine may read the baseline only when it is a prediction table (a saved report is read here)
+  const baselineTable = args.baseline && !(await isReport(args.baseline)) ? [args.baseline] : [];
+  const result = await withDuck(args, { read: [...analysisReads(args), ...baselineTable], write: [] }, async (duck) => {
     const { report, loaded } = await analyzeWith(duck, args, io);
     const warnings = [...report.warnings];
     let comparisons: Comparison[] = [];
@@ -107,7 +109,7 @@ export async function runCheck(args: CheckArgs, io: CliIO): Promise<number> {
           throw error(`${args.baseline}: a baseline model's predictions are paired with the rows by id, and --cells gives no rows; compare with a saved JSON report instead`);
         }
         const groupings = report.by ? [[...report.by]] : loaded.overviewColumns.map((c) => [c]);
-        const { sums, warnings: more } = await pairedCounts(duck, loaded, args.baseline, toLoadOptions(args).roles, groupings, args.where ?? null, report.run);
+        const { sums, warnings: more } = await pairedCounts(duck, loaded, args.baseline, toLoadOptions(args).roles, groupings, loaded.plan.where, report.run);
         warnings.push(...more);
         const thinByKey = new Map([report.overall, ...report.slices].map((s) => [JSON.stringify(Object.entries(s.key).sort()), s]));
         const counts = sums

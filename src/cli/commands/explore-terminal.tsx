@@ -1,12 +1,12 @@
 import { existsSync } from 'node:fs';
 import { render } from 'ink';
-import { openDuck, type Duck } from '../../engine/duck.js';
+import type { Duck } from '../../engine/duck.js';
 import { watchProgress, type ScanProgress } from '../../engine/progress.js';
 import { App } from '../../tui/App.js';
 import { explorerData, type Exporter } from '../../tui/session.js';
 import type { SliceReport } from '../../triage/types.js';
 import { FloorgapError } from '../../util/error.js';
-import { analyzeWith } from '../analyze.js';
+import { analysisReads, analyzeWith, openEngine } from '../analyze.js';
 import type { CliIO } from '../io.js';
 import { useColor } from '../io.js';
 import { toTriageOptions } from '../options.js';
@@ -105,7 +105,7 @@ export async function runExplorer(args: ExploreArgs, io: CliIO, argv: readonly s
         ascii={args.ascii}
         progress={() => (latest ? { percent: latest.percentage, rows: latest.rowsProcessed } : null)}
         load={async () => {
-          duck = await openDuck({ threads: args.threads, memoryLimit: args['memory-limit'] });
+          duck = await openEngine(args, { read: analysisReads(args), write: [] });
           if (stopped) throw new Error('stopped'); // quit while the engine was starting: no scan
           const stop = watchProgress(duck, (p) => (latest = p), 200);
           try {

@@ -4,11 +4,12 @@ import { openSource } from '../../engine/source.js';
 import { normalizeSplit } from '../../engine/roles.js';
 import { SPLITS, type Split } from '../../engine/types.js';
 import { exportFormatFor, checkOutput, fingerprint, manifestPathFor, writeExport, type ExportHooks } from '../../io/export-rows.js';
+import { tempPathFor } from '../../io/write-atomic.js';
 import { sanitize } from '../../render/index.js';
 import { namedGrouping, parseSliceKey, selectSlices, type ChosenSlice, type NamedSlice, type Selection } from '../../triage/select-slices.js';
 import { VERSION } from '../../version.js';
 import { error } from '../../util/error.js';
-import { analyzeWith, withDuck } from '../analyze.js';
+import { analysisReads, analyzeWith, withDuck } from '../analyze.js';
 import type { CliIO } from '../io.js';
 import { writeOut } from '../io.js';
 import { analysisOptions, toLoadOptions, toTriageOptions, type AnalysisArgs } from '../options.js';
@@ -115,8 +116,10 @@ export async function runExport(args: ExportArgs, io: CliIO, argv: readonly stri
   toTriageOptions(analysisArgs); // bad options fail before the engine starts
   const loadOptions = toLoadOptions(analysisArgs);
   await checkOutput(out, args.force);
+  // the engine writes the rows to this temporary file beside the destination, and nowhere else
+  const tempData = tempPathFor(out);
 
-  return withDuck(analysisArgs, async (duck) => {
+  return withDuck(analysisArgs, { read: analysisReads(analysisArgs), write: [tempData] }, async (duck) => {
     const source = await openSource(duck, loadOptions.source);
     if (source.columns.includes('fg_rows') && source.columns.includes('fg_errors')) {
       throw error(`${source.where}: holds ready-made cells (fg_rows, fg_errors, …); export writes rows, so give the prediction table itself`);
@@ -142,7 +145,7 @@ export async function runExport(args: ExportArgs, io: CliIO, argv: readonly stri
     const chosen = selectSlices(report, resolved);
     const query: ExportQuery = {
       columns: loaded.source.columns,
-      plan: { roles: loaded.roles, splitColumn: loaded.roles.split ?? loaded.source.splitColumn!, where: loadOptions.where, annotators: loaded.annotators },
+      plan: { roles: loaded.roles, splitColumn: loaded.roles.split ?? loaded.source.splitColumn!, where: loaded.plan.where, annotators: loaded.annotators },
       sliceColumns: loaded.columns,
       slices: chosen.map((c) => ({ key: c.slice.key, label: c.slice.label, focus: c.slice.focus, rank: c.slice.rank, reason: c.reason })),
       splits,
@@ -188,7 +191,7 @@ export async function runExport(args: ExportArgs, io: CliIO, argv: readonly stri
         ...tables,
       };
     };
-    const written = await writeExport(duck, { path: out, format, sql: exportSql(query), force: args.force, manifest, hooks });
+    const written = await writeExport(duck, { path: out, format, sql: exportSql(query), force: args.force, manifest, hooks, tempData });
     if (chosen.length === 0) {
       const why = selection.kind === 'flagged' ? 'no slice is flagged' : 'the report has no slices';
       io.stderr.write(`floorgap: ${why}, so no rows were written; choose slices with --top N or --slice KEY\n`);

@@ -7,12 +7,13 @@ import { round3 } from '../../engine/profile.js';
 import { ROWS_VIEW } from '../../engine/source.js';
 import { literal } from '../../engine/sql.js';
 import { planWarehouse, warehouseQuery } from '../../engine/warehouse.js';
+import { printableWhere } from '../../engine/where.js';
 import { exportFormatFor } from '../../io/export-rows.js';
 import { tempPathFor, writeError } from '../../io/write-atomic.js';
 import { sanitize } from '../../render/index.js';
 import { VERSION } from '../../version.js';
 import { error } from '../../util/error.js';
-import { withDuck } from '../analyze.js';
+import { analysisReads, withDuck } from '../analyze.js';
 import type { CliIO } from '../io.js';
 import { writeOut } from '../io.js';
 import { list, toLoadOptions, type AnalysisArgs } from '../options.js';
@@ -96,6 +97,15 @@ function copyFormat(path: string): string {
 }
 
 /**
+ * Text for a `--` comment line: every character that could end the line or drive a terminal escaped.
+ * @example
+ * comment('x\nDROP TABLE t'); // => 'x\\nDROP TABLE t'
+ */
+export function comment(text: string): string {
+  return sanitize(text);
+}
+
+/**
  * `floorgap sql`: prints the GROUP BY that computes the cells in the user's own SQL engine (or, with
  * --out, runs it here over the files and writes the cells).
  */
@@ -113,11 +123,13 @@ export async function runSql(args: SqlArgs, io: CliIO): Promise<number> {
     const dir = dirname(out);
     if (!(await fs.stat(dir).then((s) => s.isDirectory(), () => false))) throw error(`${out}: folder ${dir} does not exist`);
   }
-  return withDuck(args, async (duck) => {
+  // the engine writes the cells to this temporary file beside --out, and nowhere else
+  const tmp = out === null ? null : tempPathFor(out);
+  return withDuck(args, { read: analysisReads(args), write: tmp ? [tmp] : [] }, async (duck) => {
     const planned = await planWarehouse(duck, loadOptions, { dialect: args.dialect, table: args.table ?? ROWS_VIEW, edges, classes, grouping: args.grouping });
     if (planned.kind === 'needs') {
-      const text = planned.queries.map((q) => `-- ${q.what}\n${q.sql};\n`).join('\n');
-      await writeOut(io, sanitize(text, { keepWhitespace: true }));
+      const text = planned.queries.map((q) => `-- ${comment(q.what)}\n${q.sql};\n`).join('\n');
+      await writeOut(io, text);
       io.stderr.write(`floorgap: run the ${planned.queries.length === 1 ? 'query' : 'queries'} above on the table, then run floorgap sql again with what ${planned.queries.length === 1 ? 'it gives' : 'they give'}\n`);
       return 0;
     }
@@ -127,33 +139,39 @@ export async function runSql(args: SqlArgs, io: CliIO): Promise<number> {
         if (c.name.startsWith('fg_')) throw error(`column "${c.name}" starts with fg_, which cells files keep for statistics; rename it or leave it out with --slice-cols`);
       }
       const query = cellQuery(plan, grouping, { table: ROWS_VIEW, textColumns: true, names: 'cells' });
-      const tmp = tempPathFor(out);
       const bytes = planned.planned?.source.inputs.reduce((a, i) => a + i.bytes, 0) ?? 0;
       const stop = scanProgress(io, args.progress ?? 'auto')?.(duck, { where: planned.planned?.source.where ?? '', bytes }) ?? (() => undefined);
+      let written = 0;
       try {
-        await duck.run(`COPY (${query}) TO ${literal(tmp)} (${copyFormat(out)})`);
-        await fs.rename(tmp, out);
+        // COPY answers with the number of rows it wrote: no second scan to count the cells
+        const [result] = await duck.all(`COPY (${query}) TO ${literal(tmp!)} (${copyFormat(out)})`);
+        written = Number(result?.Count ?? 0);
+        await fs.rename(tmp!, out);
       } catch (e) {
-        await fs.rm(tmp, { force: true });
+        await fs.rm(tmp!, { force: true });
         if (e instanceof Error && e.name === 'FloorgapError') throw e;
         throw writeError(out, e, 'the cells');
       } finally {
         stop();
       }
-      const [{ n }] = await duck.all(`SELECT count(*) AS n FROM (${query})`).catch(() => [{ n: null }]);
-      await writeOut(io, `wrote ${n ?? 'the'} cells to ${sanitize(out)}; next: floorgap report --cells ${sanitize(out)}\n`);
+      await writeOut(io, `wrote ${written} cells to ${sanitize(out)}; next: floorgap report --cells ${sanitize(out)}\n`);
       return 0;
     }
-    const query = warehouseQuery(plan, grouping, args.dialect, String(args.table));
+    // a sample file's filter ran here in DuckDB's words; another engine gets the condition as written,
+    // checked by its characters (printableWhere)
+    const printedPlan = args.dialect === 'duckdb' || args.where === undefined ? plan : { ...plan, where: printableWhere(String(args.where)) };
+    const query = warehouseQuery(printedPlan, grouping, args.dialect, String(args.table));
+    const q = comment;
     const head = [
-      `-- floorgap ${VERSION}: the cells of ${args.table} (${args.dialect} SQL)`,
-      `-- slice columns: ${plan.columns.map((c) => (c.kind === 'binned' && c.edges?.length ? `${c.name} (bins at ${c.edges.join(', ')})` : c.name)).join(', ')}`,
-      `-- grouping: ${grouping.kind === 'cross' ? 'full cross' : `${grouping.sets.length} grouping sets`}; split column ${plan.splitColumn}; ${plan.roles.error ? `error column ${plan.roles.error}` : `label ${plan.roles.label}, pred ${plan.roles.pred}`}`,
+      `-- floorgap ${VERSION}: the cells of ${comment(String(args.table))} (${args.dialect} SQL)`,
+      `-- slice columns: ${plan.columns.map((c) => (c.kind === 'binned' && c.edges?.length ? `${q(c.name)} (bins at ${c.edges.join(', ')})` : q(c.name))).join(', ')}`,
+      `-- grouping: ${grouping.kind === 'cross' ? 'full cross' : `${grouping.sets.length} grouping sets`}; split column ${q(plan.splitColumn)}; ${plan.roles.error ? `error column ${q(plan.roles.error)}` : `label ${q(plan.roles.label ?? '')}, pred ${q(plan.roles.pred ?? '')}`}`,
       `-- floors: ${plan.floorEntries.length ? `${plan.floorEntries.length} floor-table entries (inlined), ` : ''}default ${plan.defaultFloor}`,
       `-- save the result as CSV, Parquet or JSON Lines, then: floorgap report --cells FILE`,
     ];
-    // strings from the data and the options are quoted SQL; sanitize keeps them off the terminal's controls
-    await writeOut(io, sanitize(`${head.join('\n')}\n${query};\n`, { keepWhitespace: true }));
+    // names and values are escaped for their place (comments: no line break; literals: the dialect's
+    // escapes), so the text is one statement and holds no character a terminal would act on
+    await writeOut(io, `${head.join('\n')}\n${query};\n`);
     return 0;
   });
 }
