@@ -1,6 +1,7 @@
 import yargs from 'yargs';
 import { FloorgapError } from '../util/error.js';
 import { readConfig } from '../io/config.js';
+import { checkBounds, type ShowOption } from './bounds.js';
 import { sanitize } from '../render/index.js';
 import { VERSION } from '../version.js';
 import { checkOptions, runCheck, type CheckArgs } from './commands/check.js';
@@ -21,6 +22,22 @@ function configPath(argv: readonly string[]): string | null {
     if (a.startsWith('--config=')) return a.slice('--config='.length);
   }
   return null;
+}
+
+/**
+ * Names an option in a message as the user wrote it: the command line's own text (`--bins 1e308`, not
+ * the parsed 1e+308 or NaN), else the project file's entry.
+ */
+function showOption(config: Record<string, unknown>, argv: readonly string[]): ShowOption {
+  return (name, value) => {
+    for (let i = argv.length - 1; i >= 0; i--) {
+      const a = argv[i];
+      if (a === `--${name}` && i + 1 < argv.length) return `--${name} ${argv[i + 1]}`;
+      if (a.startsWith(`--${name}=`)) return `--${name} ${a.slice(name.length + 3)}`;
+    }
+    if (name in config) return `the project file's "${name}": ${JSON.stringify(config[name])}`;
+    return `--${name} ${String(value)}`;
+  };
 }
 
 /**
@@ -55,6 +72,8 @@ export async function main(argv: readonly string[], io: CliIO): Promise<number> 
         if (err) throw err;
         throw new FloorgapError(`${msg}; see floorgap --help`, EXIT.usage);
       })
+      // every numeric option within its bounds before any command starts work, flags and project file alike
+      .middleware((args) => checkBounds(args as Record<string, unknown>, showOption(config, argv)))
       .command(
         'report [files..]',
         'rank data slices by the error they could give back, against human-level floors',

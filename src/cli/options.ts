@@ -105,25 +105,8 @@ export function list(value: string | undefined | string[]): string[] | null {
   return items.length ? items : null;
 }
 
-function checkFraction(name: string, v: number | undefined, { open = false } = {}): void {
-  if (v === undefined) return;
-  if (!Number.isFinite(v) || v < 0 || v > 1 || (open && (v === 0 || v === 1))) {
-    throw error(`--${name} ${v}: expected a fraction ${open ? 'strictly between 0 and 1' : 'in [0, 1]'} (e.g. 0.02 for 2 %)`);
-  }
-}
-
-function checkPositive(name: string, v: number, integer = false): void {
-  if (!Number.isFinite(v) || v <= 0 || (integer && !Number.isInteger(v))) {
-    throw error(`--${name} ${v}: expected a ${integer ? 'whole number' : 'number'} > 0`);
-  }
-}
-
-/** Validates and converts parsed flags to engine and triage options. */
+/** Converts parsed flags to engine options (their bounds are checked before any command runs: cli/bounds.ts). */
 export function toLoadOptions(a: AnalysisArgs): LoadOptions {
-  checkFraction('floor', a.floor);
-  checkPositive('bins', a.bins, true);
-  checkPositive('max-cells', a['max-cells'], true);
-  if (a['max-slices'] !== undefined) checkPositive('max-slices', a['max-slices'], true);
   const roles: RoleOptions = {};
   for (const r of ['label', 'pred', 'error', 'split', 'id', 'score', 'weight'] as const) if (a[r] !== undefined) roles[r] = String(a[r]);
   if (a['run-column'] !== undefined) roles.run = String(a['run-column']);
@@ -146,15 +129,8 @@ export function toLoadOptions(a: AnalysisArgs): LoadOptions {
   };
 }
 
+/** Converts parsed flags to triage options. */
 export function toTriageOptions(a: AnalysisArgs): TriageOptions {
-  checkFraction('confidence', a.confidence, { open: true });
-  checkFraction('fdr', a.fdr, { open: true });
-  checkPositive('min-rows', a['min-rows'], true);
-  checkFraction('floor-margin', a['floor-margin']);
-  checkFraction('min-headroom', a['min-headroom']);
-  checkPositive('curve-exponent', a['curve-exponent']);
-  checkPositive('label-cost', a['label-cost']);
-  checkPositive('threads', a.threads, true);
   return {
     confidence: a.confidence,
     fdr: a.fdr,

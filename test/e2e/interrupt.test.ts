@@ -6,7 +6,7 @@
  */
 import { spawn, type ChildProcessByStdio } from 'node:child_process';
 import { existsSync, mkdirSync, mkdtempSync, readdirSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
-import { tmpdir } from 'node:os';
+import { cpus, tmpdir } from 'node:os';
 import { join } from 'node:path';
 import type { Readable } from 'node:stream';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
@@ -83,6 +83,17 @@ describe('a signal during the scan', () => {
     r.child.kill('SIGTERM');
     expect(await r.done).toEqual({ code: 143, signal: null });
     expect(r.err().trimEnd().split('\n').at(-1)).toBe('floorgap: stopped by SIGTERM');
+  }, 30_000);
+
+  it('a signal ends the process within 2 s, with the most threads and bins the options allow', async () => {
+    // the bounds (src/cli/bounds.ts) keep the work a signal must stop finite: 4 × cores threads, 1,000 bins
+    const r = run(['report', table, '--threads', String(4 * cpus().length), '--bins', '1000', '--slice-cols', 'sharpness,station', '--progress', 'always', '--no-cache']);
+    await until(() => r.err().includes('reading'), 'the scan to start');
+    await sleep(200);
+    const t0 = Date.now();
+    r.child.kill('SIGTERM');
+    expect(await r.done).toEqual({ code: 143, signal: null });
+    expect(Date.now() - t0).toBeLessThan(2000);
   }, 30_000);
 });
 

@@ -72,7 +72,6 @@ function limitsOf(args: CheckArgs): Limits {
   for (const name of LIMIT_NAMES) {
     const v = args[name];
     if (v === undefined) continue;
-    if (!Number.isFinite(v) || v < -1 || v > 1) throw error(`--${name} ${v}: expected a fraction (e.g. 0.05 for 5 points)`);
     limits[name] = v;
   }
   return limits;

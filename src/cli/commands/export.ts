@@ -41,12 +41,6 @@ export function exportOptions<T>(y: Argv<T>) {
     .option('force', { type: 'boolean', default: false, describe: 'overwrite an existing file and manifest', group: 'Export:' });
 }
 
-function wholePositive(name: string, v: number | undefined): number | null {
-  if (v === undefined) return null;
-  if (!Number.isInteger(v) || v <= 0) throw error(`--${name} ${v}: expected a whole number > 0`);
-  return v;
-}
-
 /**
  * Parses `--splits`: canonical names or accepted spellings, comma-separated, returned in split order.
  * @param text e.g. `dev,train`
@@ -74,7 +68,7 @@ function asList(v: string | string[] | undefined): string[] {
 /** The selection the flags ask for, and the `--by` the analysis must use for it. */
 function selectionOf(args: ExportArgs): { selection: Selection; by: string | undefined; named: NamedSlice[] } {
   const named = asList(args.slice).map(parseSliceKey);
-  const top = wholePositive('top', args.top);
+  const top = args.top ?? null;
   if (named.length > 0 && top !== null) throw error('--top and --slice choose slices in two ways; give one of them');
   if (named.length === 0) return { selection: top === null ? { kind: 'flagged' } : { kind: 'top', n: top }, by: args.by, named };
   const grouping = namedGrouping(named);
@@ -110,7 +104,7 @@ export async function runExport(args: ExportArgs, io: CliIO, argv: readonly stri
   if (out.trim() === '') throw error('--out: expected a file name, e.g. --out rows.csv');
   const format = exportFormatFor(out);
   const splits = parseSplits(args.splits);
-  const limit = wholePositive('limit-per-slice', args['limit-per-slice']);
+  const limit = args['limit-per-slice'] ?? null;
   const { selection, by, named } = selectionOf(args);
   const analysisArgs: AnalysisArgs = { ...args, by };
   toTriageOptions(analysisArgs); // bad options fail before the engine starts

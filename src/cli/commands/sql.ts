@@ -114,7 +114,6 @@ export async function runSql(args: SqlArgs, io: CliIO): Promise<number> {
   const hasFiles = (args.files ?? []).length > 0 || [args.train, args['train-dev'], args.dev, args.test].some((f) => f !== undefined);
   if (out === null && !args.table) throw error('floorgap sql needs --table NAME (the warehouse table the query reads), or --out F to run it here over the files');
   if (out !== null && !hasFiles) throw error('--out runs the query here, over prediction tables; give the files (e.g. floorgap sql preds.csv --out cells.parquet)');
-  if (args.bins !== undefined && (!Number.isInteger(args.bins) || args.bins < 2)) throw error(`--bins ${args.bins}: expected a whole number >= 2`);
   const edges = parseBinEdges(args['bin-edges']);
   const classes = list(args.classes);
   const loadOptions = toLoadOptions({ ...args, 'max-cells': args['max-cells'] ?? 200_000 });
