@@ -1,7 +1,7 @@
 import { open, readFile } from 'node:fs/promises';
 import type { Argv } from 'yargs';
 import { pairedCounts } from '../../engine/paired.js';
-import { writeAtomic } from '../../io/write-atomic.js';
+import { checkDestination, writeAtomic } from '../../io/write-atomic.js';
 import { renderCheckText } from '../../render/check-text.js';
 import { renderJunit } from '../../render/junit.js';
 import { renderJson } from '../../render/json.js';
@@ -87,6 +87,8 @@ export async function runCheck(args: CheckArgs, io: CliIO): Promise<number> {
   if (Object.keys(limits).length === 0 && !args.baseline) {
     throw error('check needs at least one limit (--max-bias, --max-variance, --max-mismatch, --max-dev-error) or a --baseline');
   }
+  // a JUnit report replaces its own regular file without --force, as test runners' reports do; never anything else
+  if (args.junit) await checkDestination(args.junit, { overwrite: true, folderHint: `--junit needs a file name, e.g. ${args.junit.replace(/\/+$/, '')}/slices.xml` });
   const result = await withDuck(args, async (duck) => {
     const { report, loaded } = await analyzeWith(duck, args, io);
     const warnings = [...report.warnings];

@@ -1,5 +1,4 @@
 import { promises as fs } from 'node:fs';
-import { dirname } from 'node:path';
 import type { Argv } from 'yargs';
 import { cellQuery } from '../../engine/cell-query.js';
 import { DIALECTS, type DialectName } from '../../engine/dialect.js';
@@ -8,7 +7,7 @@ import { ROWS_VIEW } from '../../engine/source.js';
 import { literal } from '../../engine/sql.js';
 import { planWarehouse, warehouseQuery } from '../../engine/warehouse.js';
 import { exportFormatFor } from '../../io/export-rows.js';
-import { tempPathFor, writeError } from '../../io/write-atomic.js';
+import { checkDestination, moveInto, tempPathFor, writeError } from '../../io/write-atomic.js';
 import { sanitize } from '../../render/index.js';
 import { VERSION } from '../../version.js';
 import { error } from '../../util/error.js';
@@ -109,9 +108,7 @@ export async function runSql(args: SqlArgs, io: CliIO): Promise<number> {
   const classes = list(args.classes);
   const loadOptions = toLoadOptions({ ...args, 'max-cells': args['max-cells'] ?? 200_000 });
   if (out !== null) {
-    if (!args.force && (await fs.lstat(out).then(() => true, () => false))) throw error(`${out}: file exists; pass --force to overwrite it`);
-    const dir = dirname(out);
-    if (!(await fs.stat(dir).then((s) => s.isDirectory(), () => false))) throw error(`${out}: folder ${dir} does not exist`);
+    await checkDestination(out, { overwrite: args.force, folderHint: `--out needs a file name, e.g. ${out.replace(/\/+$/, '')}/cells.parquet` });
   }
   return withDuck(args, async (duck) => {
     const planned = await planWarehouse(duck, loadOptions, { dialect: args.dialect, table: args.table ?? ROWS_VIEW, edges, classes, grouping: args.grouping });
@@ -132,7 +129,7 @@ export async function runSql(args: SqlArgs, io: CliIO): Promise<number> {
       const stop = scanProgress(io, args.progress ?? 'auto')?.(duck, { where: planned.planned?.source.where ?? '', bytes }) ?? (() => undefined);
       try {
         await duck.run(`COPY (${query}) TO ${literal(tmp)} (${copyFormat(out)})`);
-        await fs.rename(tmp, out);
+        await moveInto(tmp, await checkDestination(out, { overwrite: args.force }));
       } catch (e) {
         await fs.rm(tmp, { force: true });
         if (e instanceof Error && e.name === 'FloorgapError') throw e;
