@@ -11,6 +11,7 @@ import { join } from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import type { CheckResult } from '../../src/triage/check.js';
 import type { Report } from '../../src/triage/types.js';
+import { openDuck } from '../../src/engine/duck.js';
 import { runCli } from '../helpers/run-cli.js';
 
 const BAD = join('test', 'fixtures', 'bad');
@@ -201,6 +202,24 @@ describe.concurrent('awkward but valid files: the right report', () => {
       ['station=S4', 0, 0, 0],
     ]);
     expect(b.warnings).toContain(`3 dev rows have an empty label or prediction in ${f('paired-empty-pred.csv')}; they are left out of the paired test`);
+  });
+
+  it('the CSV report quotes TAB, CR, commas and quotes: DuckDB reads back the exact slice labels', async () => {
+    const r = await runCli([f('whitespace-values.csv'), '--slice-cols', 'station', '--format', 'csv', '--no-cache']);
+    expect(r.code, r.stderr).toBe(0);
+    expect(r.stdout).toContain('"station=S1\r X"');
+    expect(r.stdout).toContain('"station=S2\tY"');
+    const dir = mkdtempSync(join(tmpdir(), 'floorgap-csv-back-'));
+    const duck = await openDuck({ threads: 1 });
+    try {
+      writeFileSync(join(dir, 'report.csv'), r.stdout);
+      const rows = await duck.all(`SELECT label FROM read_csv('${join(dir, 'report.csv')}', header = true, all_varchar = true, delim = ',', quote = '"', escape = '"', new_line = '\\r\\n') ORDER BY label`);
+      // make.mjs: the four station values, as written inside the quotes
+      expect(rows.map((x) => x.label)).toEqual(['overall', 'station=S1\r X', 'station=S2\tY', 'station=S3, left', 'station=S4 "q"']);
+    } finally {
+      duck.close();
+      rmSync(dir, { recursive: true, force: true });
+    }
   });
 
   it('floor-table keys that match no row: a warning per line, the report still made', async () => {
