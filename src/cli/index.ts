@@ -1,4 +1,4 @@
-import yargs from 'yargs';
+import yargs, { type Argv } from 'yargs';
 import { FloorgapError } from '../util/error.js';
 import { readConfig } from '../io/config.js';
 import { checkBounds, type ShowOption } from './bounds.js';
@@ -41,6 +41,16 @@ function showOption(config: Record<string, unknown>, argv: readonly string[]): S
 }
 
 /**
+ * The project file's values for the options this command defines: a check limit in floorgap.json is
+ * no unknown option to `report`, and the demo takes none. (Reads yargs' list of defined options; if
+ * that changes, every value is passed and strict mode judges them.)
+ */
+function projectDefaults<T>(y: Argv<T>, values: Record<string, unknown>): Argv<T> {
+  const defined = (y as unknown as { getOptions?: () => { key?: Record<string, unknown> } }).getOptions?.().key;
+  return y.config(defined ? Object.fromEntries(Object.entries(values).filter(([k]) => k in defined)) : values);
+}
+
+/**
  * yargs lays out the whole help text before it runs a command's handler, in case the handler asks for
  * it: about 45 ms of every start. floorgap's handlers never ask (`--help` lays it out itself), so the
  * step is skipped. It reaches into yargs' internals; if they change, nothing is skipped.
@@ -63,7 +73,6 @@ export async function main(argv: readonly string[], io: CliIO): Promise<number> 
     const parser = yargs([...argv])
       .scriptName('floorgap')
       .version(VERSION)
-      .config(config)
       .env(false)
       .strict()
       .wrap(Math.min(100, (io.stdout.columns as number | undefined) ?? 100))
@@ -77,7 +86,7 @@ export async function main(argv: readonly string[], io: CliIO): Promise<number> 
       .command(
         'report [files..]',
         'rank data slices by the error they could give back, against human-level floors',
-        (y) => reportOptions(y),
+        (y) => projectDefaults(reportOptions(y), config),
         async (args) => {
           code = await runReport(args as unknown as ReportArgs, io);
         },
@@ -85,7 +94,7 @@ export async function main(argv: readonly string[], io: CliIO): Promise<number> 
       .command(
         ['explore [files..]', '$0 [files..]'],
         'the interactive slice explorer (prints the report when not on a terminal)',
-        (y) => exploreOptions(y),
+        (y) => projectDefaults(exploreOptions(y), config),
         async (args) => {
           code = await runExplore(args as unknown as ExploreArgs, io, argv);
         },
@@ -93,7 +102,7 @@ export async function main(argv: readonly string[], io: CliIO): Promise<number> 
       .command(
         'check [files..]',
         'exit 1 when a slice breaks a limit or got worse than a baseline (for pipelines)',
-        (y) => checkOptions(y),
+        (y) => projectDefaults(checkOptions(y), config),
         async (args) => {
           code = await runCheck(args as unknown as CheckArgs, io);
         },
@@ -101,7 +110,7 @@ export async function main(argv: readonly string[], io: CliIO): Promise<number> 
       .command(
         'export [files..]',
         'write the rows behind the chosen slices (flagged by default) to CSV, JSON Lines or Parquet',
-        (y) => exportOptions(y),
+        (y) => projectDefaults(exportOptions(y), config),
         async (args) => {
           code = await runExport(args as unknown as ExportArgs, io, argv);
         },
@@ -109,7 +118,7 @@ export async function main(argv: readonly string[], io: CliIO): Promise<number> 
       .command(
         'sql [files..]',
         'print the GROUP BY that computes the cells in your own SQL engine (or run it here with --out)',
-        (y) => sqlOptions(y),
+        (y) => projectDefaults(sqlOptions(y), config),
         async (args) => {
           code = await runSql(args as unknown as SqlArgs, io);
         },
@@ -117,7 +126,7 @@ export async function main(argv: readonly string[], io: CliIO): Promise<number> 
       .command(
         'demo',
         'write the seeded solder-joint demo table and its inspector floor table',
-        (y) => demoOptions(y),
+        (y) => projectDefaults(demoOptions(y), config),
         async (args) => {
           code = await runDemo(args as unknown as DemoArgs, io);
         },

@@ -1,6 +1,6 @@
 import { promises as fs } from 'node:fs';
 import { join } from 'node:path';
-import { writeAtomic, writeReason } from '../io/write-atomic.js';
+import { checkDestination, writeAtomic, writeReason } from '../io/write-atomic.js';
 import { error } from '../util/error.js';
 import { checkDemoOptions, demoFloorCsvLines, demoRowsToCsvLines, generateDemoRows, type DemoOptions } from './generate.js';
 
@@ -15,7 +15,8 @@ const CHUNK_CHARS = 64 * 1024;
  * Writes the demo prediction table `DIR/solder-joints.csv` and the inspector floor table
  * `DIR/inspector-floors.csv`, each atomically. Rows are streamed in ~64 KB chunks, so memory stays
  * flat for any row count. A missing `dir` is created. Without `overwrite`, an existing file of
- * either name stops it before anything is written.
+ * either name stops it before anything is written; with it, only regular files are replaced (see
+ * checkDestination).
  *
  * `rows` is the size of the run-independent dataset (every example once, see {@link DemoOptions.rows});
  * with `runs = R ≥ 2` the table holds R training runs of it (train rows halving towards run 1, the
@@ -44,12 +45,8 @@ export async function writeDemo(
   } catch (e) {
     throw error(`${dir}: cannot create the folder: ${writeReason(e)}`, e);
   }
-  if (!overwrite) {
-    for (const path of [table, floors]) {
-      const exists = await fs.stat(path).then(() => true, () => false);
-      if (exists) throw error(`${path}: file exists; pass --force to overwrite it`);
-    }
-  }
+  // both paths before anything is written: only absent or (with overwrite) regular files
+  for (const path of [table, floors]) await checkDestination(path, { overwrite });
 
   let written = 0;
   await writeAtomic(

@@ -21,6 +21,15 @@ export interface PairedSums {
 const DEV_SPELLINGS = ['dev', 'val', 'valid', 'validation'];
 
 /**
+ * Fails when an id appears more than once among the dev rows of one side (`from`: a relation with an
+ * `fg_id` column, ids not null): rows can pair only one to one. Names the smallest such id.
+ */
+async function uniqueIds(duck: Duck, from: string, file: string): Promise<void> {
+  const dup = await duck.all(`SELECT fg_id, count(*) AS n FROM ${from} GROUP BY fg_id HAVING count(*) > 1 ORDER BY fg_id LIMIT 1`);
+  if (dup.length > 0) throw error(`${file}: id ${JSON.stringify(String(dup[0].fg_id))} appears ${dup[0].n} times among the dev rows; ids must be unique to pair rows`);
+}
+
+/**
  * Pairs the current dev rows with the baseline model's rows of the same id and counts, per slice of
  * each grouping (and overall), the pairs the baseline got right and the current model wrong (worse)
  * and the reverse (better). One scan of each table; unweighted (McNemar's test counts pairs).
@@ -46,14 +55,14 @@ export async function pairedCounts(
     throw error(`${baselinePath}: no id column "${baseId}" to pair rows by; the columns are ${baseCols.map((c) => JSON.stringify(c)).join(', ')}`);
   }
   const splitCol = baseCols.includes(loaded.roles.split ?? '') ? loaded.roles.split : baseCols.find((c) => c.toLowerCase() === 'split') ?? null;
-  const baseError = errorSql(baseRoles).error;
+  // a row the report leaves out (an empty label or prediction, or an empty error value) pairs with nothing
+  const base = errorSql(baseRoles);
   const baseDev = splitCol ? `lower(${textSql(splitCol)}) IN (${DEV_SPELLINGS.map(literal).join(', ')})` : 'TRUE';
   try {
     await duck.run(
-      `CREATE OR REPLACE TEMP VIEW fg_base AS SELECT ${textSql(baseId)} AS fg_id, ${baseError} AS fg_eb FROM ${expr} WHERE ${baseDev} AND ${textSql(baseId)} IS NOT NULL`,
+      `CREATE OR REPLACE TEMP VIEW fg_base AS SELECT ${textSql(baseId)} AS fg_id, CASE WHEN ${base.unlabelled} THEN NULL ELSE ${base.error} END AS fg_eb, 1 AS fg_in FROM ${expr} WHERE ${baseDev} AND ${textSql(baseId)} IS NOT NULL`,
     );
-    const dup = await duck.all(`SELECT fg_id, count(*) AS n FROM fg_base GROUP BY fg_id HAVING count(*) > 1 LIMIT 1`);
-    if (dup.length > 0) throw error(`${baselinePath}: id "${String(dup[0].fg_id)}" appears ${dup[0].n} times among the dev rows; ids must be unique to pair rows`);
+    await uniqueIds(duck, 'fg_base', baselinePath);
   } catch (e) {
     if (e instanceof Error && e.name === 'FloorgapError') throw e;
     throw readError(baselinePath, e);
@@ -66,13 +75,15 @@ export async function pairedCounts(
   });
   const splitExpr = `lower(${textSql(loaded.roles.split ?? '__fg_split')})`;
   const runFilter = run !== null && loaded.roles.run ? ` AND ${textSql(loaded.roles.run)} = ${literal(run)}` : '';
-  const nowError = errorSql(loaded.roles).error;
+  const now = errorSql(loaded.roles);
   const keys = columns.map((c, i) => `${keySql(c)} AS k${i}`);
-  const current = `SELECT ${textSql(idCol)} AS fg_id, ${nowError} AS fg_en${keys.length ? ', ' + keys.join(', ') : ''} FROM ${ROWS_VIEW} WHERE ${whereSql(where)} AND ${splitExpr} IN (${DEV_SPELLINGS.map(literal).join(', ')})${runFilter}`;
+  const devRows = `${ROWS_VIEW} WHERE ${whereSql(where)} AND ${splitExpr} IN (${DEV_SPELLINGS.map(literal).join(', ')})${runFilter}`;
+  await uniqueIds(duck, `(SELECT ${textSql(idCol)} AS fg_id FROM ${devRows}) cur WHERE fg_id IS NOT NULL`, loaded.source.where);
+  const current = `SELECT ${textSql(idCol)} AS fg_id, ${now.error} AS fg_en${keys.length ? ', ' + keys.join(', ') : ''} FROM ${devRows} AND NOT ${now.unlabelled}`;
   const sets = ['()', ...groupings.map((g) => `(${g.map((name) => `k${columns.findIndex((c) => c.name === name)}`).join(', ')})`)];
   const kNames = columns.map((_, i) => `k${i}`);
   const rows = await duck.all(`SELECT ${kNames.length ? kNames.join(', ') + ', ' : ''}
-      count(fg_eb) AS pairs, count(*) AS rows,
+      count(fg_eb) AS pairs, count(*) AS rows, count(fg_in) AS matched,
       coalesce(sum(fg_eb), 0) AS eb, coalesce(sum(CASE WHEN fg_eb IS NULL THEN NULL ELSE fg_en END), 0) AS en,
       coalesce(sum(CASE WHEN fg_eb = 0 AND fg_en = 1 THEN 1 ELSE 0 END), 0) AS worse,
       coalesce(sum(CASE WHEN fg_eb = 1 AND fg_en = 0 THEN 1 ELSE 0 END), 0) AS better
@@ -89,8 +100,10 @@ export async function pairedCounts(
   const overall = rows.find((r) => columns.every((_, i) => r[`k${i}`] === null || r[`k${i}`] === undefined));
   const warnings: string[] = [];
   if (overall) {
-    const unmatched = Number(overall.rows) - Number(overall.pairs);
+    const unmatched = Number(overall.rows) - Number(overall.matched);
+    const unlabelled = Number(overall.matched) - Number(overall.pairs);
     if (unmatched > 0) warnings.push(`${unmatched} dev rows have no row with the same id in ${baselinePath}; they are left out of the paired test`);
+    if (unlabelled > 0) warnings.push(`${unlabelled} dev rows have an empty label or prediction in ${baselinePath}; they are left out of the paired test`);
     if (Number(overall.pairs) === 0) throw error(`${baselinePath}: no dev row shares an id with ${loaded.source.where}; a paired baseline must hold the same examples`);
   }
   return { sums, warnings };

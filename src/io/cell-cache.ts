@@ -18,6 +18,7 @@ import { fileURLToPath } from 'node:url';
 import type { AuditColumns, CellTable } from '../engine/cell-table.js';
 import type { LoadOptions, Loaded } from '../engine/load.js';
 import { releaseTemp, trackTemp } from './temp-files.js';
+import { checkDestination, moveInto } from './write-atomic.js';
 
 const MAGIC = 'FGCELLS2\n';
 /** SHA-256 of everything after it, right after the magic: a damaged or cut entry is never trusted. */
@@ -250,6 +251,8 @@ export async function readCache(dir: string, key: string): Promise<Omit<Loaded, 
   const path = join(dir, `${key}.fgcells`);
   let buf: Buffer;
   try {
+    // only a regular file is an entry (reading a named pipe would wait for a writer forever)
+    if (!(await fs.lstat(path)).isFile()) return null;
     buf = await fs.readFile(path);
   } catch {
     return null;
@@ -278,8 +281,9 @@ export async function writeCache(dir: string, key: string, loaded: Loaded): Prom
     await fs.mkdir(dir, { recursive: true });
     const path = join(dir, `${key}.fgcells`);
     tmp = trackTemp(join(dir, `.${key}.tmp-${process.pid}-${randomBytes(4).toString('hex')}`));
+    await checkDestination(path, { overwrite: true }); // a regular file or nothing; else the entry is not written
     await fs.writeFile(tmp, encodeEntry(key, loaded));
-    await fs.rename(tmp, path);
+    await moveInto(tmp, await checkDestination(path, { overwrite: true }));
     releaseTemp(tmp);
     await trim(dir);
   } catch {

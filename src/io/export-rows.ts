@@ -6,11 +6,11 @@
  */
 import { createHash } from 'node:crypto';
 import { createReadStream, promises as fs } from 'node:fs';
-import { dirname, extname } from 'node:path';
+import { extname } from 'node:path';
 import type { Duck } from '../engine/duck.js';
 import { literal } from '../engine/sql.js';
 import { error } from '../util/error.js';
-import { tempPathFor, writeError } from './write-atomic.js';
+import { checkDestination, moveInto, tempPathFor, writeError, type Destination } from './write-atomic.js';
 
 /** File formats `floorgap export` writes. */
 export type ExportFormat = 'csv' | 'jsonl' | 'parquet';
@@ -45,26 +45,22 @@ export function manifestPathFor(path: string): string {
   return `${path}.manifest.json`;
 }
 
-const exists = (path: string): Promise<boolean> => fs.lstat(path).then(() => true, () => false);
-
 /**
- * Checks that an export can go to `path`: its folder exists, and neither the file nor its manifest
- * exists unless `force` is set.
+ * Checks that an export can go to `path`: its folder exists, and the file and its manifest are absent,
+ * or regular files that `force` allows replacing (see {@link checkDestination}: a link, a pipe, a device
+ * or a folder is never replaced).
  * @param path the destination
  * @param force allow replacing existing files
+ * @returns the two destinations (rows, manifest), with the modes their replacements keep
  * @throws FloorgapError naming the folder or the file in the way, and the fix
  * @example
  * await checkOutput('out/rows.csv', false);
  */
-export async function checkOutput(path: string, force: boolean): Promise<void> {
-  const dir = dirname(path);
-  const dirOk = await fs.stat(dir).then((s) => s.isDirectory(), () => false);
-  if (!dirOk) throw error(`${path}: folder ${dir} does not exist; create it first`);
-  if (await fs.stat(path).then((s) => s.isDirectory(), () => false)) throw error(`${path}: is a folder; --out needs a file name, e.g. ${path.replace(/\/+$/, '')}/rows.csv`);
-  if (force) return;
-  for (const p of [path, manifestPathFor(path)]) {
-    if (await exists(p)) throw error(`${p}: file exists; pass --force to overwrite it`);
-  }
+export async function checkOutput(path: string, force: boolean): Promise<{ data: Destination; manifest: Destination }> {
+  const folderHint = `--out needs a file name, e.g. ${path.replace(/\/+$/, '')}/rows.csv`;
+  const data = await checkDestination(path, { overwrite: force, folderHint });
+  const manifest = await checkDestination(manifestPathFor(path), { overwrite: force });
+  return { data, manifest };
 }
 
 /**
@@ -167,12 +163,10 @@ export async function writeExport(duck: Duck, w: ExportWrite): Promise<{ data: s
     const manifest = await w.manifest();
     await fs.writeFile(tmpManifest, JSON.stringify(manifest, null, 2) + '\n', { flag: 'wx' });
     await w.hooks?.beforeRename?.(tmpData, tmpManifest);
-    if (!w.force) {
-      // a file may have appeared while the rows were written
-      for (const p of [w.path, manifestPath]) if (await exists(p)) throw error(`${p}: file exists; pass --force to overwrite it`);
-    }
-    await fs.rename(tmpData, w.path);
-    await fs.rename(tmpManifest, manifestPath);
+    // a file may have appeared while the rows were written: both are checked before either is renamed
+    const dest = await checkOutput(w.path, w.force);
+    await moveInto(tmpData, dest.data);
+    await moveInto(tmpManifest, dest.manifest);
   } catch (e) {
     await cleanup();
     if (e instanceof Error && e.name !== 'FloorgapError' && typeof (e as NodeJS.ErrnoException).code === 'string') throw writeError(w.path, e);

@@ -2,7 +2,7 @@
  * The report as CSV (RFC 4180): one row per slice, the overall slice first with label `overall`, flat
  * columns, values as fractions, missing values as empty cells. Text cells are made safe to open in a
  * spreadsheet (a leading `=`, `+`, `-`, `@`, tab or CR gets a `'`) and to print in a terminal
- * (controls other than tab, CR and LF become visible escapes; those three are quoted).
+ * (controls other than tab, CR and LF become visible escapes; a field holding one of those three is quoted).
  */
 import type { Split } from '../engine/types.js';
 import type { Gap, Report, SliceReport } from '../triage/types.js';
@@ -63,14 +63,16 @@ export function neutralizeFormula(value: string): string {
 }
 
 /**
- * Quotes a field per RFC 4180 when it holds a comma, a double quote, CR or LF; quotes are doubled.
+ * Quotes a field per RFC 4180 when it holds a comma, a double quote, CR, LF or TAB (none of them is
+ * TEXTDATA in the RFC's grammar; a bare CR or TAB would also move the cursor when the file is viewed);
+ * quotes are doubled.
  * @param field the cell text
  * @returns the field ready to join with commas
  * @example
  * quoteField('a,"b"'); // => '"a,""b"""'
  */
 export function quoteField(field: string): string {
-  return /[",\r\n]/.test(field) ? `"${field.replaceAll('"', '""')}"` : field;
+  return /[",\r\n\t]/.test(field) ? `"${field.replaceAll('"', '""')}"` : field;
 }
 
 function cell(value: Value): string {

@@ -9,7 +9,9 @@ import { mkdtempSync, rmSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import type { CheckResult } from '../../src/triage/check.js';
 import type { Report } from '../../src/triage/types.js';
+import { openDuck } from '../../src/engine/duck.js';
 import { runCli } from '../helpers/run-cli.js';
 
 const BAD = join('test', 'fixtures', 'bad');
@@ -77,6 +79,20 @@ describe.concurrent('bad files: exit 2 and one line naming what is wrong', () =>
     ['floor table: no key column', [f('valid.csv'), '--floor-table', f('floors-no-key.csv')], /floors-no-key\.csv: no key columns/],
     ['floor table: a role column as key', [f('valid.csv'), '--floor-table', f('floors-role-key.csv')], /floors-role-key\.csv: key column "id" is the id column of .*valid\.csv; keys must be slice columns \(e\.g\. package\), label, pred or split$/],
     ['cost table: a role column as key', [f('valid.csv'), '--cost-table', f('costs-role-key.csv')], /costs-role-key\.csv: key column "weight" is the weight column of/],
+    // paired baselines: ids unique among the dev rows on either side
+    ['paired baseline: an id twice in the current table', ['check', f('paired-dup-id.csv'), '--baseline', f('valid.csv')], /paired-dup-id\.csv: id "dev-3" appears 2 times among the dev rows; ids must be unique to pair rows$/],
+    ['paired baseline: an id twice in the baseline', ['check', f('valid.csv'), '--baseline', f('paired-dup-id.csv')], /paired-dup-id\.csv: id "dev-3" appears 2 times among the dev rows; ids must be unique to pair rows$/],
+    // saved baseline reports: the shape is checked, field by field
+    ['baseline report: a slice error as text', ['check', f('valid.csv'), '--by', 'station', '--baseline', f('baseline-text-value.json')], /baseline-text-value\.json: slices\[3\]\.error\.dev\.value: expected a number, got "0\.1"$/],
+    ['baseline report: the overall error as text', ['check', f('valid.csv'), '--by', 'station', '--baseline', f('baseline-overall-text.json')], /baseline-overall-text\.json: overall\.error\.dev\.value: expected a number, got "NaN"$/],
+    ['baseline report: a rate without n', ['check', f('valid.csv'), '--by', 'station', '--baseline', f('baseline-no-n.json')], /baseline-no-n\.json: slices\[0\]\.error\.dev\.n: expected a number, got nothing$/],
+    ['baseline report: slices not an array', ['check', f('valid.csv'), '--by', 'station', '--baseline', f('baseline-slices-object.json')], /baseline-slices-object\.json: slices: expected an array, got an object$/],
+    // JSON documents that are not reports are never read as prediction tables
+    ['baseline: a JSON document of another schema', ['check', f('valid.csv'), '--baseline', f('baseline-check.json')], /baseline-check\.json: a JSON document with schema "floorgap\.check\/1"; expected a report saved with floorgap report --format json \(schema floorgap\.report\/1\) or the baseline model's prediction table$/],
+    ['baseline: a JSON array', ['check', f('valid.csv'), '--baseline', f('baseline-array.json')], /baseline-array\.json: a JSON document \(an array\); expected a report saved with floorgap report --format json/],
+    ['baseline: JSON null', ['check', f('valid.csv'), '--baseline', f('baseline-null.json')], /baseline-null\.json: a JSON document \(null\); expected a report saved with floorgap report --format json/],
+    ['baseline: an empty JSON object', ['check', f('valid.csv'), '--baseline', f('baseline-empty-object.json')], /baseline-empty-object\.json: a JSON document \(an object without a "schema" key\); expected a report/],
+    ['baseline: a folder', ['check', f('valid.csv'), '--max-bias', '0.9', '--baseline', BAD], /test\/fixtures\/bad: is a folder; expected a report saved with floorgap report --format json or the baseline model's prediction table$/],
     // cost tables
     ['cost table: one key, two costs', [f('valid.csv'), '--cost-table', f('costs-conflicting.csv')], /costs-conflicting\.csv: lines 3 and 4 give package=QFN different values \(label_cost 4 and 2\); keep one$/],
     ['cost table: a negative cost', [f('valid.csv'), '--cost-table', f('costs-negative.csv')], /costs-negative\.csv: line 3, column "label_cost": expected a cost > 0.*got "-4"$/],
@@ -143,6 +159,67 @@ describe.concurrent('awkward but valid files: the right report', () => {
     expect(text).toContain('station=S4\\u202eevil');
     const { report } = await reportJson([f('control-values.csv'), '--slice-cols', 'station']);
     expect(report.slices.map((s) => s.key.station).sort()).toEqual(['S1\x1b[2J', 'S2\x1b]52;c;ZWNobyBoaQ==\x07', 'S3\x07', 'S4\u202eevil']); // JSON keeps the data exact
+  });
+
+  it('a baseline report saved by hand in the report schema (pretty or on one line) is compared field by field', async () => {
+    for (const name of ['baseline-report.json', 'baseline-report-line.json']) {
+      const r = await runCli(['check', f('valid.csv'), '--by', 'station', '--baseline', f(name), '--format', 'json', '--no-cache']);
+      expect(r.code, r.stderr).toBe(0);
+      const result = JSON.parse(r.stdout) as CheckResult;
+      expect(result.baseline).toEqual({ path: f(name), kind: 'report' });
+      // make.mjs: the file holds valid.csv's own dev errors (overall 10/40, S1 10/10, S2–S4 0/10): no change
+      expect(result.comparisons.map((c) => [c.slice, c.before, c.change])).toEqual([
+        ['overall', 0.25, 0],
+        ['station=S1', 1, 0],
+        ['station=S2', 0, 0],
+        ['station=S3', 0, 0],
+        ['station=S4', 0, 0],
+      ]);
+    }
+  });
+
+  it('paired: rows with an empty prediction are left out on either side, as the report leaves them out', async () => {
+    // paired-empty-pred.csv: dev rows 1, 2, 5 (S2, S3, S2) have no prediction; valid.csv predicts them right
+    const now = await runCli(['check', f('paired-empty-pred.csv'), '--by', 'station', '--baseline', f('valid.csv'), '--format', 'json', '--no-cache']);
+    expect(now.code, now.stderr).toBe(0);
+    const a = JSON.parse(now.stdout) as CheckResult;
+    // 37 pairs, errors 10 before and 10 now (all of S1, make.mjs): no discordant pair anywhere
+    expect(a.comparisons.map((c) => [c.slice, c.worse, c.better, c.before])).toEqual([
+      ['overall', 0, 0, 10 / 37],
+      ['station=S1', 0, 0, 1],
+      ['station=S2', 0, 0, 0],
+      ['station=S3', 0, 0, 0],
+      ['station=S4', 0, 0, 0],
+    ]);
+    const before = await runCli(['check', f('valid.csv'), '--by', 'station', '--baseline', f('paired-empty-pred.csv'), '--format', 'json', '--no-cache']);
+    expect(before.code, before.stderr).toBe(0);
+    const b = JSON.parse(before.stdout) as CheckResult;
+    expect(b.comparisons.map((c) => [c.slice, c.worse, c.better, c.before])).toEqual([
+      ['overall', 0, 0, 10 / 37],
+      ['station=S1', 0, 0, 1],
+      ['station=S2', 0, 0, 0],
+      ['station=S3', 0, 0, 0],
+      ['station=S4', 0, 0, 0],
+    ]);
+    expect(b.warnings).toContain(`3 dev rows have an empty label or prediction in ${f('paired-empty-pred.csv')}; they are left out of the paired test`);
+  });
+
+  it('the CSV report quotes TAB, CR, commas and quotes: DuckDB reads back the exact slice labels', async () => {
+    const r = await runCli([f('whitespace-values.csv'), '--slice-cols', 'station', '--format', 'csv', '--no-cache']);
+    expect(r.code, r.stderr).toBe(0);
+    expect(r.stdout).toContain('"station=S1\r X"');
+    expect(r.stdout).toContain('"station=S2\tY"');
+    const dir = mkdtempSync(join(tmpdir(), 'floorgap-csv-back-'));
+    const duck = await openDuck({ threads: 1 });
+    try {
+      writeFileSync(join(dir, 'report.csv'), r.stdout);
+      const rows = await duck.all(`SELECT label FROM read_csv('${join(dir, 'report.csv')}', header = true, all_varchar = true, delim = ',', quote = '"', escape = '"', new_line = '\\r\\n') ORDER BY label`);
+      // make.mjs: the four station values, as written inside the quotes
+      expect(rows.map((x) => x.label)).toEqual(['overall', 'station=S1\r X', 'station=S2\tY', 'station=S3, left', 'station=S4 "q"']);
+    } finally {
+      duck.close();
+      rmSync(dir, { recursive: true, force: true });
+    }
   });
 
   it('floor-table keys that match no row: a warning per line, the report still made', async () => {

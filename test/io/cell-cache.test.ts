@@ -3,7 +3,8 @@
  * report; a changed file (even of the same size and modification time) never reuses stale cells.
  * Expected values: the report computed with --no-cache on the same file.
  */
-import { readdirSync, readFileSync, statSync, utimesSync, writeFileSync } from 'node:fs';
+import { execFileSync } from 'node:child_process';
+import { lstatSync, readdirSync, readFileSync, rmSync, statSync, utimesSync, writeFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { cacheDir, decodeEntry, encodeEntry } from '../../src/io/cell-cache.js';
@@ -120,6 +121,24 @@ describe('the cache across runs', () => {
     expect(again.code).toBe(0);
     expect(again.stdout).toBe(good.stdout);
   });
+});
+
+describe('an entry path that is not a regular file', () => {
+  it('a named pipe there is neither read (it would wait for a writer) nor replaced; the report is made', async () => {
+    const file = join(dir, 'piped.csv');
+    table(file, [5, 9]);
+    const before = new Set(entries());
+    const good = await report(file);
+    const made = entries().find((e) => !before.has(e))!;
+    const path = join(cacheHome(), 'floorgap', 'cells', made);
+    rmSync(path);
+    execFileSync('mkfifo', [path]);
+    const again = await report(file);
+    expect(again.code).toBe(0);
+    expect(again.stdout).toBe(good.stdout);
+    expect(lstatSync(path).isFIFO()).toBe(true);
+    rmSync(path);
+  }, 20_000);
 });
 
 describe('damaged entries are detected by their checksum and rebuilt', () => {

@@ -1,5 +1,6 @@
 /** Project file. Expected values are hand-counted from the fixture (the JSON each test writes). */
-import { writeFileSync } from 'node:fs';
+import { execFileSync } from 'node:child_process';
+import { mkdirSync, writeFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { CONFIG_FILE, readConfig } from '../../src/io/config.js';
@@ -60,6 +61,33 @@ describe('readConfig', () => {
       expect(thrown(() => readConfig(path, dir)).message).toBe(
         `${path}: expected a JSON object of option names and values, e.g. {"label": "truth"}`,
       );
+    }
+  });
+
+  it('a folder or a named pipe as the file: an error naming it, never a wait for a writer', () => {
+    const sub = join(dir, 'a-folder');
+    mkdirSync(sub);
+    expect(thrown(() => readConfig(sub, dir)).message).toBe(`${sub}: the config file is not a regular file (a folder)`);
+    const pipeDir = makeTempDir();
+    try {
+      execFileSync('mkfifo', [join(pipeDir, CONFIG_FILE)]);
+      expect(thrown(() => readConfig(null, pipeDir)).message).toBe(`${join(pipeDir, CONFIG_FILE)}: the config file is not a regular file (a pipe, a device or a socket)`);
+    } finally {
+      removeTempDir(pipeDir);
+    }
+  });
+
+  it('keys: the allow-list, "where" only in a file named with --config', () => {
+    const path = join(dir, 'where.json');
+    writeFileSync(path, '{"where": "station <> \'S1\'", "max-bias": 0.05}');
+    // expected: hand-copied from the JSON above
+    expect(readConfig(path, dir)).toEqual({ where: "station <> 'S1'", 'max-bias': 0.05 });
+    const found = makeTempDir();
+    try {
+      writeFileSync(join(found, CONFIG_FILE), '{"where": "TRUE"}');
+      expect(thrown(() => readConfig(null, found)).message).toMatch(/floorgap\.json: "where" \(SQL text\) may not come from a project file found in the working folder/);
+    } finally {
+      removeTempDir(found);
     }
   });
 });

@@ -4,7 +4,11 @@ import { reportFixture, withLabel } from '../helpers/report-fixture.js';
 
 // Reports are the fixture (hand-built) in test/helpers/report-fixture.ts or small edits of it.
 
-/** A strict RFC 4180 reader for the test: CRLF records, quoted fields with doubled quotes. */
+/**
+ * A strict RFC 4180 reader for the test: CRLF records, quoted fields with doubled quotes. Unquoted
+ * fields hold TEXTDATA only (RFC 4180 section 2, the grammar: %x20-21 / %x23-2B / %x2D-7E, here any
+ * character but a quote, a comma, CR, LF and TAB), so a bare TAB, CR or LF is an error.
+ */
 function parseCsv(text: string): string[][] {
   const records: string[][] = [];
   let record: string[] = [];
@@ -38,7 +42,7 @@ function parseCsv(text: string): string[][] {
       field = '';
       i += 2;
     } else {
-      if (ch === '"' || ch === '\n' || ch === '\r') throw new Error(`bare ${JSON.stringify(ch)} at ${i}`);
+      if (ch === '"' || ch === '\n' || ch === '\r' || ch === '\t') throw new Error(`bare ${JSON.stringify(ch)} at ${i}`);
       field += ch;
       i++;
     }
@@ -103,6 +107,17 @@ describe('renderCsv', () => {
     expect(asObjects(csv)[1].label).toBe(label);
   });
 
+  it('quotes a field holding a TAB or a lone CR, and reads back the exact text', () => {
+    const labels = ['station=\r X', 'station=B\tY', 'a\tb,c', 'x\ry"z', 'plain'];
+    let r = report;
+    labels.forEach((label, i) => (r = withLabel(r, i + 1, label)));
+    const csv = renderCsv(r);
+    expect(csv).toContain('"station=\r X"');
+    expect(csv).toContain('"station=B\tY"');
+    expect(csv).toContain(',plain,');
+    expect(asObjects(csv).slice(1, 6).map((o) => o.label)).toEqual(labels);
+  });
+
   it('neutralises formula-leading text but not numbers', () => {
     let hostile = withLabel(report, 1, '=SUM(A1)');
     hostile = withLabel(hostile, 2, '-0.5');
@@ -123,6 +138,8 @@ describe('renderCsv', () => {
   it('exposes its quoting and neutralising helpers', () => {
     expect(quoteField('plain')).toBe('plain');
     expect(quoteField('a,"b"')).toBe('"a,""b"""');
+    expect(quoteField('a\tb')).toBe('"a\tb"');
+    expect(quoteField('a\rb')).toBe('"a\rb"');
     expect(neutralizeFormula('=SUM(A1)')).toBe("'=SUM(A1)");
     expect(neutralizeFormula('\rx')).toBe("'\rx");
     expect(neutralizeFormula('S5')).toBe('S5');

@@ -1,13 +1,12 @@
-import { open, readFile } from 'node:fs/promises';
 import type { Argv } from 'yargs';
 import { pairedCounts } from '../../engine/paired.js';
-import { writeAtomic } from '../../io/write-atomic.js';
+import { readBaseline } from '../../io/read-baseline.js';
+import { checkDestination, writeAtomic } from '../../io/write-atomic.js';
 import { renderCheckText } from '../../render/check-text.js';
 import { renderJunit } from '../../render/junit.js';
 import { renderJson } from '../../render/json.js';
 import { mcnemarTest } from '../../stats/index.js';
 import { checkLimits, checkResult, compareReports, comparePaired, LIMIT_NAMES, type Comparison, type Limits } from '../../triage/check.js';
-import type { Report } from '../../triage/types.js';
 import { error } from '../../util/error.js';
 import { analysisReads, analyzeWith, withDuck } from '../analyze.js';
 import type { CliIO } from '../io.js';
@@ -37,36 +36,6 @@ export function checkOptions<T>(y: Argv<T>) {
     .option('junit', { type: 'string', describe: 'also write a JUnit XML file (one test case per slice and limit)', group: 'Output:' });
 }
 
-/** True when the file is a floorgap JSON report (rather than a prediction table). */
-async function isReport(path: string): Promise<boolean> {
-  const handle = await open(path, 'r').catch((e: NodeJS.ErrnoException) => {
-    throw error(`${path}: ${e.code === 'ENOENT' ? 'no such file' : `cannot read (${e.code})`}`);
-  });
-  try {
-    const buf = Buffer.alloc(512);
-    const { bytesRead } = await handle.read(buf, 0, 512, 0);
-    const head = buf.subarray(0, bytesRead).toString('utf8');
-    return /^\s*\{\s*"schema"\s*:\s*"floorgap\.report\//.test(head);
-  } finally {
-    await handle.close();
-  }
-}
-
-async function readReport(path: string): Promise<Report> {
-  const text = await readFile(path, 'utf8');
-  let value: unknown;
-  try {
-    value = JSON.parse(text);
-  } catch (e) {
-    throw error(`${path}: not valid JSON (${(e as Error).message}); expected a report saved with floorgap report --format json`, e);
-  }
-  const r = value as Partial<Report>;
-  if (r.schema !== 'floorgap.report/1' || !r.overall || !Array.isArray(r.slices)) {
-    throw error(`${path}: not a floorgap.report/1 JSON report`);
-  }
-  return r as Report;
-}
-
 function limitsOf(args: CheckArgs): Limits {
   const limits: Record<string, number> = {};
   for (const name of LIMIT_NAMES) {
@@ -86,16 +55,20 @@ export async function runCheck(args: CheckArgs, io: CliIO): Promise<number> {
   if (Object.keys(limits).length === 0 && !args.baseline) {
     throw error('check needs at least one limit (--max-bias, --max-variance, --max-mismatch, --max-dev-error) or a --baseline');
   }
-  // the engine may read the baseline only when it is a prediction table (a saved report is read here)
-  const baselineTable = args.baseline && !(await isReport(args.baseline)) ? [args.baseline] : [];
+  // a JUnit report replaces its own regular file without --force, as test runners' reports do; never anything else
+  if (args.junit) await checkDestination(args.junit, { overwrite: true, folderHint: `--junit needs a file name, e.g. ${args.junit.replace(/\/+$/, '')}/slices.xml` });
+  // a saved report is read and checked before the scan; a prediction table is paired after it, so the
+  // engine may read the baseline only then
+  const saved = args.baseline ? await readBaseline(args.baseline) : null;
+  const baselineTable = args.baseline && saved?.kind === 'table' ? [args.baseline] : [];
   const result = await withDuck(args, { read: [...analysisReads(args), ...baselineTable], write: [] }, async (duck) => {
     const { report, loaded } = await analyzeWith(duck, args, io);
     const warnings = [...report.warnings];
     let comparisons: Comparison[] = [];
     let baseline: { path: string; kind: 'report' | 'paired' } | null = null;
     if (args.baseline) {
-      if (await isReport(args.baseline)) {
-        const before = await readReport(args.baseline);
+      if (saved?.kind === 'report') {
+        const before = saved.report;
         const same = JSON.stringify(before.by) === JSON.stringify(report.by);
         if (!same) {
           const show = (b: readonly string[] | null) => (b ? `--by ${b.join(',')}` : 'the overview (no --by)');

@@ -1,5 +1,4 @@
 import { promises as fs } from 'node:fs';
-import { dirname } from 'node:path';
 import type { Argv } from 'yargs';
 import { cellQuery } from '../../engine/cell-query.js';
 import { DIALECTS, type DialectName } from '../../engine/dialect.js';
@@ -9,7 +8,7 @@ import { literal } from '../../engine/sql.js';
 import { planWarehouse, warehouseQuery } from '../../engine/warehouse.js';
 import { printableWhere } from '../../engine/where.js';
 import { exportFormatFor } from '../../io/export-rows.js';
-import { tempPathFor, writeError } from '../../io/write-atomic.js';
+import { checkDestination, moveInto, tempPathFor, writeError } from '../../io/write-atomic.js';
 import { sanitize } from '../../render/index.js';
 import { VERSION } from '../../version.js';
 import { error } from '../../util/error.js';
@@ -118,9 +117,7 @@ export async function runSql(args: SqlArgs, io: CliIO): Promise<number> {
   const classes = list(args.classes);
   const loadOptions = toLoadOptions({ ...args, 'max-cells': args['max-cells'] ?? 200_000 });
   if (out !== null) {
-    if (!args.force && (await fs.lstat(out).then(() => true, () => false))) throw error(`${out}: file exists; pass --force to overwrite it`);
-    const dir = dirname(out);
-    if (!(await fs.stat(dir).then((s) => s.isDirectory(), () => false))) throw error(`${out}: folder ${dir} does not exist`);
+    await checkDestination(out, { overwrite: args.force, folderHint: `--out needs a file name, e.g. ${out.replace(/\/+$/, '')}/cells.parquet` });
   }
   // the engine writes the cells to this temporary file beside --out, and nowhere else
   const tmp = out === null ? null : tempPathFor(out);
@@ -145,7 +142,7 @@ export async function runSql(args: SqlArgs, io: CliIO): Promise<number> {
         // COPY answers with the number of rows it wrote: no second scan to count the cells
         const [result] = await duck.all(`COPY (${query}) TO ${literal(tmp!)} (${copyFormat(out)})`);
         written = Number(result?.Count ?? 0);
-        await fs.rename(tmp!, out);
+        await moveInto(tmp!, await checkDestination(out, { overwrite: args.force }));
       } catch (e) {
         await fs.rm(tmp!, { force: true });
         if (e instanceof Error && e.name === 'FloorgapError') throw e;
