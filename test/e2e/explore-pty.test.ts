@@ -14,7 +14,8 @@ import { afterAll, afterEach, beforeAll, describe, expect, it } from 'vitest';
 import { LEVER } from '../../src/tui/model.js';
 import type { Report, SliceReport } from '../../src/triage/types.js';
 import { KEY, spawnPty, type PtySession } from '../helpers/pty.js';
-import { CLI, runCli } from '../helpers/run-cli.js';
+import { CLI, ROOT, runCli } from '../helpers/run-cli.js';
+import { startTmux, tmuxAvailable, type TmuxSession } from '../helpers/tmux.js';
 
 const SAMPLE = ['data-samples/solder-joints.csv', '--floor-table', 'data-samples/inspector-floors.csv', '--annotators', 'insp_a,insp_b,insp_c'];
 const COLS = 80;
@@ -251,6 +252,73 @@ describe('stopping while the table loads', () => {
     expectRestored(p);
   }, 30_000);
 });
+
+describe('the scrollback is never cleared', () => {
+  /** the sizes the window goes through: shorter, taller, shorter again, several times */
+  const SIZES: readonly (readonly [number, number])[] = [
+    [80, 16],
+    [80, 30],
+    [80, 12],
+    [80, 24],
+    [80, 10],
+    [80, 28],
+    [80, 14],
+  ];
+  /** the table laid out for the current size: status and key lines are the frame's last two (rows − 1 lines) */
+  const laidOut = (rows: number) => (l: string[]) => TABLE.test(l[rows - 3] ?? '') && /^↑↓ move /.test(l[rows - 2] ?? '') && l[rows - 1] === '';
+
+  it('resizing shorter and taller never writes ESC [ 3 J (erase the scrollback)', async () => {
+    const p = start(['explore', ...SAMPLE]);
+    await p.waitFor(TABLE, WAIT);
+    for (const [cols, rows] of SIZES) {
+      p.resize(cols, rows);
+      await p.waitUntil(laidOut(rows), WAIT, `the table laid out for ${cols}×${rows}`);
+    }
+    await p.press('q');
+    expect(await p.exited()).toEqual({ exitCode: 0, signal: 0 });
+    // ESC [ 3 J is "erase saved lines" (ECMA-48 ED with parameter 3, as xterm and tmux implement it)
+    expect(p.raw().includes('\x1b[3J'), 'ESC [ 3 J written').toBe(false);
+    expectRestored(p);
+  }, 60_000);
+
+  it('in tmux: the 180 lines written before the explorer are still in the scrollback after it quits', async (ctx) => {
+    if (!tmuxAvailable()) {
+      ctx.skip(); // the test above holds the byte-level guarantee
+      return;
+    }
+    const env: Record<string, string> = {};
+    for (const [k, v] of Object.entries(process.env)) if (v !== undefined && !['CI', 'CONTINUOUS_INTEGRATION', 'TMUX', 'TMUX_PANE'].includes(k)) env[k] = v;
+    const args = ['explore', ...SAMPLE].map((a) => `'${a}'`).join(' ');
+    // 180 numbered lines, then the explorer, then its exit code on the main screen
+    const t = startTmux(`i=1; while [ $i -le 180 ]; do echo "scrollback line $i"; i=$((i+1)); done; '${process.execPath}' '${CLI}' ${args}; echo "explorer exited $?"`, { cols: 80, rows: 24, cwd: ROOT, env });
+    try {
+      await t.waitFor(TABLE, WAIT);
+      const before = t.historySize();
+      // 180 lines and the explorer's command line on a 24-row pane: at least 180 − 24 lines scrolled off
+      expect(before).toBeGreaterThanOrEqual(180 - 24);
+      for (const [cols, rows] of SIZES) {
+        t.resize(cols, rows);
+        await waitForTmux(t, laidOut(rows), `the table laid out for ${cols}×${rows} in tmux`);
+      }
+      t.sendKeys('q');
+      await t.waitFor(/^explorer exited 0$/, WAIT);
+      expect(t.historySize()).toBeGreaterThanOrEqual(before);
+      const all = t.everything();
+      for (const n of [1, 2, 90, 179, 180]) expect(all, `scrollback line ${n}`).toContain(`scrollback line ${n}`);
+    } finally {
+      t.kill();
+    }
+  }, 60_000);
+});
+
+/** Polls a tmux pane until `test(screen)` holds. */
+async function waitForTmux(t: TmuxSession, test: (lines: string[]) => boolean, what: string): Promise<void> {
+  const deadline = Date.now() + WAIT;
+  while (!test(t.screen())) {
+    if (Date.now() > deadline) throw new Error(`timed out waiting for ${what}; screen:\n${t.screen().map((l) => `|${l}`).join('\n')}`);
+    await new Promise((r) => setTimeout(r, 50));
+  }
+}
 
 describe('hostile slice values on a real terminal', () => {
   it('control sequences from the data reach the screen as visible escapes, never as live ones', async () => {

@@ -25,6 +25,32 @@ export function sliceKeyText(slice: SliceReport): string {
 
 const ENTER = '\x1b[?1049h\x1b[?25l';
 const LEAVE = '\x1b[?25h\x1b[?1049l';
+/** ESC [ 3 J: erase the saved lines (the scrollback), part of the clear-terminal sequence ink writes */
+const ERASE_SCROLLBACK = '\x1b[3J';
+
+/**
+ * The terminal stream as ink gets it: everything passes through except ESC [ 3 J, which ink writes (as
+ * part of its clear-terminal sequence) when the window gets shorter than the last frame, and which
+ * would wipe the user's scrollback even from the alternate screen. Every other property (size, TTY,
+ * resize events) is the terminal's own.
+ * @example
+ * withoutScrollbackClear(process.stdout).write('\x1b[2J\x1b[3J\x1b[H'); // writes '\x1b[2J\x1b[H'
+ */
+export function withoutScrollbackClear(stdout: NodeJS.WriteStream): NodeJS.WriteStream {
+  const strip = (chunk: unknown) => {
+    if (typeof chunk === 'string') return chunk.replaceAll(ERASE_SCROLLBACK, '');
+    if (chunk instanceof Uint8Array && Buffer.from(chunk).includes(ERASE_SCROLLBACK)) return Buffer.from(chunk).toString('utf8').replaceAll(ERASE_SCROLLBACK, '');
+    return chunk;
+  };
+  const write = (chunk: unknown, ...rest: unknown[]): boolean => (stdout.write as (...a: unknown[]) => boolean).call(stdout, strip(chunk), ...rest);
+  return new Proxy(stdout, {
+    get(target, prop) {
+      if (prop === 'write') return write;
+      const value: unknown = Reflect.get(target, prop, target);
+      return typeof value === 'function' ? (value as (...a: unknown[]) => unknown).bind(target) : value;
+    },
+  });
+}
 
 /**
  * The full-screen keyboard explorer on a terminal (stdin and stdout are TTYs). Loaded only when it
@@ -119,7 +145,7 @@ export async function runExplorer(args: ExploreArgs, io: CliIO, argv: readonly s
         defaultExportPath={() => `floorgap-export-${new Date().toISOString().slice(0, 19).replace(/[:T]/g, '-')}.csv`}
         fileExists={(p) => existsSync(p)}
       />,
-      { stdout, stdin, stderr: io.stderr as NodeJS.WriteStream, exitOnCtrlC: false, patchConsole: false },
+      { stdout: withoutScrollbackClear(stdout), stdin, stderr: io.stderr as NodeJS.WriteStream, exitOnCtrlC: false, patchConsole: false },
     );
   });
 }
