@@ -8,7 +8,7 @@ import { SliceTable } from './components/SliceTable.js';
 import { detailLines } from './detail.js';
 import { headerLines } from './header.js';
 import { useTerminalSize } from './hooks/use-terminal-size.js';
-import { DETAIL_HINT, DETAIL_HINT_ASCII, HINT, HINT_ASCII, KEYS } from './keys.js';
+import { DETAIL_HINT, DETAIL_HINT_ASCII, HINT, HINT_ASCII, KEYS, splitKeys } from './keys.js';
 import { barScale, clampCursor, SORT_LABEL, tableColumns, windowStart } from './model.js';
 import { initialState, reduce, shownSlices } from './state.js';
 import type { ExplorerData } from './session.js';
@@ -170,14 +170,8 @@ export function App(props: AppProps) {
   useInput((input, key) => {
     if (failure) return exit(key.ctrl && input === 'c' ? 130 : 2, new Error(failure));
     const common = { defaultExportPath: props.defaultExportPath(), fileExists: props.fileExists };
-    // several printable keys in one read (a paste, a burst over SSH) are applied one by one
-    const plain = !key.ctrl && !key.meta && !key.return && !key.escape && !key.tab && !key.backspace && !key.delete;
-    const chars = [...input];
-    if (plain && chars.length > 1 && !input.includes('\x1b')) {
-      for (const ch of chars) dispatch({ type: 'key', input: ch, key: {}, ...common });
-      return;
-    }
-    dispatch({ type: 'key', input, key, ...common });
+    // several keys in one read (key repeat, a paste, a burst over SSH) are applied one by one, in order
+    for (const k of splitKeys(input, key)) dispatch({ type: 'key', input: k.input, key: k.key, ...common });
   });
 
   // ---- frame -------------------------------------------------------------------------------------

@@ -188,6 +188,13 @@ describe(`explore in a ${COLS}×${ROWS} terminal`, () => {
     expect(problems).toEqual([]);
   });
 
+  it('/ then "xyz", three Backspaces and Enter in one write: every key applies, the filter stays "low"', async () => {
+    await p.press('/', 'xyz\x7f\x7f\x7f\r'); // press writes each argument at once: one read for the burst
+    const lines = await p.waitUntil((l) => /^↑↓ move /.test(l[ROWS - 2]) && /filter "low" \(\d+ of \d+\)/.test(l[ROWS - 3]), WAIT, 'the prompt closed with the filter "low"');
+    for (const r of tableRows(lines, /^ {3}station · lighting /)) expect(r).toContain('low');
+    expectFrameFits(p);
+  });
+
   it('resizing to 60×20 lays the screen out again', async () => {
     p.resize(60, 20);
     const lines = await p.waitUntil((l) => l.some((x) => /^ {3}station · /.test(x)) && l.some((x) => TABLE.test(x)) && frameProblem(p) === null && l[0].length <= 60 && l[0].endsWith('…'), WAIT, 'the table laid out for 60 columns');

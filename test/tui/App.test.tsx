@@ -210,6 +210,40 @@ describe('the slice table', () => {
   });
 });
 
+describe('several keys in one read (key repeat, a paste, a burst over SSH)', () => {
+  // the bottom line of an 80×24 frame is line 22; the prompts' text is defined in src/tui/App.tsx (bottomSpans)
+  it('applies every Backspace and character of one chunk in order in the filter prompt', async () => {
+    const x = await explorer({ data: fakeExplorerData().data });
+    await x.press('/');
+    await x.press('dome'); // one read
+    expect(screen(x)[22]).toBe('/dome▏ (Enter keeps, Esc clears)');
+    await x.press('\x7f\x7f\x7f'); // three Backspaces (DEL) in one read
+    expect(screen(x)[22]).toBe('/d▏ (Enter keeps, Esc clears)');
+    await x.press('abc\x7f\x7f'); // "dabc" less two
+    expect(screen(x)[22]).toBe('/da▏ (Enter keeps, Esc clears)');
+    await x.press('\b\bring\r'); // Ctrl-H twice, "ring", Enter
+    // fixture: the ring slices are S2 · ring and S1 · ring
+    expect(screen(x)[21]).toBe('sort report order ↓ · filter "ring" (2 of 7) · 0 marked · 1/2');
+  });
+
+  it('applies every key of one chunk in the export prompt, Enter included', async () => {
+    const { data, calls } = fakeExplorerData();
+    const x = await explorer({ data });
+    await x.press('e');
+    expect(screen(x)[22]).toBe(`export rows to: ${FAKE_EXPORT_PATH}▏ (Enter writes, Esc cancels)`);
+    await x.press('\x7f\x7f\x7ftsv\r'); // "floorgap-export.csv" → "floorgap-export.tsv", then Enter
+    await settle();
+    // nothing marked: the flagged slices (fixture: S2, S5, S7, in the report's order) are exported
+    expect(calls.exportSlices).toEqual([{ slices: ['station=S2 · lighting=ring', 'station=S5 · lighting=dome', 'station=S7-rework-line-north · lighting=backlit-polarised'], path: 'floorgap-export.tsv', force: false }]);
+  });
+
+  it('reads Ctrl-C inside a chunk as Ctrl-C', async () => {
+    const x = await explorer({ data: fakeExplorerData().data });
+    await x.press('jj\x03');
+    expect(x.exits.map((e) => e.code)).toEqual([130]);
+  });
+});
+
 describe('the narrow layout (60×20)', () => {
   it('drops the least important columns and fits every line', async () => {
     const x = await explorer({ data: fakeExplorerData().data, columns: 60, rows: 20 });
