@@ -9,7 +9,7 @@ import { detailLines } from './detail.js';
 import { headerLines } from './header.js';
 import { useTerminalSize } from './hooks/use-terminal-size.js';
 import { DETAIL_HINT, DETAIL_HINT_ASCII, HINT, HINT_ASCII, KEYS, splitKeys } from './keys.js';
-import { barScale, clampCursor, SORT_LABEL, tableColumns, windowStart } from './model.js';
+import { barScale, clampCursor, MIN_COLUMNS, MIN_ROWS, screenLayout, SORT_LABEL, tableColumns, windowStart } from './model.js';
 import { initialState, reduce, shownSlices } from './state.js';
 import type { ExplorerData } from './session.js';
 import type { Span } from './theme.js';
@@ -45,14 +45,19 @@ function lineOf(text: string, style: Omit<Span, 'text'> = {}): Span[] {
   return [{ text, ...style }];
 }
 
+/** What a terminal too small to draw in shows (src/tui/model.ts, screenLayout). */
+const TOO_SMALL = `floorgap: enlarge the window (at least ${MIN_ROWS} rows and ${MIN_COLUMNS} columns)`;
+
 /**
  * The explorer: header, slice table (or detail pane, grouping picker, help), status line and key
- * hints, never taller than the terminal minus one line. All keyboard; see keys.ts.
+ * hints, never taller than the terminal minus one line, at any height (screenLayout in model.ts says
+ * what is dropped on short terminals). All keyboard; see keys.ts.
  */
 export function App(props: AppProps) {
   const size = useTerminalSize({ columns: props.columns, rows: props.rows });
-  const width = Math.max(20, size.columns);
-  const height = Math.max(8, size.rows - 1); // ink clears the scrollback when a frame fills the screen
+  const layout = screenLayout(size.columns, size.rows);
+  const width = Math.max(MIN_COLUMNS, size.columns);
+  const height = layout.lines;
   const [data, setData] = useState<ExplorerData | null>(null);
   const [failure, setFailure] = useState<string | null>(null);
   const [progress, setProgress] = useState<LoadProgress | null>(null);
@@ -105,7 +110,7 @@ export function App(props: AppProps) {
   const hasMismatch = Boolean(report?.overall.gaps.mismatch);
   const columns = useMemo(() => tableColumns(width, { intervals, mismatch: hasMismatch }), [width, intervals, hasMismatch]);
   const scale = useMemo(() => barScale(shown), [shown]);
-  const bodyHeight = Math.max(1, height - 3 - 1 - 2);
+  const bodyHeight = Math.max(1, layout.body - 1); // table rows: the body less the table's header line
   const start = windowStart(shown.length, cursor, bodyHeight, startRef.current);
   startRef.current = start;
   const drillColumns = useMemo(() => (data && selected ? data.columns.filter((c) => !(c in selected.key)) : []), [data, selected]);
@@ -157,7 +162,7 @@ export function App(props: AppProps) {
   }, [mode, data, selected, drillColumn]);
 
   // the detail pane's lines, and how far they can scroll (told to the reducer so ↑ works at once)
-  const detailRoom = height - 3 - 2;
+  const detailRoom = Math.max(1, layout.body);
   const detail = useMemo(
     () => (mode === 'detail' && selected && report ? detailLines(selected, report, { drillColumn, drill, examples }, width) : null),
     [mode, selected, report, drillColumn, drill, examples, width],
@@ -175,13 +180,22 @@ export function App(props: AppProps) {
   });
 
   // ---- frame -------------------------------------------------------------------------------------
+  if (layout.tooSmall) {
+    return (
+      <Box flexDirection="column" width={Math.max(1, size.columns)} height={height}>
+        {height > 0 ? <Line spans={lineOf(truncate(TOO_SMALL, size.columns))} color={props.color} /> : null}
+      </Box>
+    );
+  }
   const lines: { spans: Span[]; selected?: boolean }[] = [];
   if (!report) {
-    lines.push({ spans: lineOf('floorgap', { bold: true }) });
     if (failure) {
-      lines.push({ spans: lineOf('') });
-      for (const l of wrapText(`floorgap: ${sanitize(failure)}`, width)) lines.push({ spans: lineOf(l, { color: 'red' }) });
+      const message = wrapText(`floorgap: ${sanitize(failure)}`, width);
+      // the title and a blank line above the message, when they fit with it
+      if (message.length + 2 <= height) lines.push({ spans: lineOf('floorgap', { bold: true }) }, { spans: lineOf('') });
+      for (const l of message) lines.push({ spans: lineOf(l, { color: 'red' }) });
     } else {
+      lines.push({ spans: lineOf('floorgap', { bold: true }) });
       const pct = progress?.percent;
       const bar = pct !== null && pct !== undefined ? progressBar(pct, Math.min(40, width - 20), props.ascii) : '';
       lines.push({ spans: lineOf(truncate(`loading ${sanitize(props.title)}`, width)) });
@@ -190,7 +204,7 @@ export function App(props: AppProps) {
     return <Frame lines={lines} width={width} height={height} color={props.color} />;
   }
 
-  for (const l of headerLines(report, width)) lines.push({ spans: l });
+  if (layout.header) for (const l of headerLines(report, width)) lines.push({ spans: l });
   if (mode === 'help') {
     lines.push({ spans: lineOf('keys', { bold: true }) });
     for (const [k, what] of KEYS) lines.push({ spans: lineOf(truncate(`  ${k.padEnd(20)} ${what}`, width)) });
@@ -230,18 +244,18 @@ export function App(props: AppProps) {
         />
         {shown.length === 0 ? <Text>{filter ? '  no slice matches the filter (Esc clears it)' : '  no slices'}</Text> : null}
         <Box flexGrow={1} />
-        <Line spans={statusSpans()} color={props.color} />
+        {layout.status ? <Line spans={statusSpans()} color={props.color} /> : null}
         <Line spans={bottomSpans()} color={props.color} />
       </Box>
     );
   }
   return (
     <Box flexDirection="column" width={width} height={height}>
-      {lines.slice(0, Math.max(0, height - 2)).map((l, i) => (
+      {lines.slice(0, Math.max(0, height - (layout.status ? 2 : 1))).map((l, i) => (
         <Line key={i} spans={l.spans} color={props.color} selected={l.selected} />
       ))}
       <Box flexGrow={1} />
-      <Line spans={statusSpans()} color={props.color} />
+      {layout.status ? <Line spans={statusSpans()} color={props.color} /> : null}
       <Line spans={bottomSpans()} color={props.color} />
     </Box>
   );

@@ -327,6 +327,43 @@ async function waitForTmux(t: TmuxSession, test: (lines: string[]) => boolean, w
   }
 }
 
+describe('short terminals', () => {
+  /** src/tui/App.tsx: what a terminal of fewer than 4 rows shows */
+  const NOTE = 'floorgap: enlarge the window (at least 4 rows and 20 columns)';
+  /** what the frame shows at `rows` (screenLayout in src/tui/model.ts), always within rows − 1 lines */
+  const expectedAt = (rows: number) => (l: string[]) => {
+    if (l[rows - 1] !== '') return false;
+    if (rows === 1) return true;
+    if (rows <= 3) return l[0] === NOTE;
+    if (rows === 4) return /^ {3}slice /.test(l[0]) && /^↑↓ move /.test(l[2]);
+    return TABLE.test(l[rows - 3]) && /^↑↓ move /.test(l[rows - 2]) && (rows >= 10) === l[0].startsWith('floorgap ');
+  };
+  /** waits until nothing has been written for `ms` */
+  const quiet = async (p: PtySession, ms = 300) => {
+    let seen = -1;
+    while (p.raw().length !== seen) {
+      seen = p.raw().length;
+      await new Promise((r) => setTimeout(r, ms));
+    }
+  };
+
+  it('resized to every height from 10 rows down to 1 and back, the frame keeps the last row free', async () => {
+    const p = start(['explore', ...SAMPLE]);
+    await p.waitFor(TABLE, WAIT);
+    for (const rows of [10, 9, 8, 7, 6, 5, 4, 3, 2, 1, 2, 5, 8, 24]) {
+      p.resize(COLS, rows);
+      await p.waitUntil(expectedAt(rows), WAIT, `the frame laid out for ${COLS}×${rows}`);
+      await quiet(p);
+      expect(expectedAt(rows)(p.screen()), `${rows} rows:\n${p.screen().join('\n')}`).toBe(true);
+      expectFrameFits(p);
+    }
+    await p.press('q');
+    expect(await p.exited()).toEqual({ exitCode: 0, signal: 0 });
+    expect(p.raw().includes('\x1b[3J'), 'ESC [ 3 J written').toBe(false);
+    expectRestored(p);
+  }, 90_000);
+});
+
 describe('hostile slice values on a real terminal', () => {
   it('control sequences from the data reach the screen as visible escapes, never as live ones', async () => {
     // test/fixtures/bad/control-values.csv: stations "S1 ESC[2J", "S2 OSC 52 (clipboard write) BEL", "S3 BEL", "S4 RLO evil"

@@ -293,6 +293,91 @@ describe('the narrow layout (60×20)', () => {
   });
 });
 
+describe('short terminals: never more than rows − 1 lines', () => {
+  /** the frame's lines; an empty frame (ink wrote nothing) has none */
+  const frameLines = (x: Explorer) => (x.frame() === '' ? [] : screen(x));
+  const NOTE = 'floorgap: enlarge the window (at least 4 rows and 20 columns)'; // src/tui/App.tsx
+
+  it('fits every screen at every height from 1 to 12 rows', async () => {
+    const screens: [string, string[]][] = [
+      ['table', []],
+      ['detail', [KEY.enter]],
+      ['scrolled detail', ['j', 'j', 'j']],
+      ['table', [KEY.enter]],
+      ['filter', ['/', 'd']],
+      ['table', [KEY.escape]],
+      ['picker', ['g']],
+      ['table', [KEY.escape]],
+      ['help', ['?']],
+      ['table', ['x']],
+      ['export prompt', ['e']],
+    ];
+    for (let rows = 1; rows <= 12; rows++) {
+      const x = await explorer({ data: fakeExplorerData().data, columns: 80, rows });
+      for (const [name, keys] of screens) {
+        await x.press(...keys);
+        const lines = frameLines(x);
+        expect(lines.length, `${name} at ${rows} rows:\n${lines.join('\n')}`).toBeLessThanOrEqual(rows - 1);
+        for (const l of lines) expect(displayWidth(l), l).toBeLessThanOrEqual(80);
+      }
+      x.unmount();
+    }
+  });
+
+  it('fits the loading screen and a failed load at every height from 1 to 12 rows', async () => {
+    for (let rows = 1; rows <= 12; rows++) {
+      const a = renderExplorer({ load: () => new Promise(() => undefined), rows });
+      const b = renderExplorer({ load: () => Promise.reject(new Error('cannot read runs/preds.csv: no such file')), rows });
+      open.push(a, b);
+      await settle();
+      for (const x of [a, b]) expect(frameLines(x).length, `${rows} rows:\n${x.frame()}`).toBeLessThanOrEqual(rows - 1);
+    }
+  });
+
+  it('shows nothing at 1 row and one line asking for a larger window at 2 and 3 rows', async () => {
+    const one = await explorer({ data: fakeExplorerData().data, rows: 1 });
+    expect(frameLines(one)).toEqual([]);
+    for (const rows of [2, 3]) {
+      const x = await explorer({ data: fakeExplorerData().data, rows });
+      expect(frameLines(x)).toEqual([NOTE]);
+    }
+    // and at fewer than 20 columns, cut to the width (truncate in src/render/sanitize.ts: 9 characters and …)
+    const narrow = await explorer({ data: fakeExplorerData().data, columns: 10, rows: 24 });
+    expect(frameLines(narrow)).toEqual(['floorgap:…']);
+  });
+
+  it('drops the status line below 5 rows and the header below 10 rows, keeping the table and the key line', async () => {
+    // fixture (hand-built) rows in report order; 80 columns as in the 80×24 test above
+    const header = '   station · lighting  floor   dev  bias   var  mism  head focus      gaps';
+    const status = 'sort report order ↓ · 7 slices · 0 marked · 1/7';
+    const hint = `${HINT.slice(0, 79)}…`;
+    const at = async (rows: number) => frameLines(await explorer({ data: fakeExplorerData().data, rows }));
+    // 4 rows: table header, one row, key line (3 = rows − 1 lines)
+    const four = await at(4);
+    expect([four[0], four[1].slice(0, 12), four[2]]).toEqual([header, ' * S5 · dome', hint]);
+    expect(four).toHaveLength(3);
+    // 5 rows: the status line comes back
+    expect((await at(5)).filter((l) => l === status || l === hint)).toEqual([status, hint]);
+    // 9 rows: no header lines; table header, 5 rows (8 − 3), status, key line
+    const nine = await at(9);
+    expect(nine[0]).toBe(header);
+    expect(nine.slice(1, 6).map((l) => l.slice(0, 12))).toEqual(ROWS_80.slice(0, 5).map((r) => r.slice(0, 12)));
+    expect(nine.slice(6)).toEqual([status, hint]);
+    // 10 rows: the three header lines, table header, 3 rows (9 − 6), status, key line
+    const ten = await at(10);
+    expect(ten[0].startsWith('floorgap preds.csv · ')).toBe(true);
+    expect(ten[3]).toBe(header);
+    expect(ten.slice(7)).toEqual([status, hint]);
+    expect(ten).toHaveLength(9);
+  });
+
+  it('keeps the prompt on the last line at 4 rows', async () => {
+    const x = await explorer({ data: fakeExplorerData().data, rows: 4 });
+    await x.press('/', 'd', 'o');
+    expect(frameLines(x)[2]).toBe('/do▏ (Enter keeps, Esc clears)');
+  });
+});
+
 describe('the detail pane', () => {
   it('shows focus, the lever, the numbers with intervals, the breakdown and examples (120×40)', async () => {
     const { data, calls } = fakeExplorerData();
