@@ -1,8 +1,10 @@
 import { Box, Text, useInput } from 'ink';
 import { useEffect, useMemo, useReducer, useRef, useState } from 'react';
 import type { ErrorExample } from '../engine/examples.js';
+import { failureText } from '../render/failure.js';
 import { sanitize, truncate } from '../render/sanitize.js';
 import type { SliceReport } from '../triage/types.js';
+import { exitCodeOf, FloorgapError } from '../util/error.js';
 import { Line } from './components/Line.js';
 import { SliceTable } from './components/SliceTable.js';
 import { detailLines } from './detail.js';
@@ -33,7 +35,11 @@ export interface AppProps {
   /** fixed size (tests, benchmarks); otherwise the terminal's, following resizes */
   readonly columns?: number;
   readonly rows?: number;
-  /** called once: 0 after q, 130 after Ctrl-C, 2 with the error when loading failed */
+  /**
+   * called once: 0 after q, 130 after Ctrl-C; with the error when one ended the explorer (loading
+   * failed, or an internal error in a regroup, the detail pane or an export), and its exit code
+   * (`exitCodeOf`: 2 for a FloorgapError, 3 for an internal error); the caller prints the error
+   */
   readonly onExit: (code: number, error?: unknown) => void;
   /** the path the export prompt proposes */
   readonly defaultExportPath: () => string;
@@ -59,7 +65,7 @@ export function App(props: AppProps) {
   const width = Math.max(MIN_COLUMNS, size.columns);
   const height = layout.lines;
   const [data, setData] = useState<ExplorerData | null>(null);
-  const [failure, setFailure] = useState<string | null>(null);
+  const [failure, setFailure] = useState<{ readonly error: unknown } | null>(null);
   const [progress, setProgress] = useState<LoadProgress | null>(null);
   const [elapsed, setElapsed] = useState(0);
   const [state, dispatch] = useReducer(reduce, initialState);
@@ -71,6 +77,11 @@ export function App(props: AppProps) {
     if (exited.current) return;
     exited.current = true;
     props.onExit(code, error);
+  };
+  /** a failed request: a FloorgapError is a message on the status line (`what: message`), anything else ends the explorer */
+  const failed = (what: string, show: (message: string) => void = (m) => dispatch({ type: 'done', message: m })) => (e: unknown) => {
+    if (e instanceof FloorgapError) show(`${what}: ${e.message}`);
+    else exit(exitCodeOf(e), e);
   };
   const { report, mode, sortKey, descending, filter, draft, marked, intervals, pickerCursor, picked, detailScroll, message, busy } = state;
 
@@ -93,8 +104,8 @@ export function App(props: AppProps) {
       (e: unknown) => {
         if (!alive) return;
         clearInterval(timer);
-        setFailure(e instanceof Error ? e.message : String(e));
-        setTimeout(() => exit(2, e), 1200);
+        setFailure({ error: e });
+        setTimeout(() => exit(exitCodeOf(e), e), 1200);
       },
     );
     return () => {
@@ -129,13 +140,10 @@ export function App(props: AppProps) {
     if (r.kind === 'regroup') {
       data.regroup(r.by).then(
         (next) => dispatch({ type: 'regrouped', report: next, message: r.by.length ? `grouped by ${r.by.join(' × ')}` : 'overview: one-column slices' }),
-        (e: unknown) => dispatch({ type: 'done', message: `regroup failed: ${e instanceof Error ? e.message : String(e)}` }),
+        failed('regroup failed'),
       );
     } else if (r.kind === 'export') {
-      data.exportSlices(r.slices, r.path, r.force).then(
-        (m) => dispatch({ type: 'done', message: m }),
-        (e: unknown) => dispatch({ type: 'done', message: `export failed: ${e instanceof Error ? e.message : String(e)}` }),
-      );
+      data.exportSlices(r.slices, r.path, r.force).then((m) => dispatch({ type: 'done', message: m }), failed('export failed'));
     }
     // eslint-disable-next-line react-hooks/exhaustive-deps
   }, [state.requestId]);
@@ -149,12 +157,12 @@ export function App(props: AppProps) {
     if (drillColumn) {
       data.drill(selected, drillColumn).then(
         (d) => alive && setDrill(d),
-        (e: unknown) => alive && dispatch({ type: 'done', message: `breakdown: ${e instanceof Error ? e.message : String(e)}` }),
+        failed('breakdown', (m) => alive && dispatch({ type: 'done', message: m })),
       );
     }
     data.examples(selected).then(
       (x) => alive && setExamples(x),
-      (e: unknown) => alive && setExamples(`examples: ${e instanceof Error ? e.message : String(e)}`),
+      failed('examples', (m) => alive && setExamples(m)),
     );
     return () => {
       alive = false;
@@ -173,7 +181,7 @@ export function App(props: AppProps) {
   }, [detail, detailMax]);
 
   useInput((input, key) => {
-    if (failure) return exit(key.ctrl && input === 'c' ? 130 : 2, new Error(failure));
+    if (failure) return key.ctrl && input === 'c' ? exit(130) : exit(exitCodeOf(failure.error), failure.error);
     const common = { defaultExportPath: props.defaultExportPath(), fileExists: props.fileExists };
     // several keys in one read (key repeat, a paste, a burst over SSH) are applied one by one, in order
     for (const k of splitKeys(input, key)) dispatch({ type: 'key', input: k.input, key: k.key, ...common });
@@ -190,7 +198,7 @@ export function App(props: AppProps) {
   const lines: { spans: Span[]; selected?: boolean }[] = [];
   if (!report) {
     if (failure) {
-      const message = wrapText(`floorgap: ${sanitize(failure)}`, width);
+      const message = wrapText(failureText(failure.error, false).trimEnd(), width);
       // the title and a blank line above the message, when they fit with it
       if (message.length + 2 <= height) lines.push({ spans: lineOf('floorgap', { bold: true }) }, { spans: lineOf('') });
       for (const l of message) lines.push({ spans: lineOf(l, { color: 'red' }) });

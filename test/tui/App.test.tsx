@@ -5,6 +5,8 @@ import { stripAnsi } from '../../src/render/ansi.js';
 import { displayWidth } from '../../src/render/sanitize.js';
 import type { Report } from '../../src/triage/types.js';
 import { HINT } from '../../src/tui/keys.js';
+import type { ExplorerData } from '../../src/tui/session.js';
+import { FloorgapError } from '../../src/util/error.js';
 import { LEVER } from '../../src/tui/model.js';
 import { EXAMPLES_FIXTURE, FAKE_EXPORT_PATH, fakeExplorerData, sliceOfRank } from '../helpers/explorer-fixture.js';
 import { KEY, linesOf, renderExplorer, settle, type Explorer, type ExplorerProps } from '../helpers/ink-frame.js';
@@ -98,7 +100,7 @@ describe('loading', () => {
   });
 
   it('shows why loading failed and exits with 2 after a moment', async () => {
-    const error = new Error('cannot read runs/bad\u001b[2J.csv: no such file');
+    const error = new FloorgapError('cannot read runs/bad\u001b[2J.csv: no such file');
     const x = renderExplorer({ load: () => Promise.reject(error) });
     open.push(x);
     await settle();
@@ -109,9 +111,20 @@ describe('loading', () => {
     expect(x.exits).toEqual([{ code: 2, error }]);
   });
 
+  it('shows an internal error as one line and exits with 3 after a moment', async () => {
+    const error = new TypeError("Cannot read properties of undefined (reading 'slices')\n    at load (x.js:1:1)");
+    const x = renderExplorer({ load: () => Promise.reject(error) });
+    open.push(x);
+    await settle();
+    // the line the CLI prints for an internal error (failureText in src/render/failure.ts): first line only
+    expect(screen(x).slice(0, 3)).toEqual(['floorgap', '', "floorgap: internal error: Cannot read properties of undefined (reading 'slices')"]);
+    await new Promise((r) => setTimeout(r, 1300)); // the App waits 1,200 ms (src/tui/App.tsx)
+    expect(x.exits).toEqual([{ code: 3, error }]);
+  });
+
   it('exits at once on a key after a failed load: 2, or 130 for Ctrl-C', async () => {
-    const a = renderExplorer({ load: () => Promise.reject(new Error('bad')) });
-    const b = renderExplorer({ load: () => Promise.reject(new Error('bad')) });
+    const a = renderExplorer({ load: () => Promise.reject(new FloorgapError('bad')) });
+    const b = renderExplorer({ load: () => Promise.reject(new FloorgapError('bad')) });
     open.push(a, b);
     await settle();
     await a.press('x');
@@ -559,6 +572,39 @@ describe('quitting', () => {
     await settle();
     await x.press(KEY.ctrlC);
     expect(x.exits.map((e) => e.code)).toEqual([130]);
+  });
+});
+
+describe('errors after loading', () => {
+  // a bug (any error that is not a FloorgapError) ends the explorer with exit 3 and the error; a
+  // FloorgapError (a file that went away, a grouping that needs the rows) is a message and the explorer goes on
+  const bug = new TypeError("Cannot read properties of undefined (reading 'cells')");
+  const failing = (part: Partial<ExplorerData>): ExplorerData => ({ ...fakeExplorerData().data, ...part });
+
+  it('regroup: an internal error exits 3; a FloorgapError is a message on the status line', async () => {
+    const x = await explorer({ data: failing({ regroup: () => Promise.reject(bug) }) });
+    await x.press('g', ' ', KEY.enter);
+    expect(x.exits).toEqual([{ code: 3, error: bug }]);
+    const y = await explorer({ data: failing({ regroup: () => Promise.reject(new FloorgapError('preds.csv: cannot read the table (no such file)')) }) });
+    await y.press('g', ' ', KEY.enter);
+    expect(y.exits).toEqual([]);
+    // the status line, cut to 80 columns (truncate in src/render/sanitize.ts)
+    expect(screen(y)[21]).toBe('sort report order ↓ · 7 slices · 0 marked · 1/7  regroup failed: preds.csv: can…');
+  });
+
+  it('detail pane: an internal error in the breakdown or the examples exits 3', async () => {
+    const a = await explorer({ data: failing({ drill: () => Promise.reject(bug) }) });
+    await a.press(KEY.enter);
+    expect(a.exits).toEqual([{ code: 3, error: bug }]);
+    const b = await explorer({ data: failing({ examples: () => Promise.reject(bug) }) });
+    await b.press(KEY.enter);
+    expect(b.exits).toEqual([{ code: 3, error: bug }]);
+  });
+
+  it('export: an internal error exits 3', async () => {
+    const x = await explorer({ data: failing({ exportSlices: () => Promise.reject(bug) }) });
+    await x.press('e', KEY.enter);
+    expect(x.exits).toEqual([{ code: 3, error: bug }]);
   });
 });
 

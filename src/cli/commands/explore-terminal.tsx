@@ -5,14 +5,14 @@ import { watchProgress, type ScanProgress } from '../../engine/progress.js';
 import { App } from '../../tui/App.js';
 import { explorerData, type Exporter } from '../../tui/session.js';
 import type { SliceReport } from '../../triage/types.js';
-import { FloorgapError } from '../../util/error.js';
+import { FloorgapError, INTERNAL_EXIT } from '../../util/error.js';
 import { analyzeWith } from '../analyze.js';
 import type { CliIO } from '../io.js';
 import { useColor } from '../io.js';
 import { toTriageOptions } from '../options.js';
 import { runExport, type ExportArgs } from './export.js';
 import { claimSignals } from '../signals.js';
-import { sanitize } from '../../render/sanitize.js';
+import { reportFailure } from '../failure.js';
 import type { ExploreArgs } from './explore.js';
 
 /** A slice key as `--slice` text: `col=value` pairs, commas, `=` and backslashes escaped. */
@@ -100,6 +100,7 @@ export async function runExplorer(args: ExploreArgs, io: CliIO, argv: readonly s
 
   return new Promise<number>((resolve) => {
     let finished = false;
+    /** ends the explorer: with an error, its line goes to stderr once the terminal is restored, and it sets the code */
     const finish = (code: number, error?: unknown) => {
       if (finished) return;
       finished = true;
@@ -113,15 +114,11 @@ export async function runExplorer(args: ExploreArgs, io: CliIO, argv: readonly s
       // released on the next turn: the signal that ended the explorer is still being delivered
       setImmediate(release);
       process.off('uncaughtException', onCrash);
-      if (error !== undefined) {
-        const msg = error instanceof Error ? error.message : String(error);
-        io.stderr.write(`floorgap: ${sanitize(msg.split('\n')[0])}\n`);
-      }
-      resolve(code);
+      resolve(error === undefined ? code : reportFailure(error, io));
     };
     // Ctrl-C arrives as a key in raw mode; SIGINT from elsewhere, SIGTERM and SIGHUP come here
     const release = claimSignals((_signal, code) => finish(code));
-    const onCrash = (e: unknown) => finish(3, e);
+    const onCrash = (e: unknown) => finish(INTERNAL_EXIT, e);
     process.on('uncaughtException', onCrash);
 
     const instance = render(
@@ -141,11 +138,13 @@ export async function runExplorer(args: ExploreArgs, io: CliIO, argv: readonly s
             stop();
           }
         }}
-        onExit={(code, error) => finish(code, code === 2 ? error : undefined)}
+        onExit={finish}
         defaultExportPath={() => `floorgap-export-${new Date().toISOString().slice(0, 19).replace(/[:T]/g, '-')}.csv`}
         fileExists={(p) => existsSync(p)}
       />,
       { stdout: withoutScrollbackClear(stdout), stdin, stderr: io.stderr as NodeJS.WriteStream, exitOnCtrlC: false, patchConsole: false },
     );
+    // an error thrown while drawing ends ink's render (ink shows its own error screen): end the explorer on it
+    instance.waitUntilExit().catch((e: unknown) => finish(INTERNAL_EXIT, e));
   });
 }
