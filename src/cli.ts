@@ -3,7 +3,7 @@
 // development build profiles every render and is several times slower. So set it before loading.
 process.env.NODE_ENV ??= 'production';
 const { main } = await import('./cli/index.js');
-const { sanitize } = await import('./render/sanitize.js');
+const { reportFailure } = await import('./cli/failure.js');
 const { installSignalHandlers } = await import('./cli/signals.js');
 installSignalHandlers(process.stderr);
 
@@ -21,7 +21,6 @@ main(process.argv.slice(2), io).then(
     process.exitCode = code;
   },
   (e: unknown) => {
-    process.stderr.write(`floorgap: internal error: ${sanitize((e instanceof Error ? e.message : String(e)).split('\n')[0])}\n`);
-    process.exitCode = 3;
+    process.exitCode = reportFailure(e, io);
   },
 );

@@ -1,8 +1,7 @@
 import yargs, { type Argv } from 'yargs';
-import { FloorgapError } from '../util/error.js';
+import { FloorgapError, INTERNAL_EXIT } from '../util/error.js';
 import { readConfig } from '../io/config.js';
 import { checkBounds, type ShowOption } from './bounds.js';
-import { sanitize } from '../render/index.js';
 import { VERSION } from '../version.js';
 import { checkOptions, runCheck, type CheckArgs } from './commands/check.js';
 import { demoOptions, runDemo, type DemoArgs } from './commands/demo.js';
@@ -10,10 +9,11 @@ import { exportOptions, runExport, type ExportArgs } from './commands/export.js'
 import { exploreOptions, runExplore, type ExploreArgs } from './commands/explore.js';
 import { reportOptions, runReport, type ReportArgs } from './commands/report.js';
 import { runSql, sqlOptions, type SqlArgs } from './commands/sql.js';
+import { reportFailure } from './failure.js';
 import type { CliIO } from './io.js';
 
 /** Exit codes: 0 fine, 1 a check found violations, 2 bad usage or input, 3 an unexpected internal error. */
-export const EXIT = { ok: 0, violations: 1, usage: 2, internal: 3 } as const;
+export const EXIT = { ok: 0, violations: 1, usage: 2, internal: INTERNAL_EXIT } as const;
 
 function configPath(argv: readonly string[]): string | null {
   for (let i = 0; i < argv.length; i++) {
@@ -142,14 +142,7 @@ export async function main(argv: readonly string[], io: CliIO): Promise<number> 
     });
     if (helpText) io.stdout.write(helpText.endsWith('\n') ? helpText : helpText + '\n');
   } catch (e) {
-    if (e instanceof FloorgapError) {
-      io.stderr.write(`floorgap: ${sanitize(e.message)}\n`);
-      return e.exitCode;
-    }
-    const msg = e instanceof Error ? e.message : String(e);
-    io.stderr.write(`floorgap: internal error: ${sanitize(msg.split('\n')[0])}\n`);
-    if (io.env.FLOORGAP_DEBUG && e instanceof Error && e.stack) io.stderr.write(sanitize(e.stack) + '\n');
-    return EXIT.internal;
+    return reportFailure(e, io);
   }
   return code;
 }

@@ -1,15 +1,17 @@
 import { Box, Text, useInput } from 'ink';
 import { useEffect, useMemo, useReducer, useRef, useState } from 'react';
 import type { ErrorExample } from '../engine/examples.js';
+import { failureText } from '../render/failure.js';
 import { sanitize, truncate } from '../render/sanitize.js';
 import type { SliceReport } from '../triage/types.js';
+import { exitCodeOf, FloorgapError } from '../util/error.js';
 import { Line } from './components/Line.js';
 import { SliceTable } from './components/SliceTable.js';
 import { detailLines } from './detail.js';
 import { headerLines } from './header.js';
 import { useTerminalSize } from './hooks/use-terminal-size.js';
-import { DETAIL_HINT, DETAIL_HINT_ASCII, HINT, HINT_ASCII, KEYS } from './keys.js';
-import { barScale, clampCursor, SORT_LABEL, tableColumns, windowStart } from './model.js';
+import { DETAIL_HINT, DETAIL_HINT_ASCII, HINT, HINT_ASCII, KEYS, splitKeys } from './keys.js';
+import { barScale, clampCursor, MIN_COLUMNS, MIN_ROWS, screenLayout, SORT_LABEL, tableColumns, windowStart } from './model.js';
 import { initialState, reduce, shownSlices } from './state.js';
 import type { ExplorerData } from './session.js';
 import type { Span } from './theme.js';
@@ -33,7 +35,11 @@ export interface AppProps {
   /** fixed size (tests, benchmarks); otherwise the terminal's, following resizes */
   readonly columns?: number;
   readonly rows?: number;
-  /** called once: 0 after q, 130 after Ctrl-C, 2 with the error when loading failed */
+  /**
+   * called once: 0 after q, 130 after Ctrl-C; with the error when one ended the explorer (loading
+   * failed, or an internal error in a regroup, the detail pane or an export), and its exit code
+   * (`exitCodeOf`: 2 for a FloorgapError, 3 for an internal error); the caller prints the error
+   */
   readonly onExit: (code: number, error?: unknown) => void;
   /** the path the export prompt proposes */
   readonly defaultExportPath: () => string;
@@ -45,16 +51,21 @@ function lineOf(text: string, style: Omit<Span, 'text'> = {}): Span[] {
   return [{ text, ...style }];
 }
 
+/** What a terminal too small to draw in shows (src/tui/model.ts, screenLayout). */
+const TOO_SMALL = `floorgap: enlarge the window (at least ${MIN_ROWS} rows and ${MIN_COLUMNS} columns)`;
+
 /**
  * The explorer: header, slice table (or detail pane, grouping picker, help), status line and key
- * hints, never taller than the terminal minus one line. All keyboard; see keys.ts.
+ * hints, never taller than the terminal minus one line, at any height (screenLayout in model.ts says
+ * what is dropped on short terminals). All keyboard; see keys.ts.
  */
 export function App(props: AppProps) {
   const size = useTerminalSize({ columns: props.columns, rows: props.rows });
-  const width = Math.max(20, size.columns);
-  const height = Math.max(8, size.rows - 1); // ink clears the scrollback when a frame fills the screen
+  const layout = screenLayout(size.columns, size.rows);
+  const width = Math.max(MIN_COLUMNS, size.columns);
+  const height = layout.lines;
   const [data, setData] = useState<ExplorerData | null>(null);
-  const [failure, setFailure] = useState<string | null>(null);
+  const [failure, setFailure] = useState<{ readonly error: unknown } | null>(null);
   const [progress, setProgress] = useState<LoadProgress | null>(null);
   const [elapsed, setElapsed] = useState(0);
   const [state, dispatch] = useReducer(reduce, initialState);
@@ -66,6 +77,11 @@ export function App(props: AppProps) {
     if (exited.current) return;
     exited.current = true;
     props.onExit(code, error);
+  };
+  /** a failed request: a FloorgapError is a message on the status line (`what: message`), anything else ends the explorer */
+  const failed = (what: string, show: (message: string) => void = (m) => dispatch({ type: 'done', message: m })) => (e: unknown) => {
+    if (e instanceof FloorgapError) show(`${what}: ${e.message}`);
+    else exit(exitCodeOf(e), e);
   };
   const { report, mode, sortKey, descending, filter, draft, marked, intervals, pickerCursor, picked, detailScroll, message, busy } = state;
 
@@ -88,8 +104,8 @@ export function App(props: AppProps) {
       (e: unknown) => {
         if (!alive) return;
         clearInterval(timer);
-        setFailure(e instanceof Error ? e.message : String(e));
-        setTimeout(() => exit(2, e), 1200);
+        setFailure({ error: e });
+        setTimeout(() => exit(exitCodeOf(e), e), 1200);
       },
     );
     return () => {
@@ -105,7 +121,7 @@ export function App(props: AppProps) {
   const hasMismatch = Boolean(report?.overall.gaps.mismatch);
   const columns = useMemo(() => tableColumns(width, { intervals, mismatch: hasMismatch }), [width, intervals, hasMismatch]);
   const scale = useMemo(() => barScale(shown), [shown]);
-  const bodyHeight = Math.max(1, height - 3 - 1 - 2);
+  const bodyHeight = Math.max(1, layout.body - 1); // table rows: the body less the table's header line
   const start = windowStart(shown.length, cursor, bodyHeight, startRef.current);
   startRef.current = start;
   const drillColumns = useMemo(() => (data && selected ? data.columns.filter((c) => !(c in selected.key)) : []), [data, selected]);
@@ -124,13 +140,10 @@ export function App(props: AppProps) {
     if (r.kind === 'regroup') {
       data.regroup(r.by).then(
         (next) => dispatch({ type: 'regrouped', report: next, message: r.by.length ? `grouped by ${r.by.join(' × ')}` : 'overview: one-column slices' }),
-        (e: unknown) => dispatch({ type: 'done', message: `regroup failed: ${e instanceof Error ? e.message : String(e)}` }),
+        failed('regroup failed'),
       );
     } else if (r.kind === 'export') {
-      data.exportSlices(r.slices, r.path, r.force).then(
-        (m) => dispatch({ type: 'done', message: m }),
-        (e: unknown) => dispatch({ type: 'done', message: `export failed: ${e instanceof Error ? e.message : String(e)}` }),
-      );
+      data.exportSlices(r.slices, r.path, r.force).then((m) => dispatch({ type: 'done', message: m }), failed('export failed'));
     }
     // eslint-disable-next-line react-hooks/exhaustive-deps
   }, [state.requestId]);
@@ -144,12 +157,12 @@ export function App(props: AppProps) {
     if (drillColumn) {
       data.drill(selected, drillColumn).then(
         (d) => alive && setDrill(d),
-        (e: unknown) => alive && dispatch({ type: 'done', message: `breakdown: ${e instanceof Error ? e.message : String(e)}` }),
+        failed('breakdown', (m) => alive && dispatch({ type: 'done', message: m })),
       );
     }
     data.examples(selected).then(
       (x) => alive && setExamples(x),
-      (e: unknown) => alive && setExamples(`examples: ${e instanceof Error ? e.message : String(e)}`),
+      failed('examples', (m) => alive && setExamples(m)),
     );
     return () => {
       alive = false;
@@ -157,7 +170,7 @@ export function App(props: AppProps) {
   }, [mode, data, selected, drillColumn]);
 
   // the detail pane's lines, and how far they can scroll (told to the reducer so ↑ works at once)
-  const detailRoom = height - 3 - 2;
+  const detailRoom = Math.max(1, layout.body);
   const detail = useMemo(
     () => (mode === 'detail' && selected && report ? detailLines(selected, report, { drillColumn, drill, examples }, width) : null),
     [mode, selected, report, drillColumn, drill, examples, width],
@@ -168,26 +181,29 @@ export function App(props: AppProps) {
   }, [detail, detailMax]);
 
   useInput((input, key) => {
-    if (failure) return exit(key.ctrl && input === 'c' ? 130 : 2, new Error(failure));
+    if (failure) return key.ctrl && input === 'c' ? exit(130) : exit(exitCodeOf(failure.error), failure.error);
     const common = { defaultExportPath: props.defaultExportPath(), fileExists: props.fileExists };
-    // several printable keys in one read (a paste, a burst over SSH) are applied one by one
-    const plain = !key.ctrl && !key.meta && !key.return && !key.escape && !key.tab && !key.backspace && !key.delete;
-    const chars = [...input];
-    if (plain && chars.length > 1 && !input.includes('\x1b')) {
-      for (const ch of chars) dispatch({ type: 'key', input: ch, key: {}, ...common });
-      return;
-    }
-    dispatch({ type: 'key', input, key, ...common });
+    // several keys in one read (key repeat, a paste, a burst over SSH) are applied one by one, in order
+    for (const k of splitKeys(input, key)) dispatch({ type: 'key', input: k.input, key: k.key, ...common });
   });
 
   // ---- frame -------------------------------------------------------------------------------------
+  if (layout.tooSmall) {
+    return (
+      <Box flexDirection="column" width={Math.max(1, size.columns)} height={height}>
+        {height > 0 ? <Line spans={lineOf(truncate(TOO_SMALL, size.columns))} color={props.color} /> : null}
+      </Box>
+    );
+  }
   const lines: { spans: Span[]; selected?: boolean }[] = [];
   if (!report) {
-    lines.push({ spans: lineOf('floorgap', { bold: true }) });
     if (failure) {
-      lines.push({ spans: lineOf('') });
-      for (const l of wrapText(`floorgap: ${sanitize(failure)}`, width)) lines.push({ spans: lineOf(l, { color: 'red' }) });
+      const message = wrapText(failureText(failure.error, false).trimEnd(), width);
+      // the title and a blank line above the message, when they fit with it
+      if (message.length + 2 <= height) lines.push({ spans: lineOf('floorgap', { bold: true }) }, { spans: lineOf('') });
+      for (const l of message) lines.push({ spans: lineOf(l, { color: 'red' }) });
     } else {
+      lines.push({ spans: lineOf('floorgap', { bold: true }) });
       const pct = progress?.percent;
       const bar = pct !== null && pct !== undefined ? progressBar(pct, Math.min(40, width - 20), props.ascii) : '';
       lines.push({ spans: lineOf(truncate(`loading ${sanitize(props.title)}`, width)) });
@@ -196,7 +212,7 @@ export function App(props: AppProps) {
     return <Frame lines={lines} width={width} height={height} color={props.color} />;
   }
 
-  for (const l of headerLines(report, width)) lines.push({ spans: l });
+  if (layout.header) for (const l of headerLines(report, width)) lines.push({ spans: l });
   if (mode === 'help') {
     lines.push({ spans: lineOf('keys', { bold: true }) });
     for (const [k, what] of KEYS) lines.push({ spans: lineOf(truncate(`  ${k.padEnd(20)} ${what}`, width)) });
@@ -236,18 +252,18 @@ export function App(props: AppProps) {
         />
         {shown.length === 0 ? <Text>{filter ? '  no slice matches the filter (Esc clears it)' : '  no slices'}</Text> : null}
         <Box flexGrow={1} />
-        <Line spans={statusSpans()} color={props.color} />
+        {layout.status ? <Line spans={statusSpans()} color={props.color} /> : null}
         <Line spans={bottomSpans()} color={props.color} />
       </Box>
     );
   }
   return (
     <Box flexDirection="column" width={width} height={height}>
-      {lines.slice(0, Math.max(0, height - 2)).map((l, i) => (
+      {lines.slice(0, Math.max(0, height - (layout.status ? 2 : 1))).map((l, i) => (
         <Line key={i} spans={l.spans} color={props.color} selected={l.selected} />
       ))}
       <Box flexGrow={1} />
-      <Line spans={statusSpans()} color={props.color} />
+      {layout.status ? <Line spans={statusSpans()} color={props.color} /> : null}
       <Line spans={bottomSpans()} color={props.color} />
     </Box>
   );

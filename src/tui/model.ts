@@ -116,6 +116,42 @@ export function clampCursor(cursor: number, total: number): number {
 }
 
 // ---------------------------------------------------------------------------------------------------
+// Screen layout
+
+/** The smallest terminal the explorer draws in; below it, one line asks for a larger window. */
+export const MIN_ROWS = 4;
+export const MIN_COLUMNS = 20;
+
+/** What the frame holds at a terminal size; it never uses more than rows − 1 lines. */
+export interface ScreenLayout {
+  /** lines the frame may use: rows − 1, so the last row stays free and the frame never fills the screen */
+  readonly lines: number;
+  /** fewer than MIN_ROWS rows or MIN_COLUMNS columns: only the note asking for a larger window (none at 1 row) */
+  readonly tooSmall: boolean;
+  /** the three header lines (10 rows or more) */
+  readonly header: boolean;
+  /** the status line (5 rows or more); the key line (or the open prompt) is always the last line */
+  readonly status: boolean;
+  /** lines between the header and the status line: the table (its header line and rows), detail, picker, help */
+  readonly body: number;
+}
+
+/**
+ * The layout for a terminal of `columns` × `rows`. Short terminals drop the header lines first (below
+ * 10 rows), then the status line (below 5), so the table, its key line and any prompt stay.
+ * @example
+ * screenLayout(80, 24); // => { lines: 23, tooSmall: false, header: true, status: true, body: 18 }
+ * screenLayout(80, 4);  // => { lines: 3, tooSmall: false, header: false, status: false, body: 2 }
+ */
+export function screenLayout(columns: number, rows: number): ScreenLayout {
+  const lines = Math.max(0, rows - 1);
+  if (rows < MIN_ROWS || columns < MIN_COLUMNS) return { lines: Math.min(lines, 1), tooSmall: true, header: false, status: false, body: 0 };
+  const header = rows >= 10;
+  const status = rows >= 5;
+  return { lines, tooSmall: false, header, status, body: lines - (header ? 3 : 0) - (status ? 1 : 0) - 1 };
+}
+
+// ---------------------------------------------------------------------------------------------------
 // Table columns
 
 export type ColumnId = 'mark' | 'label' | 'rows' | 'share' | 'floor' | 'train' | 'dev' | 'bias' | 'variance' | 'mismatch' | 'headroom' | 'yield' | 'focus' | 'bar';

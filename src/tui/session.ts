@@ -1,6 +1,7 @@
 /**
  * The explorer's data side: the loaded cells stay in memory (and the engine stays open on the rows),
- * so regrouping, drilling down, examples and export never re-read what they do not need.
+ * so regrouping, drilling down, examples and export never re-read what they do not need. A read that
+ * fails later (the file changed or went away) is a FloorgapError naming the file, as when loading.
  */
 import type { Analysis } from '../cli/analyze.js';
 import type { Duck } from '../engine/duck.js';
@@ -10,6 +11,8 @@ import { cellsFor } from '../engine/slices.js';
 import type { Cell } from '../engine/types.js';
 import { buildReport } from '../triage/report.js';
 import type { Report, SliceReport } from '../triage/types.js';
+import { withReadErrors } from '../io/read-errors.js';
+import { error } from '../util/error.js';
 
 /** What the explorer asks of its data; a fake implements it in component tests. */
 export interface ExplorerData {
@@ -49,8 +52,9 @@ export function explorerData(duck: Duck | null, analysis: Analysis, exporter: Ex
   async function cellsCovering(by: readonly string[]): Promise<readonly Cell[]> {
     const id = [...by].sort().join('\u0000');
     if (groupingCovers(loaded.grouping, by) || scanned.has(id)) return cells;
-    if (!duck) throw new Error('this grouping needs the rows, and only cells were loaded');
-    cells = [...cells, ...(await scanGrouping(duck, loaded.plan, by))];
+    if (!duck) throw error('this grouping needs the rows, and only cells were loaded');
+    const open = duck;
+    cells = [...cells, ...(await withReadErrors(loaded.source.inputs, loaded.source.where, () => scanGrouping(open, loaded.plan, by)))];
     scanned.add(id);
     return cells;
   }
@@ -74,7 +78,8 @@ export function explorerData(duck: Duck | null, analysis: Analysis, exporter: Ex
       if (!duck) return 'examples need the rows (the input is ready-made cells)';
       if (!loaded.roles.score) return 'no score column: name it with --score to see the most confident errors';
       const runFilter = run !== null && loaded.roles.run ? { column: loaded.roles.run, value: run } : null;
-      return topErrors(duck, loaded.plan, slice.key, 6, runFilter);
+      const open = duck;
+      return withReadErrors(loaded.source.inputs, loaded.source.where, () => topErrors(open, loaded.plan, slice.key, 6, runFilter));
     },
     async exportSlices(slices, path, force) {
       if (!exporter) return 'export needs the rows (the input is ready-made cells)';

@@ -11,6 +11,20 @@ export class FloorgapError extends Error {
   }
 }
 
+/** The exit code of an unexpected internal error: a bug in floorgap, not a problem with the input. */
+export const INTERNAL_EXIT = 3;
+
+/**
+ * The exit code a failure ends a command with: a FloorgapError's own (2 for bad input or usage),
+ * {@link INTERNAL_EXIT} for anything else.
+ * @example
+ * exitCodeOf(error('bad')); // => 2
+ * exitCodeOf(new TypeError('x is undefined')); // => 3
+ */
+export function exitCodeOf(e: unknown): number {
+  return e instanceof FloorgapError ? e.exitCode : INTERNAL_EXIT;
+}
+
 /**
  * Creates a user-facing error: what was wrong, where, what was expected, and the fix if known.
  * @param message one line, no trailing period needed

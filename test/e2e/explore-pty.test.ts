@@ -14,7 +14,8 @@ import { afterAll, afterEach, beforeAll, describe, expect, it } from 'vitest';
 import { LEVER } from '../../src/tui/model.js';
 import type { Report, SliceReport } from '../../src/triage/types.js';
 import { KEY, spawnPty, type PtySession } from '../helpers/pty.js';
-import { CLI, runCli } from '../helpers/run-cli.js';
+import { CLI, ROOT, runCli } from '../helpers/run-cli.js';
+import { startTmux, tmuxAvailable, type TmuxSession } from '../helpers/tmux.js';
 
 const SAMPLE = ['data-samples/solder-joints.csv', '--floor-table', 'data-samples/inspector-floors.csv', '--annotators', 'insp_a,insp_b,insp_c'];
 const COLS = 80;
@@ -187,6 +188,13 @@ describe(`explore in a ${COLS}×${ROWS} terminal`, () => {
     expect(problems).toEqual([]);
   });
 
+  it('/ then "xyz", three Backspaces and Enter in one write: every key applies, the filter stays "low"', async () => {
+    await p.press('/', 'xyz\x7f\x7f\x7f\r'); // press writes each argument at once: one read for the burst
+    const lines = await p.waitUntil((l) => /^↑↓ move /.test(l[ROWS - 2]) && /filter "low" \(\d+ of \d+\)/.test(l[ROWS - 3]), WAIT, 'the prompt closed with the filter "low"');
+    for (const r of tableRows(lines, /^ {3}station · lighting /)) expect(r).toContain('low');
+    expectFrameFits(p);
+  });
+
   it('resizing to 60×20 lays the screen out again', async () => {
     p.resize(60, 20);
     const lines = await p.waitUntil((l) => l.some((x) => /^ {3}station · /.test(x)) && l.some((x) => TABLE.test(x)) && frameProblem(p) === null && l[0].length <= 60 && l[0].endsWith('…'), WAIT, 'the table laid out for 60 columns');
@@ -250,6 +258,110 @@ describe('stopping while the table loads', () => {
     expect(await p.exited(5_000)).toEqual({ exitCode: 0, signal: 0 });
     expectRestored(p);
   }, 30_000);
+});
+
+describe('the scrollback is never cleared', () => {
+  /** the sizes the window goes through: shorter, taller, shorter again, several times */
+  const SIZES: readonly (readonly [number, number])[] = [
+    [80, 16],
+    [80, 30],
+    [80, 12],
+    [80, 24],
+    [80, 10],
+    [80, 28],
+    [80, 14],
+  ];
+  /** the table laid out for the current size: status and key lines are the frame's last two (rows − 1 lines) */
+  const laidOut = (rows: number) => (l: string[]) => TABLE.test(l[rows - 3] ?? '') && /^↑↓ move /.test(l[rows - 2] ?? '') && l[rows - 1] === '';
+
+  it('resizing shorter and taller never writes ESC [ 3 J (erase the scrollback)', async () => {
+    const p = start(['explore', ...SAMPLE]);
+    await p.waitFor(TABLE, WAIT);
+    for (const [cols, rows] of SIZES) {
+      p.resize(cols, rows);
+      await p.waitUntil(laidOut(rows), WAIT, `the table laid out for ${cols}×${rows}`);
+    }
+    await p.press('q');
+    expect(await p.exited()).toEqual({ exitCode: 0, signal: 0 });
+    // ESC [ 3 J is "erase saved lines" (ECMA-48 ED with parameter 3, as xterm and tmux implement it)
+    expect(p.raw().includes('\x1b[3J'), 'ESC [ 3 J written').toBe(false);
+    expectRestored(p);
+  }, 60_000);
+
+  it('in tmux: the 180 lines written before the explorer are still in the scrollback after it quits', async (ctx) => {
+    if (!tmuxAvailable()) {
+      ctx.skip(); // the test above holds the byte-level guarantee
+      return;
+    }
+    const env: Record<string, string> = {};
+    for (const [k, v] of Object.entries(process.env)) if (v !== undefined && !['CI', 'CONTINUOUS_INTEGRATION', 'TMUX', 'TMUX_PANE'].includes(k)) env[k] = v;
+    const args = ['explore', ...SAMPLE].map((a) => `'${a}'`).join(' ');
+    // 180 numbered lines, then the explorer, then its exit code on the main screen
+    const t = startTmux(`i=1; while [ $i -le 180 ]; do echo "scrollback line $i"; i=$((i+1)); done; '${process.execPath}' '${CLI}' ${args}; echo "explorer exited $?"`, { cols: 80, rows: 24, cwd: ROOT, env });
+    try {
+      await t.waitFor(TABLE, WAIT);
+      const before = t.historySize();
+      // 180 lines and the explorer's command line on a 24-row pane: at least 180 − 24 lines scrolled off
+      expect(before).toBeGreaterThanOrEqual(180 - 24);
+      for (const [cols, rows] of SIZES) {
+        t.resize(cols, rows);
+        await waitForTmux(t, laidOut(rows), `the table laid out for ${cols}×${rows} in tmux`);
+      }
+      t.sendKeys('q');
+      await t.waitFor(/^explorer exited 0$/, WAIT);
+      expect(t.historySize()).toBeGreaterThanOrEqual(before);
+      const all = t.everything();
+      for (const n of [1, 2, 90, 179, 180]) expect(all, `scrollback line ${n}`).toContain(`scrollback line ${n}`);
+    } finally {
+      t.kill();
+    }
+  }, 60_000);
+});
+
+/** Polls a tmux pane until `test(screen)` holds. */
+async function waitForTmux(t: TmuxSession, test: (lines: string[]) => boolean, what: string): Promise<void> {
+  const deadline = Date.now() + WAIT;
+  while (!test(t.screen())) {
+    if (Date.now() > deadline) throw new Error(`timed out waiting for ${what}; screen:\n${t.screen().map((l) => `|${l}`).join('\n')}`);
+    await new Promise((r) => setTimeout(r, 50));
+  }
+}
+
+describe('short terminals', () => {
+  /** src/tui/App.tsx: what a terminal of fewer than 4 rows shows */
+  const NOTE = 'floorgap: enlarge the window (at least 4 rows and 20 columns)';
+  /** what the frame shows at `rows` (screenLayout in src/tui/model.ts), always within rows − 1 lines */
+  const expectedAt = (rows: number) => (l: string[]) => {
+    if (l[rows - 1] !== '') return false;
+    if (rows === 1) return true;
+    if (rows <= 3) return l[0] === NOTE;
+    if (rows === 4) return /^ {3}slice /.test(l[0]) && /^↑↓ move /.test(l[2]);
+    return TABLE.test(l[rows - 3]) && /^↑↓ move /.test(l[rows - 2]) && (rows >= 10) === l[0].startsWith('floorgap ');
+  };
+  /** waits until nothing has been written for `ms` */
+  const quiet = async (p: PtySession, ms = 300) => {
+    let seen = -1;
+    while (p.raw().length !== seen) {
+      seen = p.raw().length;
+      await new Promise((r) => setTimeout(r, ms));
+    }
+  };
+
+  it('resized to every height from 10 rows down to 1 and back, the frame keeps the last row free', async () => {
+    const p = start(['explore', ...SAMPLE]);
+    await p.waitFor(TABLE, WAIT);
+    for (const rows of [10, 9, 8, 7, 6, 5, 4, 3, 2, 1, 2, 5, 8, 24]) {
+      p.resize(COLS, rows);
+      await p.waitUntil(expectedAt(rows), WAIT, `the frame laid out for ${COLS}×${rows}`);
+      await quiet(p);
+      expect(expectedAt(rows)(p.screen()), `${rows} rows:\n${p.screen().join('\n')}`).toBe(true);
+      expectFrameFits(p);
+    }
+    await p.press('q');
+    expect(await p.exited()).toEqual({ exitCode: 0, signal: 0 });
+    expect(p.raw().includes('\x1b[3J'), 'ESC [ 3 J written').toBe(false);
+    expectRestored(p);
+  }, 90_000);
 });
 
 describe('hostile slice values on a real terminal', () => {

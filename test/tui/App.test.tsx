@@ -5,6 +5,8 @@ import { stripAnsi } from '../../src/render/ansi.js';
 import { displayWidth } from '../../src/render/sanitize.js';
 import type { Report } from '../../src/triage/types.js';
 import { HINT } from '../../src/tui/keys.js';
+import type { ExplorerData } from '../../src/tui/session.js';
+import { FloorgapError } from '../../src/util/error.js';
 import { LEVER } from '../../src/tui/model.js';
 import { EXAMPLES_FIXTURE, FAKE_EXPORT_PATH, fakeExplorerData, sliceOfRank } from '../helpers/explorer-fixture.js';
 import { KEY, linesOf, renderExplorer, settle, type Explorer, type ExplorerProps } from '../helpers/ink-frame.js';
@@ -98,7 +100,7 @@ describe('loading', () => {
   });
 
   it('shows why loading failed and exits with 2 after a moment', async () => {
-    const error = new Error('cannot read runs/bad\u001b[2J.csv: no such file');
+    const error = new FloorgapError('cannot read runs/bad\u001b[2J.csv: no such file');
     const x = renderExplorer({ load: () => Promise.reject(error) });
     open.push(x);
     await settle();
@@ -109,9 +111,20 @@ describe('loading', () => {
     expect(x.exits).toEqual([{ code: 2, error }]);
   });
 
+  it('shows an internal error as one line and exits with 3 after a moment', async () => {
+    const error = new TypeError("Cannot read properties of undefined (reading 'slices')\n    at load (x.js:1:1)");
+    const x = renderExplorer({ load: () => Promise.reject(error) });
+    open.push(x);
+    await settle();
+    // the line the CLI prints for an internal error (failureText in src/render/failure.ts): first line only
+    expect(screen(x).slice(0, 3)).toEqual(['floorgap', '', "floorgap: internal error: Cannot read properties of undefined (reading 'slices')"]);
+    await new Promise((r) => setTimeout(r, 1300)); // the App waits 1,200 ms (src/tui/App.tsx)
+    expect(x.exits).toEqual([{ code: 3, error }]);
+  });
+
   it('exits at once on a key after a failed load: 2, or 130 for Ctrl-C', async () => {
-    const a = renderExplorer({ load: () => Promise.reject(new Error('bad')) });
-    const b = renderExplorer({ load: () => Promise.reject(new Error('bad')) });
+    const a = renderExplorer({ load: () => Promise.reject(new FloorgapError('bad')) });
+    const b = renderExplorer({ load: () => Promise.reject(new FloorgapError('bad')) });
     open.push(a, b);
     await settle();
     await a.press('x');
@@ -210,6 +223,40 @@ describe('the slice table', () => {
   });
 });
 
+describe('several keys in one read (key repeat, a paste, a burst over SSH)', () => {
+  // the bottom line of an 80×24 frame is line 22; the prompts' text is defined in src/tui/App.tsx (bottomSpans)
+  it('applies every Backspace and character of one chunk in order in the filter prompt', async () => {
+    const x = await explorer({ data: fakeExplorerData().data });
+    await x.press('/');
+    await x.press('dome'); // one read
+    expect(screen(x)[22]).toBe('/dome▏ (Enter keeps, Esc clears)');
+    await x.press('\x7f\x7f\x7f'); // three Backspaces (DEL) in one read
+    expect(screen(x)[22]).toBe('/d▏ (Enter keeps, Esc clears)');
+    await x.press('abc\x7f\x7f'); // "dabc" less two
+    expect(screen(x)[22]).toBe('/da▏ (Enter keeps, Esc clears)');
+    await x.press('\b\bring\r'); // Ctrl-H twice, "ring", Enter
+    // fixture: the ring slices are S2 · ring and S1 · ring
+    expect(screen(x)[21]).toBe('sort report order ↓ · filter "ring" (2 of 7) · 0 marked · 1/2');
+  });
+
+  it('applies every key of one chunk in the export prompt, Enter included', async () => {
+    const { data, calls } = fakeExplorerData();
+    const x = await explorer({ data });
+    await x.press('e');
+    expect(screen(x)[22]).toBe(`export rows to: ${FAKE_EXPORT_PATH}▏ (Enter writes, Esc cancels)`);
+    await x.press('\x7f\x7f\x7ftsv\r'); // "floorgap-export.csv" → "floorgap-export.tsv", then Enter
+    await settle();
+    // nothing marked: the flagged slices (fixture: S2, S5, S7, in the report's order) are exported
+    expect(calls.exportSlices).toEqual([{ slices: ['station=S2 · lighting=ring', 'station=S5 · lighting=dome', 'station=S7-rework-line-north · lighting=backlit-polarised'], path: 'floorgap-export.tsv', force: false }]);
+  });
+
+  it('reads Ctrl-C inside a chunk as Ctrl-C', async () => {
+    const x = await explorer({ data: fakeExplorerData().data });
+    await x.press('jj\x03');
+    expect(x.exits.map((e) => e.code)).toEqual([130]);
+  });
+});
+
 describe('the narrow layout (60×20)', () => {
   it('drops the least important columns and fits every line', async () => {
     const x = await explorer({ data: fakeExplorerData().data, columns: 60, rows: 20 });
@@ -256,6 +303,91 @@ describe('the narrow layout (60×20)', () => {
     expect(lines[5]).toMatch(/^ {2}PgUp PgDn {2}Home End/);
     expect(lines[6]).toMatch(/^ {2}← →/);
     expect(lines[18]).toMatch(/^↑↓ move/);
+  });
+});
+
+describe('short terminals: never more than rows − 1 lines', () => {
+  /** the frame's lines; an empty frame (ink wrote nothing) has none */
+  const frameLines = (x: Explorer) => (x.frame() === '' ? [] : screen(x));
+  const NOTE = 'floorgap: enlarge the window (at least 4 rows and 20 columns)'; // src/tui/App.tsx
+
+  it('fits every screen at every height from 1 to 12 rows', async () => {
+    const screens: [string, string[]][] = [
+      ['table', []],
+      ['detail', [KEY.enter]],
+      ['scrolled detail', ['j', 'j', 'j']],
+      ['table', [KEY.enter]],
+      ['filter', ['/', 'd']],
+      ['table', [KEY.escape]],
+      ['picker', ['g']],
+      ['table', [KEY.escape]],
+      ['help', ['?']],
+      ['table', ['x']],
+      ['export prompt', ['e']],
+    ];
+    for (let rows = 1; rows <= 12; rows++) {
+      const x = await explorer({ data: fakeExplorerData().data, columns: 80, rows });
+      for (const [name, keys] of screens) {
+        await x.press(...keys);
+        const lines = frameLines(x);
+        expect(lines.length, `${name} at ${rows} rows:\n${lines.join('\n')}`).toBeLessThanOrEqual(rows - 1);
+        for (const l of lines) expect(displayWidth(l), l).toBeLessThanOrEqual(80);
+      }
+      x.unmount();
+    }
+  });
+
+  it('fits the loading screen and a failed load at every height from 1 to 12 rows', async () => {
+    for (let rows = 1; rows <= 12; rows++) {
+      const a = renderExplorer({ load: () => new Promise(() => undefined), rows });
+      const b = renderExplorer({ load: () => Promise.reject(new Error('cannot read runs/preds.csv: no such file')), rows });
+      open.push(a, b);
+      await settle();
+      for (const x of [a, b]) expect(frameLines(x).length, `${rows} rows:\n${x.frame()}`).toBeLessThanOrEqual(rows - 1);
+    }
+  });
+
+  it('shows nothing at 1 row and one line asking for a larger window at 2 and 3 rows', async () => {
+    const one = await explorer({ data: fakeExplorerData().data, rows: 1 });
+    expect(frameLines(one)).toEqual([]);
+    for (const rows of [2, 3]) {
+      const x = await explorer({ data: fakeExplorerData().data, rows });
+      expect(frameLines(x)).toEqual([NOTE]);
+    }
+    // and at fewer than 20 columns, cut to the width (truncate in src/render/sanitize.ts: 9 characters and …)
+    const narrow = await explorer({ data: fakeExplorerData().data, columns: 10, rows: 24 });
+    expect(frameLines(narrow)).toEqual(['floorgap:…']);
+  });
+
+  it('drops the status line below 5 rows and the header below 10 rows, keeping the table and the key line', async () => {
+    // fixture (hand-built) rows in report order; 80 columns as in the 80×24 test above
+    const header = '   station · lighting  floor   dev  bias   var  mism  head focus      gaps';
+    const status = 'sort report order ↓ · 7 slices · 0 marked · 1/7';
+    const hint = `${HINT.slice(0, 79)}…`;
+    const at = async (rows: number) => frameLines(await explorer({ data: fakeExplorerData().data, rows }));
+    // 4 rows: table header, one row, key line (3 = rows − 1 lines)
+    const four = await at(4);
+    expect([four[0], four[1].slice(0, 12), four[2]]).toEqual([header, ' * S5 · dome', hint]);
+    expect(four).toHaveLength(3);
+    // 5 rows: the status line comes back
+    expect((await at(5)).filter((l) => l === status || l === hint)).toEqual([status, hint]);
+    // 9 rows: no header lines; table header, 5 rows (8 − 3), status, key line
+    const nine = await at(9);
+    expect(nine[0]).toBe(header);
+    expect(nine.slice(1, 6).map((l) => l.slice(0, 12))).toEqual(ROWS_80.slice(0, 5).map((r) => r.slice(0, 12)));
+    expect(nine.slice(6)).toEqual([status, hint]);
+    // 10 rows: the three header lines, table header, 3 rows (9 − 6), status, key line
+    const ten = await at(10);
+    expect(ten[0].startsWith('floorgap preds.csv · ')).toBe(true);
+    expect(ten[3]).toBe(header);
+    expect(ten.slice(7)).toEqual([status, hint]);
+    expect(ten).toHaveLength(9);
+  });
+
+  it('keeps the prompt on the last line at 4 rows', async () => {
+    const x = await explorer({ data: fakeExplorerData().data, rows: 4 });
+    await x.press('/', 'd', 'o');
+    expect(frameLines(x)[2]).toBe('/do▏ (Enter keeps, Esc clears)');
   });
 });
 
@@ -440,6 +572,39 @@ describe('quitting', () => {
     await settle();
     await x.press(KEY.ctrlC);
     expect(x.exits.map((e) => e.code)).toEqual([130]);
+  });
+});
+
+describe('errors after loading', () => {
+  // a bug (any error that is not a FloorgapError) ends the explorer with exit 3 and the error; a
+  // FloorgapError (a file that went away, a grouping that needs the rows) is a message and the explorer goes on
+  const bug = new TypeError("Cannot read properties of undefined (reading 'cells')");
+  const failing = (part: Partial<ExplorerData>): ExplorerData => ({ ...fakeExplorerData().data, ...part });
+
+  it('regroup: an internal error exits 3; a FloorgapError is a message on the status line', async () => {
+    const x = await explorer({ data: failing({ regroup: () => Promise.reject(bug) }) });
+    await x.press('g', ' ', KEY.enter);
+    expect(x.exits).toEqual([{ code: 3, error: bug }]);
+    const y = await explorer({ data: failing({ regroup: () => Promise.reject(new FloorgapError('preds.csv: cannot read the table (no such file)')) }) });
+    await y.press('g', ' ', KEY.enter);
+    expect(y.exits).toEqual([]);
+    // the status line, cut to 80 columns (truncate in src/render/sanitize.ts)
+    expect(screen(y)[21]).toBe('sort report order ↓ · 7 slices · 0 marked · 1/7  regroup failed: preds.csv: can…');
+  });
+
+  it('detail pane: an internal error in the breakdown or the examples exits 3', async () => {
+    const a = await explorer({ data: failing({ drill: () => Promise.reject(bug) }) });
+    await a.press(KEY.enter);
+    expect(a.exits).toEqual([{ code: 3, error: bug }]);
+    const b = await explorer({ data: failing({ examples: () => Promise.reject(bug) }) });
+    await b.press(KEY.enter);
+    expect(b.exits).toEqual([{ code: 3, error: bug }]);
+  });
+
+  it('export: an internal error exits 3', async () => {
+    const x = await explorer({ data: failing({ exportSlices: () => Promise.reject(bug) }) });
+    await x.press('e', KEY.enter);
+    expect(x.exits).toEqual([{ code: 3, error: bug }]);
   });
 });
 

@@ -11,6 +11,7 @@ import {
   DROP_ORDER,
   gapBar,
   LEVER,
+  screenLayout,
   SORT_KEYS,
   sliceFilter,
   sortSlices,
@@ -183,6 +184,31 @@ describe('windowStart and clampCursor', () => {
     expect(clampCursor(-3, 7)).toBe(0);
     expect(clampCursor(5, 0)).toBe(0);
     expect(clampCursor(0, 1)).toBe(0);
+  });
+});
+
+describe('screenLayout', () => {
+  // hand arithmetic: lines = rows − 1; body = lines − 3 header lines (10+ rows) − 1 status (5+ rows) − 1 key line
+  it('uses rows − 1 lines at every height, dropping the header, then the status line', () => {
+    expect(screenLayout(80, 24)).toEqual({ lines: 23, tooSmall: false, header: true, status: true, body: 18 });
+    expect(screenLayout(80, 10)).toEqual({ lines: 9, tooSmall: false, header: true, status: true, body: 4 });
+    expect(screenLayout(80, 9)).toEqual({ lines: 8, tooSmall: false, header: false, status: true, body: 6 });
+    expect(screenLayout(80, 5)).toEqual({ lines: 4, tooSmall: false, header: false, status: true, body: 2 });
+    expect(screenLayout(80, 4)).toEqual({ lines: 3, tooSmall: false, header: false, status: false, body: 2 });
+    for (let rows = 4; rows <= 60; rows++) {
+      const l = screenLayout(80, rows);
+      expect((l.header ? 3 : 0) + l.body + (l.status ? 1 : 0) + 1).toBe(rows - 1);
+      expect(l.body).toBeGreaterThanOrEqual(2); // the table's header line and at least one row
+    }
+  });
+
+  it('is too small below 4 rows or 20 columns: one line for the note, none at 1 row', () => {
+    expect(screenLayout(80, 3)).toEqual({ lines: 1, tooSmall: true, header: false, status: false, body: 0 });
+    expect(screenLayout(80, 2).lines).toBe(1);
+    expect(screenLayout(80, 1).lines).toBe(0);
+    expect(screenLayout(80, 0).lines).toBe(0);
+    expect(screenLayout(19, 24)).toEqual({ lines: 1, tooSmall: true, header: false, status: false, body: 0 });
+    expect(screenLayout(20, 24).tooSmall).toBe(false);
   });
 });
 

@@ -5,14 +5,14 @@ import { watchProgress, type ScanProgress } from '../../engine/progress.js';
 import { App } from '../../tui/App.js';
 import { explorerData, type Exporter } from '../../tui/session.js';
 import type { SliceReport } from '../../triage/types.js';
-import { FloorgapError } from '../../util/error.js';
+import { FloorgapError, INTERNAL_EXIT } from '../../util/error.js';
 import { analysisReads, analyzeWith, openEngine } from '../analyze.js';
 import type { CliIO } from '../io.js';
 import { useColor } from '../io.js';
 import { toTriageOptions } from '../options.js';
 import { runExport, type ExportArgs } from './export.js';
 import { claimSignals } from '../signals.js';
-import { sanitize } from '../../render/sanitize.js';
+import { reportFailure } from '../failure.js';
 import type { ExploreArgs } from './explore.js';
 
 /** A slice key as `--slice` text: `col=value` pairs, commas, `=` and backslashes escaped. */
@@ -25,6 +25,32 @@ export function sliceKeyText(slice: SliceReport): string {
 
 const ENTER = '\x1b[?1049h\x1b[?25l';
 const LEAVE = '\x1b[?25h\x1b[?1049l';
+/** ESC [ 3 J: erase the saved lines (the scrollback), part of the clear-terminal sequence ink writes */
+const ERASE_SCROLLBACK = '\x1b[3J';
+
+/**
+ * The terminal stream as ink gets it: everything passes through except ESC [ 3 J, which ink writes (as
+ * part of its clear-terminal sequence) when the window gets shorter than the last frame, and which
+ * would wipe the user's scrollback even from the alternate screen. Every other property (size, TTY,
+ * resize events) is the terminal's own.
+ * @example
+ * withoutScrollbackClear(process.stdout).write('\x1b[2J\x1b[3J\x1b[H'); // writes '\x1b[2J\x1b[H'
+ */
+export function withoutScrollbackClear(stdout: NodeJS.WriteStream): NodeJS.WriteStream {
+  const strip = (chunk: unknown) => {
+    if (typeof chunk === 'string') return chunk.replaceAll(ERASE_SCROLLBACK, '');
+    if (chunk instanceof Uint8Array && Buffer.from(chunk).includes(ERASE_SCROLLBACK)) return Buffer.from(chunk).toString('utf8').replaceAll(ERASE_SCROLLBACK, '');
+    return chunk;
+  };
+  const write = (chunk: unknown, ...rest: unknown[]): boolean => (stdout.write as (...a: unknown[]) => boolean).call(stdout, strip(chunk), ...rest);
+  return new Proxy(stdout, {
+    get(target, prop) {
+      if (prop === 'write') return write;
+      const value: unknown = Reflect.get(target, prop, target);
+      return typeof value === 'function' ? (value as (...a: unknown[]) => unknown).bind(target) : value;
+    },
+  });
+}
 
 /**
  * The full-screen keyboard explorer on a terminal (stdin and stdout are TTYs). Loaded only when it
@@ -74,28 +100,32 @@ export async function runExplorer(args: ExploreArgs, io: CliIO, argv: readonly s
 
   return new Promise<number>((resolve) => {
     let finished = false;
+    let signalled = false;
+    /** ends the explorer: with an error, its line goes to stderr once the terminal is restored, and it sets the code */
     const finish = (code: number, error?: unknown) => {
       if (finished) return;
       finished = true;
       instance.unmount();
       restore();
       // closing DuckDB under a running query (the load, a regroup, the detail pane's) hangs the process
-      // for good: stop the query now, close the database once the process is done
+      // for good: stop the query now and never close it (the process ends, and with it the engine; its
+      // spill folder is removed by the exit handler, src/cli/signals.ts)
       stopped = true;
       duck?.connection.interrupt();
-      process.once('exit', () => duck?.close());
+      // a query that does not answer its interrupt must not keep a stopped explorer alive: past 1.5 s the
+      // process exits anyway (the timer holds nothing open when the engine is idle)
+      if (signalled) setTimeout(() => process.exit(code), 1500).unref();
       // released on the next turn: the signal that ended the explorer is still being delivered
       setImmediate(release);
       process.off('uncaughtException', onCrash);
-      if (error !== undefined) {
-        const msg = error instanceof Error ? error.message : String(error);
-        io.stderr.write(`floorgap: ${sanitize(msg.split('\n')[0])}\n`);
-      }
-      resolve(code);
+      resolve(error === undefined ? code : reportFailure(error, io));
     };
     // Ctrl-C arrives as a key in raw mode; SIGINT from elsewhere, SIGTERM and SIGHUP come here
-    const release = claimSignals((_signal, code) => finish(code));
-    const onCrash = (e: unknown) => finish(3, e);
+    const release = claimSignals((_signal, code) => {
+      signalled = true;
+      finish(code);
+    });
+    const onCrash = (e: unknown) => finish(INTERNAL_EXIT, e);
     process.on('uncaughtException', onCrash);
 
     const instance = render(
@@ -115,11 +145,13 @@ export async function runExplorer(args: ExploreArgs, io: CliIO, argv: readonly s
             stop();
           }
         }}
-        onExit={(code, error) => finish(code, code === 2 ? error : undefined)}
+        onExit={finish}
         defaultExportPath={() => `floorgap-export-${new Date().toISOString().slice(0, 19).replace(/[:T]/g, '-')}.csv`}
         fileExists={(p) => existsSync(p)}
       />,
-      { stdout, stdin, stderr: io.stderr as NodeJS.WriteStream, exitOnCtrlC: false, patchConsole: false },
+      { stdout: withoutScrollbackClear(stdout), stdin, stderr: io.stderr as NodeJS.WriteStream, exitOnCtrlC: false, patchConsole: false },
     );
+    // an error thrown while drawing ends ink's render (ink shows its own error screen): end the explorer on it
+    instance.waitUntilExit().catch((e: unknown) => finish(INTERNAL_EXIT, e));
   });
 }
