@@ -4,7 +4,7 @@
  * are summed. The cells enter the flow where the scan's cells would: the result is a `Loaded`.
  * Format: docs/formats.md, "Cells".
  */
-import { AUDIT_COLUMNS } from './cell-query.js';
+import { AUDIT_COLUMNS, WEIGHT_EXPECTED } from './cell-query.js';
 import type { CellPlan, Grouping } from './cells.js';
 import { unknownSplitError } from './cells.js';
 import type { Duck } from './duck.js';
@@ -161,7 +161,7 @@ export async function loadCellFiles(duck: Duck, paths: readonly string[], by: re
   const unknown = new Map<string, number>();
   for (const [raw, n] of other) {
     if (raw === '!unlabelled') warnings.push(`${n} rows with an empty label or prediction were left out`);
-    else if (raw === '!weight') throw error(`${where}: ${n} rows have a weight that is not a number >= 0 (fg_split "!weight"); fix them in the table the cells came from`);
+    else if (raw === '!weight') throw error(`${where}: ${n} rows have a bad weight (fg_split "!weight"), expected ${WEIGHT_EXPECTED}; fix them in the table the cells came from`);
     else if (raw === '!score') throw error(`${where}: ${n} rows have a score that is not a number (fg_split "!score"); fix them in the table the cells came from`);
     else if (raw === '!error') throw error(`${where}: ${n} rows have an error value that is not 0 or 1 (fg_split "!error"); fix them in the table the cells came from`);
     else unknown.set(raw, n);

@@ -1,5 +1,6 @@
 import { keySql, readCellResult, scanCells, unknownSplitError, type CellPlan, type Grouping, type ScanIssues } from './cells.js';
-import { cellQuery } from './cell-query.js';
+import { badWeightSql, cellQuery, WEIGHT_EXPECTED } from './cell-query.js';
+import { dialect } from './dialect.js';
 import { concatTables, tableCells, type CellTable } from './cell-table.js';
 import type { Duck } from './duck.js';
 import { chooseSliceColumns, createSample, profileColumns, SAMPLE_ROWS, sampleTupleCount, sampleTupleStats, sliceColumns, type Profile } from './profile.js';
@@ -393,8 +394,8 @@ export function pairSets(names: readonly string[], by: readonly string[] | null)
 
 async function checkIssues(duck: Duck, source: Source, roles: Roles, plan: CellPlan, issues: ScanIssues, warnings: string[]): Promise<void> {
   if (issues.badWeight > 0) {
-    const at = await firstBadRow(duck, source, `NOT (${weightOk(roles.weight!)})`, roles.weight!, plan.where);
-    throw error(`${at}column "${roles.weight}": expected a weight >= 0, got "${at.value}" (${plural(issues.badWeight, "row")} like it)`);
+    const at = await firstBadRow(duck, source, badWeightSql(dialect('duckdb'), `TRY_CAST(trim("${esc(roles.weight!)}") AS DOUBLE)`), roles.weight!, plan.where);
+    throw error(`${at}column "${roles.weight}": expected ${WEIGHT_EXPECTED}, got "${at.value}" (${plural(issues.badWeight, "row")} like it)`);
   }
   if (issues.badScore > 0) {
     const at = await firstBadRow(duck, source, `NULLIF(trim("${esc(roles.score!)}"), '') IS NOT NULL AND (TRY_CAST(trim("${esc(roles.score!)}") AS DOUBLE) IS NULL OR isinf(TRY_CAST(trim("${esc(roles.score!)}") AS DOUBLE)) OR isnan(TRY_CAST(trim("${esc(roles.score!)}") AS DOUBLE)))`, roles.score!, plan.where);
@@ -414,11 +415,6 @@ async function checkIssues(duck: Duck, source: Source, roles: Roles, plan: CellP
 
 function esc(name: string): string {
   return name.replace(/"/g, '""');
-}
-
-function weightOk(col: string): string {
-  const w = `TRY_CAST(trim("${esc(col)}") AS DOUBLE)`;
-  return `${w} IS NOT NULL AND ${w} >= 0 AND NOT isnan(${w}) AND NOT isinf(${w})`;
 }
 
 export type { FloorEntry };

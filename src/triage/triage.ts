@@ -26,9 +26,16 @@ interface Prop {
   readonly n: number;
 }
 
+/**
+ * The split's weighted error rate and Kish n; null without weight, and null (never a crash) for sums no
+ * valid weights give: a Σw, Σw² or Σw·error that is not finite, or a Kish n that is not a finite
+ * positive number.
+ */
 function prop(s: SplitSums | undefined): Prop | null {
-  if (!s || s.weight <= 0) return null;
+  if (!s || !(s.weight > 0)) return null;
+  if (![s.weight, s.weightSq, s.errors].every(Number.isFinite)) return null;
   const n = kishEffectiveN(s.weight, s.weightSq);
+  if (!(n > 0 && Number.isFinite(n))) return null;
   return { p: s.errors / s.weight, n };
 }
 

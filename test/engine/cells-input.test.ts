@@ -92,7 +92,7 @@ describe('errors (exit 2, one line)', () => {
     const weight = file('weight.csv', [HEADER, ...ROWS, '!weight,S1,-1,0.02,,2,0,0,0,0']);
     const r2 = await report(['--cells', weight]);
     expect(r2.code).toBe(2);
-    expect(r2.stderr).toMatch(/2 rows have a weight that is not a number >= 0 \(fg_split "!weight"\)/);
+    expect(r2.stderr).toMatch(/: 2 rows have a bad weight \(fg_split "!weight"\), expected a weight of 0 or between 1e-100 and 1e100; fix them in the table the cells came from$/m);
   });
 
   it('--by a column the cells do not hold, and rows given with --cells', async () => {

@@ -5,7 +5,7 @@
  */
 import { describe, expect, it } from 'vitest';
 import { buildReport } from '../../src/triage/report.js';
-import { CONTEXT, options, sliceCells } from '../helpers/cells.js';
+import { cell, CONTEXT, options, sliceCells } from '../helpers/cells.js';
 import { expectClose } from '../stats/expect-close.js';
 
 const LIBRARY = 1e-12; // same formulas as statsmodels: agreement to rounding
@@ -88,5 +88,23 @@ describe('weighted rows', () => {
     // statsmodels 0.13.5: proportion_confint(280.0, 4571.428571428572, method='wilson') -> (0.0546604948031246, 0.06857626610778834)
     expectClose(report.overall.error.train?.lo, 0.0546604948031246, LIBRARY);
     expectClose(report.overall.error.train?.hi, 0.06857626610778834, LIBRARY);
+  });
+});
+
+describe('sums that no valid weights give', () => {
+  it('a split whose Σw² is not finite, or whose Kish n is not positive, has no rate instead of crashing triage', () => {
+    // fixture (hand-built): cells such a --cells file or a future bug could carry; valid weights
+    // (docs/method.md, "Weights") never give them
+    const ok = sliceCells({ line: 'OK' }, { train: { rows: 100, errors: 10 }, dev: { rows: 100, errors: 12 } });
+    const inf = [{ ...cell({ line: 'INF' }, 'train', { rows: 2, errors: 1 }), weight: 2e154, weightSq: Infinity, errors: 1e154 }, cell({ line: 'INF' }, 'dev', { rows: 50, errors: 5 })];
+    // Σw = 1e-200 whose Σw² underflowed to 0: Kish n = 0
+    const zero = [cell({ line: 'ZERO' }, 'train', { rows: 50, errors: 5 }), { ...cell({ line: 'ZERO' }, 'dev', { rows: 1, errors: 0 }), weight: 1e-200, weightSq: 0 }];
+    const r = buildReport([...ok, ...inf, ...zero], ['line'], [], CONTEXT, options());
+    const by = (label: string) => r.slices.find((s) => s.label === label)!;
+    expect(by('line=INF').error.train).toBeNull();
+    expect(by('line=INF').error.dev?.value).toBe(0.1); // hand arithmetic: 5 / 50
+    expect(by('line=ZERO').error.dev).toBeNull();
+    expect(by('line=ZERO').error.train?.value).toBe(0.1); // hand arithmetic: 5 / 50
+    expect(by('line=OK').error.dev?.value).toBe(0.12); // hand arithmetic: 12 / 100
   });
 });
