@@ -3,6 +3,7 @@ import { DEFAULT_MEMORY_LIMIT, DEFAULT_THREADS } from '../engine/duck.js';
 import type { LoadOptions } from '../engine/load.js';
 import type { RoleOptions } from '../engine/roles.js';
 import { DEFAULT_TRIAGE_OPTIONS, type TriageOptions } from '../triage/types.js';
+import { COST_EXPECTED, validCost } from '../io/read-floor-table.js';
 import { error } from '../util/error.js';
 
 /** Options every analysing command takes: inputs, roles, slicing, floors, statistics, engine. */
@@ -153,7 +154,7 @@ export function toTriageOptions(a: AnalysisArgs): TriageOptions {
   checkFraction('floor-margin', a['floor-margin']);
   checkFraction('min-headroom', a['min-headroom']);
   checkPositive('curve-exponent', a['curve-exponent']);
-  checkPositive('label-cost', a['label-cost']);
+  if (!validCost(a['label-cost'])) throw error(`--label-cost ${a['label-cost']}: expected ${COST_EXPECTED}`);
   checkPositive('threads', a.threads, true);
   return {
     confidence: a.confidence,

@@ -81,7 +81,8 @@ describe.concurrent('bad files: exit 2 and one line naming what is wrong', () =>
     ['cost table: a role column as key', [f('valid.csv'), '--cost-table', f('costs-role-key.csv')], /costs-role-key\.csv: key column "weight" is the weight column of/],
     // cost tables
     ['cost table: one key, two costs', [f('valid.csv'), '--cost-table', f('costs-conflicting.csv')], /costs-conflicting\.csv: lines 3 and 4 give package=QFN different values \(label_cost 4 and 2\); keep one$/],
-    ['cost table: a negative cost', [f('valid.csv'), '--cost-table', f('costs-negative.csv')], /costs-negative\.csv: line 3, column "label_cost": expected a cost > 0.*got "-4"$/],
+    ['cost table: a negative cost', [f('valid.csv'), '--cost-table', f('costs-negative.csv')], /costs-negative\.csv: line 3, column "label_cost": expected a cost from 1e-12 to 1e12.*got "-4"$/],
+    ['cost table: a cost too large to sum (1e308)', [f('valid.csv'), '--cost-table', f('costs-huge.csv')], /costs-huge\.csv: line 3, column "label_cost": expected a cost from 1e-12 to 1e12 \(e\.g\. 1, or 4 for a slice four times dearer to label\), got "1e308"$/],
   ];
   for (const [name, args, message] of cases) {
     it(name, async () => {

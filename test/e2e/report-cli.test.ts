@@ -135,6 +135,11 @@ describe('bad input: one line on stderr, exit 2', () => {
   it('--floor outside [0, 1]', async () => {
     await expectBad([file('ok2.csv', header + good(40, 'train') + good(40, 'dev')), '--floor', '1.5'], /--floor 1\.5: expected a fraction in \[0, 1\]/);
   });
+  it('--label-cost outside [1e-12, 1e12]', async () => {
+    const data = file('ok-cost.csv', header + good(40, 'train') + good(40, 'dev'));
+    await expectBad([data, '--label-cost', '1e308'], /^floorgap: --label-cost 1e\+308: expected a cost from 1e-12 to 1e12 \(e\.g\. 1, or 4 for a slice four times dearer to label\)$/);
+    await expectBad([data, '--label-cost', '0'], /^floorgap: --label-cost 0: expected a cost from 1e-12 to 1e12/);
+  });
   it('a floor table entry outside [0, 1]', async () => {
     const data = file('ok3.csv', header + good(40, 'train') + good(40, 'dev'));
     const floors = file('floors.csv', 'station,floor\nS0,0.02\nS1,1.5\n');
