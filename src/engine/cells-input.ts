@@ -8,11 +8,11 @@ import { AUDIT_COLUMNS, WEIGHT_EXPECTED } from './cell-query.js';
 import type { CellPlan, Grouping } from './cells.js';
 import { unknownSplitError } from './cells.js';
 import type { Duck } from './duck.js';
-import { withCells, type Loaded } from './load.js';
+import { checkSplitWeights, splitTotals, withCells, type Loaded } from './load.js';
 import { readCells } from './read-cells.js';
-import { runsOf, cellIndicesFor } from './slices.js';
+import { runsOf } from './slices.js';
 import { ident } from './sql.js';
-import { SPLITS, type SliceColumn, type Split } from './types.js';
+import type { SliceColumn, Split } from './types.js';
 import { describeColumns, detectTable, readError, tableSql, type TableInput } from '../io/read-table.js';
 import { error } from '../util/error.js';
 
@@ -176,14 +176,15 @@ export async function loadCellFiles(duck: Duck, paths: readonly string[], by: re
     sets.set(set.join('\u0000'), set);
   }
   if (grouping.kind === 'sets') grouping = { kind: 'sets', sets: [...sets.values()] };
-  const counts: Record<Split, number> = { train: 0, train_dev: 0, dev: 0, test: 0 };
-  for (const i of cellIndicesFor({ table, index: null }, [])) counts[SPLITS[table.split[i]]] += table.rows[i];
+  const totals = splitTotals(table);
+  const counts = totals.rows;
   for (const required of ['train', 'dev'] as const) {
     if (counts[required] === 0) {
       const present = (Object.keys(counts) as Split[]).filter((s) => counts[s] > 0);
       throw error(`${where}: no cells with split ${required}${present.length ? ` (found ${present.join(', ')})` : ''}; train and dev are required`);
     }
   }
+  checkSplitWeights(where, totals);
   const resolvedBy = by
     ? by.map((b) => {
         if (!lay.keys.includes(b)) {

@@ -311,7 +311,8 @@ async function scanPlanned(duck: Duck, planned: ScanPlan): Promise<Loaded> {
     // a by of three or more columns: one more GROUP BY for exactly those columns
     table = concatTables(table, await scanGroupingTable(duck, plan, by));
   }
-  const counts = splitCounts(table);
+  const totals = splitTotals(table);
+  const counts = totals.rows;
   for (const required of ['train', 'dev'] as const) {
     if (counts[required] === 0) {
       const present = (Object.keys(counts) as Split[]).filter((s) => counts[s] > 0);
@@ -320,6 +321,7 @@ async function scanPlanned(duck: Duck, planned: ScanPlan): Promise<Loaded> {
       );
     }
   }
+  checkSplitWeights(source.where, totals);
   if (floorTable) {
     const used = new Set(table.floorEntry);
     for (const [i, e] of floorTable.entries.entries()) {
@@ -344,12 +346,35 @@ export function withCells(loaded: Omit<Loaded, 'cells'>): Loaded {
   }) as Loaded;
 }
 
-function splitCounts(table: CellTable): Record<Split, number> {
-  const out: Record<Split, number> = { train: 0, train_dev: 0, dev: 0, test: 0 };
-  // in grouping-sets mode count one set only: the cells serving the overall slice
+/** Rows and Σw of each split, over the cells serving the overall slice. */
+export interface SplitTotals {
+  readonly rows: Record<Split, number>;
+  readonly weight: Record<Split, number>;
+}
+
+/** Rows and Σw per split (in grouping-sets mode one set only: the cells serving the overall slice). */
+export function splitTotals(table: CellTable): SplitTotals {
+  const rows: Record<Split, number> = { train: 0, train_dev: 0, dev: 0, test: 0 };
+  const weight: Record<Split, number> = { train: 0, train_dev: 0, dev: 0, test: 0 };
   const use = cellIndicesFor({ table, index: null }, []);
-  for (const i of use) out[SPLITS[table.split[i]]] += table.rows[i];
-  return out;
+  for (const i of use) {
+    rows[SPLITS[table.split[i]]] += table.rows[i];
+    weight[SPLITS[table.split[i]]] += table.weight[i];
+  }
+  return { rows, weight };
+}
+
+/**
+ * Every split that has rows needs some weight: a split whose rows all weigh 0 has no error rate, and
+ * its gaps would silently vanish from the report. (A slice whose rows all weigh 0 is thin instead.)
+ */
+export function checkSplitWeights(where: string, totals: SplitTotals): void {
+  const present = SPLITS.filter((s) => totals.rows[s] > 0);
+  const weightless = present.filter((s) => !(totals.weight[s] > 0));
+  if (weightless.length === 0) return;
+  if (weightless.length === present.length) throw error(`${where}: every row has weight 0; expected some weight > 0`);
+  const s = weightless[0];
+  throw error(`${where}: every row with split ${s} has weight 0 (${plural(totals.rows[s], 'row')}); expected some weight > 0 in each split`);
 }
 
 /**

@@ -143,7 +143,8 @@ function draft(stats: SliceStats, devTotal: number, present: ReadonlySet<Split>,
     const hm = mismatch ? share * mismatch.value : null;
     headroom = { total: hb + hv + (hm ?? 0), bias: hb, variance: hv, mismatch: hm };
   }
-  const thin = (rows.train ?? 0) < o.minRows || (rows.dev ?? 0) < o.minRows;
+  // a slice whose train or dev rows all weigh 0 has no rate there: as thin as one without rows
+  const thin = (rows.train ?? 0) < o.minRows || (rows.dev ?? 0) < o.minRows || !props.train || !props.dev;
   const trainSums = stats.splits.train;
   // mean cost of a row: cost-table rows at their cost, the rest at --label-cost
   const cost = trainSums && trainSums.weight > 0 ? (trainSums.costSum + (trainSums.weight - trainSums.costWeight) * o.labelCost) / trainSums.weight : o.labelCost;

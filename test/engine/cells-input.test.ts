@@ -95,6 +95,14 @@ describe('errors (exit 2, one line)', () => {
     expect(r2.stderr).toMatch(/: 2 rows have a bad weight \(fg_split "!weight"\), expected a weight of 0 or between 1e-100 and 1e100; fix them in the table the cells came from$/m);
   });
 
+  it('cells whose dev rows all weigh 0', async () => {
+    const path = file('zero-dev.csv', [HEADER, ROWS[0], 'dev,S1,-1,0.02,,50,0,0,0,0', ROWS[2], 'dev,S2,-1,0.02,,40,0,0,0,0']);
+    const r = await report(['--cells', path]);
+    expect(r.code).toBe(2);
+    // hand arithmetic: 50 + 40 dev rows
+    expect(r.stderr).toBe(`floorgap: ${path}: every row with split dev has weight 0 (90 rows); expected some weight > 0 in each split\n`);
+  });
+
   it('--by a column the cells do not hold, and rows given with --cells', async () => {
     const path = file('by.csv', [HEADER, ...ROWS]);
     const r1 = await report(['--cells', path, '--by', 'lighting']);

@@ -117,6 +117,25 @@ describe('weights', () => {
     expect(e3.message).toBe(`${above}: line 7, column "weight": expected a weight of 0 or between 1e-100 and 1e100, got "1.0000001e100" (1 row like it)`);
   });
 
+  it('every weight 0: no rate can be formed, an error instead of a report of nulls', async () => {
+    const zero = Object.fromEntries(ROWS.map((_, i) => [i + 1, { weight: '0' }]));
+    const path = csvFile(zero);
+    const e = await failure(loadCells(duck, options({ source: files(path) })));
+    expect(e.message).toBe(`${path}: every row has weight 0; expected some weight > 0`);
+    expect(e.exitCode).toBe(2);
+  });
+
+  it('every weight of one split 0: the error names the split', async () => {
+    // ids 4–6 are the dev rows (hand-counted from the fixture)
+    const path = csvFile({ 4: { weight: '0' }, 5: { weight: '0' }, 6: { weight: '0' } });
+    const e = await failure(loadCells(duck, options({ source: files(path) })));
+    expect(e.message).toBe(`${path}: every row with split dev has weight 0 (3 rows); expected some weight > 0 in each split`);
+    // ids 7–8 are the test rows: an optional split is checked too
+    const test = csvFile({ 7: { weight: '0' }, 8: { weight: '0' } });
+    const e2 = await failure(loadCells(duck, options({ source: files(test) })));
+    expect(e2.message).toBe(`${test}: every row with split test has weight 0 (2 rows); expected some weight > 0 in each split`);
+  });
+
   it('weights at the ends of the domain (0, 1e-100, 1e100) are read', async () => {
     const path = csvFile({ 1: { weight: '1e100' }, 2: { weight: '1e-100' }, 3: { weight: '0' } });
     const loaded = await loadCells(duck, options({ source: files(path) }));

@@ -108,3 +108,18 @@ describe('sums that no valid weights give', () => {
     expect(by('line=OK').error.dev?.value).toBe(0.12); // hand arithmetic: 12 / 100
   });
 });
+
+describe('a slice whose rows all weigh 0', () => {
+  it('is thin: no rate, no test, no focus beyond "collect more rows"', () => {
+    // fixture (hand-built): slice Z has 100 train and 100 dev rows, every one of weight 0
+    const ok = sliceCells({ line: 'OK' }, { train: { rows: 100, errors: 10 }, dev: { rows: 100, errors: 12 } });
+    const z = sliceCells({ line: 'Z' }, { train: { rows: 100, errors: 10, weight: 0 }, dev: { rows: 100, errors: 20, weight: 0 } });
+    const r = buildReport([...ok, ...z], ['line'], [], CONTEXT, options());
+    const slice = r.slices.find((s) => s.label === 'line=Z')!;
+    expect(slice.rows).toEqual({ train: 100, train_dev: null, dev: 100, test: null }); // unweighted counts
+    expect(slice.error.dev).toBeNull();
+    expect(slice.share).toBe(0); // hand arithmetic: 0 / 100
+    expect(slice.focus).toBe('thin');
+    expect(slice.flagged).toBe(false);
+  });
+});
