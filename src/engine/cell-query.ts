@@ -14,7 +14,7 @@ import { MISSING, type CellPlan, type Grouping } from './cells.js';
 import { dialect as dialectOf, type Dialect } from './dialect.js';
 import { binLabel } from './profile.js';
 import { ROWS_VIEW } from './source.js';
-import type { SliceColumn } from './types.js';
+import type { SliceColumn, Split } from './types.js';
 import type { FloorEntry } from '../io/read-floor-table.js';
 
 /** Pseudo-split values that mark rows the scan could not use; never valid split spellings. */
@@ -43,7 +43,8 @@ export function badWeightSql(d: Dialect, w: string): string {
 
 const TRUE_WORDS = ['1', '1.0', 'true', 't', 'yes', 'y'];
 const FALSE_WORDS = ['0', '0.0', 'false', 'f', 'no', 'n'];
-const SPLIT_SPELLINGS: readonly (readonly [string, string])[] = [
+/** Split spellings (trimmed, lower case) and the split each names. */
+export const SPLIT_SPELLINGS: readonly (readonly [string, Split])[] = [
   ['train', 'train'],
   ['train_dev', 'train_dev'],
   ['train-dev', 'train_dev'],

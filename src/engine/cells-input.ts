@@ -12,7 +12,7 @@ import { checkSplitWeights, splitTotals, withCells, type Loaded } from './load.j
 import { readCells } from './read-cells.js';
 import { runsOf } from './slices.js';
 import { ident } from './sql.js';
-import type { SliceColumn, Split } from './types.js';
+import { SPLITS, type SliceColumn, type Split } from './types.js';
 import { describeColumns, detectTable, readError, tableSql, type TableInput } from '../io/read-table.js';
 import { error } from '../util/error.js';
 
@@ -178,6 +178,10 @@ export async function loadCellFiles(duck: Duck, paths: readonly string[], by: re
   if (grouping.kind === 'sets') grouping = { kind: 'sets', sets: [...sets.values()] };
   const totals = splitTotals(table);
   const counts = totals.rows;
+  const leftOut = other.get('!unlabelled') ?? 0;
+  if (leftOut > 0 && SPLITS.every((s) => counts[s] === 0)) {
+    throw error(`${where}: every row was left out: ${leftOut} rows have an empty label or prediction (fg_split "!unlabelled"); expected class labels in both columns`);
+  }
   for (const required of ['train', 'dev'] as const) {
     if (counts[required] === 0) {
       const present = (Object.keys(counts) as Split[]).filter((s) => counts[s] > 0);

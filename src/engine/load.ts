@@ -1,12 +1,12 @@
-import { keySql, readCellResult, scanCells, unknownSplitError, type CellPlan, type Grouping, type ScanIssues } from './cells.js';
-import { badWeightSql, cellQuery, WEIGHT_EXPECTED } from './cell-query.js';
+import { errorSql, keySql, readCellResult, scanCells, unknownSplitError, type CellPlan, type Grouping, type ScanIssues } from './cells.js';
+import { badWeightSql, cellQuery, SPLIT_SPELLINGS, WEIGHT_EXPECTED } from './cell-query.js';
 import { dialect } from './dialect.js';
 import { concatTables, tableCells, type CellTable } from './cell-table.js';
 import type { Duck } from './duck.js';
 import { chooseSliceColumns, createSample, profileColumns, SAMPLE_ROWS, sampleTupleCount, sampleTupleStats, sliceColumns, type Profile } from './profile.js';
 import { chao1 } from '../stats/chao1.js';
 import { resolveRoles, roleColumns, type RoleOptions, type Roles } from './roles.js';
-import { checkWhere, openSource, type Source, type SourceSpec } from './source.js';
+import { checkWhere, openSource, ROWS_VIEW, type Source, type SourceSpec } from './source.js';
 import { ident } from './sql.js';
 import { SPLITS, type Cell, type SliceColumn, type Split } from './types.js';
 import { cellIndicesFor, runsOf } from './slices.js';
@@ -306,13 +306,15 @@ async function scanPlanned(duck: Duck, planned: ScanPlan): Promise<Loaded> {
     throw (await locateReadError(source.inputs)) ?? readError(source.where, e);
   });
   let table = scanned.table;
-  await checkIssues(duck, source, roles, plan, scanned.issues, warnings);
+  const issues = scanned.issues;
+  await checkIssues(duck, source, roles, plan, issues, warnings);
   if (grouping.kind === 'sets' && by && by.length > 2) {
     // a by of three or more columns: one more GROUP BY for exactly those columns
     table = concatTables(table, await scanGroupingTable(duck, plan, by));
   }
   const totals = splitTotals(table);
   const counts = totals.rows;
+  if (issues.unlabelled > 0) await checkLeftOut(duck, source.where, plan, counts, issues.unlabelled);
   for (const required of ['train', 'dev'] as const) {
     if (counts[required] === 0) {
       const present = (Object.keys(counts) as Split[]).filter((s) => counts[s] > 0);
@@ -435,6 +437,35 @@ async function checkIssues(duck: Duck, source: Source, roles: Roles, plan: CellP
   if (issues.unlabelled > 0) {
     const what = roles.error ? `an empty "${roles.error}"` : `an empty "${roles.label}" or "${roles.pred}"`;
     warnings.push(`${plural(issues.unlabelled, 'row')} with ${what} ${issues.unlabelled === 1 ? 'was' : 'were'} left out`);
+  }
+}
+
+/**
+ * When rows left out for an empty label or prediction (or error value) leave no usable row at all, or
+ * none in a required split, says so: "no rows with split train" would send the user looking for a
+ * split that is there. Only on the error path: counts the left-out rows per split in one more query.
+ */
+async function checkLeftOut(duck: Duck, where: string, plan: CellPlan, counts: Record<Split, number>, unlabelled: number): Promise<void> {
+  const { roles } = plan;
+  const what = roles.error ? `an empty "${roles.error}"` : `an empty "${roles.label}" or "${roles.pred}"`;
+  if (SPLITS.every((s) => counts[s] === 0)) {
+    const expected = roles.error ? '0 or 1 (or true/false) in it' : 'class labels in both columns';
+    throw error(`${where}: every row was left out: ${plural(unlabelled, 'row')} ${unlabelled === 1 ? 'has' : 'have'} ${what}; expected ${expected}`);
+  }
+  const missing = (['train', 'dev'] as const).filter((s) => counts[s] === 0);
+  if (missing.length === 0) return;
+  const filter = plan.where ? ` AND (${plan.where})` : '';
+  const rows = await duck.all(
+    `SELECT lower(trim(${ident(plan.splitColumn)})) AS s, count(*) AS n FROM ${ROWS_VIEW} WHERE ${errorSql(roles).unlabelled}${filter} GROUP BY 1`,
+  );
+  const spelling = new Map<string, Split>(SPLIT_SPELLINGS);
+  const left: Record<Split, number> = { train: 0, train_dev: 0, dev: 0, test: 0 };
+  for (const r of rows) {
+    const split = spelling.get(String(r.s));
+    if (split) left[split] += Number(r.n);
+  }
+  for (const s of missing) {
+    if (left[s] > 0) throw error(`${where}: no usable rows with split ${s}: its ${plural(left[s], 'row')} ${left[s] === 1 ? 'has' : 'have'} ${what}`);
   }
 }
 

@@ -55,6 +55,8 @@ describe.concurrent('bad files: exit 2 and one line naming what is wrong', () =>
     ['weight subnormal (1e-320)', [f('weight-subnormal.csv')], /weight-subnormal\.csv: line 46, column "weight": expected a weight of 0 or between 1e-100 and 1e100, got "1e-320" \(1 row like it\)$/],
     ['every weight 0', [f('weight-all-zero.csv')], /weight-all-zero\.csv: every row has weight 0; expected some weight > 0$/],
     ['every dev weight 0', [f('weight-zero-dev.csv')], /weight-zero-dev\.csv: every row with split dev has weight 0 \(40 rows\); expected some weight > 0 in each split$/],
+    ['every label empty', [f('labels-all-empty.csv')], /labels-all-empty\.csv: every row was left out: 80 rows have an empty "label" or "pred"; expected class labels in both columns$/],
+    ['every dev prediction empty', [f('dev-preds-empty.csv')], /dev-preds-empty\.csv: no usable rows with split dev: its 40 rows have an empty "label" or "pred"$/],
     ['score text', [f('score-text.csv')], /score-text\.csv: line 5, column "score": expected a number \(model confidence\), got "high"/],
     ['only one split', [f('one-split.csv')], /one-split\.csv: no rows with split dev \(found train\); train and dev are required/],
     ['an unknown split value', [f('unknown-split.csv')], /unknown-split\.csv: column "split" has unknown split values "holdout" \(5 rows\)/],

@@ -95,6 +95,14 @@ describe('errors (exit 2, one line)', () => {
     expect(r2.stderr).toMatch(/: 2 rows have a bad weight \(fg_split "!weight"\), expected a weight of 0 or between 1e-100 and 1e100; fix them in the table the cells came from$/m);
   });
 
+  it('cells whose every row was left out for an empty label', async () => {
+    const path = file('all-left-out.csv', [HEADER, '!unlabelled,S1,-1,0.02,,150,150,150,0,3', '!unlabelled,S2,-1,0.02,,120,120,120,0,2.4']);
+    const r = await report(['--cells', path]);
+    expect(r.code).toBe(2);
+    // hand arithmetic: 150 + 120 rows set aside
+    expect(r.stderr).toBe(`floorgap: ${path}: every row was left out: 270 rows have an empty label or prediction (fg_split "!unlabelled"); expected class labels in both columns\n`);
+  });
+
   it('cells whose dev rows all weigh 0', async () => {
     const path = file('zero-dev.csv', [HEADER, ROWS[0], 'dev,S1,-1,0.02,,50,0,0,0,0', ROWS[2], 'dev,S2,-1,0.02,,40,0,0,0,0']);
     const r = await report(['--cells', path]);

@@ -280,6 +280,44 @@ describe('splits', () => {
     }
   });
 
+  it('every row left out for an empty label or prediction: says so instead of "no rows with split train"', async () => {
+    const empty = Object.fromEntries(ROWS.map((_, i) => [i + 1, i % 2 ? { label: ' ' } : { pred: '' }]));
+    const path = csvFile(empty);
+    for (const maxCells of [100_000, 1]) {
+      const e = await failure(loadCells(duck, options({ source: files(path), maxCells })));
+      // hand-counted: all 8 rows have an empty label (ids 2, 4, 6, 8) or prediction (ids 1, 3, 5, 7)
+      expect(e.message).toBe(`${path}: every row was left out: 8 rows have an empty "label" or "pred"; expected class labels in both columns`);
+    }
+  });
+
+  it('every row of a required split left out: names the split and its rows', async () => {
+    // ids 4–6 are the dev rows (hand-counted from the fixture); id 1 (train) is left out too
+    const path = csvFile({ 1: { label: '' }, 4: { pred: '' }, 5: { label: '' }, 6: { pred: '  ' } });
+    const e = await failure(loadCells(duck, options({ source: files(path) })));
+    expect(e.message).toBe(`${path}: no usable rows with split dev: its 3 rows have an empty "label" or "pred"`);
+    // the spelling of the split does not matter; --where narrows the count
+    const val = csvFile({ 4: { pred: '', split: 'VAL' }, 5: { label: '', split: ' validation' }, 6: { pred: '' } });
+    const e2 = await failure(loadCells(duck, options({ source: files(val), where: `station = 'S1' OR split <> 'dev'` })));
+    // hand-counted: --where keeps ids 4 and 5 (split not 'dev' as written) but drops id 6 (S2, split dev)
+    expect(e2.message).toBe(`${val}: no usable rows with split dev: its 2 rows have an empty "label" or "pred"`);
+  });
+
+  it('an error column empty on every row, or on every dev row', async () => {
+    const all = textFile('err-empty.csv', 'split,error,station\ntrain,,A\ntrain, ,B\ndev,,A\ndev,,B\n');
+    const e = await failure(loadCells(duck, options({ source: files(all) })));
+    expect(e.message).toBe(`${all}: every row was left out: 4 rows have an empty "error"; expected 0 or 1 (or true/false) in it`);
+    const dev = textFile('err-empty-dev.csv', 'split,error,station\ntrain,0,A\ntrain,1,B\ndev,,A\ndev,,B\n');
+    const e2 = await failure(loadCells(duck, options({ source: files(dev) })));
+    expect(e2.message).toBe(`${dev}: no usable rows with split dev: its 2 rows have an empty "error"`);
+  });
+
+  it('per-split files: a dev file whose every row lacks a label', async () => {
+    const train = textFile('train.csv', 'id,label,pred\n1,a,a\n2,a,b\n');
+    const dev = textFile('dev.csv', 'id,label,pred\n3,,a\n4,,b\n5,,a\n');
+    const e = await failure(loadCells(duck, options({ source: { files: [], perSplit: { train, dev } } })));
+    expect(e.message).toBe(`${train}, ${dev}: no usable rows with split dev: its 3 rows have an empty "label" or "pred"`);
+  });
+
   it('unknown split values are listed as written (trimmed) with their row counts, most frequent first', async () => {
     const path = csvFile({ 2: { split: 'holdout' }, 6: { split: ' holdout' }, 7: { split: 'Fold1' } });
     for (const maxCells of [100_000, 1]) {
