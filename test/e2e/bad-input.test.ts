@@ -70,6 +70,16 @@ describe.concurrent('bad files: exit 2 and one line naming what is wrong', () =>
     // the fifth line lacks its closing brace; the engine's own message points at line 6
     ['JSON Lines with a broken line', [f('broken.jsonl')], /broken\.jsonl: line 5: not valid JSON \(.*\); every line must hold one JSON object$/],
     ['column names with control sequences', [f('control-header.csv')], /control-header\.csv: no label column; the columns are "id", "split", "sta\\u001b\[2Jtion", "verdict\\u202e", "guess\\u001b\]52;c;aGk=\\u0007"/],
+    // ready-made cells with impossible sums
+    ['cells: errors above the weight', ['--cells', f('cells-errors-above-weight.csv')], /cells-errors-above-weight\.csv: line 7, column "fg_errors": 12 errors in a cell of weight 10; expected 0 ≤ fg_errors ≤ fg_weight$/],
+    ['cells: a NaN statistic', ['--cells', f('cells-nan.csv')], /cells-nan\.csv: line 4, column "fg_weight_sq": expected a finite number, got "NaN"$/],
+    ['cells: a floor sum above the weight', ['--cells', f('cells-floor-above-weight.csv')], /cells-floor-above-weight\.csv: line 3, column "fg_floor_sum": floor sum 11 in a cell of weight 10; expected 0 ≤ fg_floor_sum ≤ fg_weight$/],
+    ['cells: negative rows', ['--cells', f('cells-negative-rows.csv')], /cells-negative-rows\.csv: line 8, column "fg_rows": expected a whole number of rows from 0 to 2\^53, got "-10"$/],
+    [
+      'cells: Σw² too small for the rows',
+      ['--cells', f('cells-weight-sq.csv')],
+      /cells-weight-sq\.csv: line 5, column "fg_weight_sq": weight 10 with Σw² 5 over 10 rows; expected fg_weight² ≤ fg_rows × fg_weight_sq \(Cauchy–Schwarz\)$/,
+    ],
     // floor tables
     ['floor table: a line repeated', [f('valid.csv'), '--floor-table', f('floors-duplicate.csv')], /floors-duplicate\.csv: line 4 repeats line 2 \(package=0402\); keep one$/],
     [
