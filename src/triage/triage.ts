@@ -78,7 +78,9 @@ export function sliceFloor(stats: SliceStats, confidence: number): SliceFloor {
     const pi = part.weight / w;
     inv += (pi * pi) / part.n;
   }
-  const n = uncertain && inv > 0 ? 1 / inv : null;
+  // entries with n whose share is so small that Σ π² / n is not above 1 / (largest double) leave the
+  // floor as good as exact (its n is not a double): no interval then
+  const n = uncertain && inv > 0 && Number.isFinite(1 / inv) ? 1 / inv : null;
   const ci = n !== null ? wilsonInterval(value * n, n, confidence) : null;
   const entries = new Set(parts.filter((p) => p.weight > 0).map((p) => p.entry));
   const hasDefault = entries.has(-1);
@@ -207,13 +209,15 @@ export function sliceYield(share: number, variance: number, mismatch: number | n
 
 /**
  * New labelled rows that halve the slice's generalisation gap under g ∝ n^−β:
- * (n/(n+Δ))^β = 1/2 ⇒ Δ = n (2^(1/β) − 1); null when β ≤ 0.
+ * (n/(n+Δ))^β = 1/2 ⇒ Δ = n (2^(1/β) − 1); null when β ≤ 0, and when the curve is so flat
+ * (β below about 1/1024) that Δ is beyond the largest double.
  * @example
  * labelsToHalve(4000, 0.5); // => 12000
  */
 export function labelsToHalve(nTrain: number, beta: number): number | null {
   if (!(beta > 0) || !(nTrain > 0)) return null;
-  return nTrain * (Math.pow(2, 1 / beta) - 1);
+  const rows = nTrain * (Math.pow(2, 1 / beta) - 1);
+  return Number.isFinite(rows) ? rows : null;
 }
 
 function withQ(g: Gap | null, q: number | null): Gap | null {

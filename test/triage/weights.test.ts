@@ -123,3 +123,20 @@ describe('a slice whose rows all weigh 0', () => {
     expect(slice.flagged).toBe(false);
   });
 });
+
+describe('extreme but valid weights', () => {
+  it('a floor entry with n holding a share whose square underflows leaves the floor exact, not of infinite n', () => {
+    // fixture (hand-built): train rows of weight 1e100 at floor entry 0 (no n) and 4 rows of weight 1e-62
+    // at entry 1 (n = 5): π₁ = 4e-62 / 1e100 = 4e-162, π₁² / 5 ≈ 3e-324, whose reciprocal is not a double
+    const cells = [
+      ...sliceCells({ line: 'A' }, { train: { rows: 1, errors: 0, weight: 1e100, entry: 0 }, dev: { rows: 50, errors: 5 } }),
+      ...sliceCells({ line: 'B' }, { train: { rows: 4, errors: 0, weight: 1e-62, entry: 1, floorN: 5, floor: 0.1 } }),
+    ];
+    const r = buildReport(cells, ['line'], [], CONTEXT, options());
+    expect(r.overall.floor.n).toBeNull();
+    // hand arithmetic: the 1e100 rows dominate; floor sum 4e-62 × 0.1 over 1e100 is 4e-163
+    expect(r.overall.floor.value).toBeCloseTo(0, 12);
+    // slice B alone: one entry, n = 5 (docs/method.md, "The floor")
+    expect(r.slices.find((s) => s.label === 'line=B')!.floor.n).toBe(5);
+  });
+});
