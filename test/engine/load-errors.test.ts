@@ -281,7 +281,7 @@ describe('splits', () => {
   });
 
   it('every row left out for an empty label or prediction: says so instead of "no rows with split train"', async () => {
-    const empty = Object.fromEntries(ROWS.map((_, i) => [i + 1, i % 2 ? { label: ' ' } : { pred: '' }]));
+    const empty = Object.fromEntries(ROWS.map((_, i): [number, Record<string, string>] => [i + 1, i % 2 ? { label: ' ' } : { pred: '' }]));
     const path = csvFile(empty);
     for (const maxCells of [100_000, 1]) {
       const e = await failure(loadCells(duck, options({ source: files(path), maxCells })));
