@@ -5,6 +5,7 @@
  * thousands of threads, `--bins 10000000` grew memory until the kernel stopped it.
  */
 import { cpus, totalmem } from 'node:os';
+import { COST_EXPECTED, COST_RANGE } from '../io/read-floor-table.js';
 import { error } from '../util/error.js';
 
 /** A numeric option's domain: whole or real, and its ends (open ends exclude the value). */
@@ -16,6 +17,8 @@ export interface NumberBound {
   readonly openMax?: boolean;
   /** why the bound is what it is, when it is not obvious */
   readonly why?: string;
+  /** the expected value in words, where another message already says it (cost tables) */
+  readonly expected?: string;
 }
 
 const CORES = Math.max(1, cpus().length);
@@ -48,7 +51,7 @@ export const NUMBER_BOUNDS: Readonly<Record<string, NumberBound>> = {
   'floor-margin': fraction(false),
   'min-headroom': fraction(false),
   'curve-exponent': { integer: false, min: 0, max: 10, openMin: true },
-  'label-cost': { integer: false, min: 0, max: 1e12, openMin: true },
+  'label-cost': { integer: false, min: COST_RANGE.min, max: COST_RANGE.max, expected: COST_EXPECTED },
   'max-bias': limit,
   'max-variance': limit,
   'max-mismatch': limit,
@@ -81,7 +84,7 @@ export function boundedNumber(b: NumberBound, value: unknown, shown: string): nu
     (!b.integer || Number.isInteger(v)) &&
     (b.openMin ? v > b.min : v >= b.min) &&
     (b.openMax ? v < b.max : v <= b.max);
-  if (!ok) throw error(`${shown}: expected ${describeBound(b)}${b.why ? ` (${b.why})` : ''}`);
+  if (!ok) throw error(`${shown}: expected ${b.expected ?? describeBound(b)}${b.why ? ` (${b.why})` : ''}`);
   return v as number;
 }
 

@@ -14,15 +14,37 @@ import { MISSING, type CellPlan, type Grouping } from './cells.js';
 import { dialect as dialectOf, type Dialect } from './dialect.js';
 import { binLabel } from './profile.js';
 import { ROWS_VIEW } from './source.js';
-import type { SliceColumn } from './types.js';
+import type { SliceColumn, Split } from './types.js';
 import type { FloorEntry } from '../io/read-floor-table.js';
 
 /** Pseudo-split values that mark rows the scan could not use; never valid split spellings. */
 export const STATUS_SPLITS = { 2: '!unlabelled', 3: '!score', 4: '!weight', 5: '!error' } as const;
 
+/**
+ * The domain of a row's weight: 0, or a finite number from `min` to `max`. Over up to 1e12 rows every
+ * sum stays finite (Σw ≤ 1e112, Σw² ≤ 1e212, (Σw)² ≤ 1e224) and every non-zero sum stays a normal number
+ * (w² ≥ 1e-200); docs/method.md, "Weights".
+ */
+export const WEIGHT_RANGE = { min: 1e-100, max: 1e100 } as const;
+
+/** What a valid weight is, in words, for messages. */
+export const WEIGHT_EXPECTED = 'a weight of 0 or between 1e-100 and 1e100';
+
+/**
+ * SQL condition true when `w` (a double; NULL for a value that is not a number) is not a valid weight
+ * ({@link WEIGHT_RANGE}). The one definition of a valid weight: the cell query's row status and the
+ * query that locates the first bad row (load.ts) both use it.
+ * @example
+ * badWeightSql(dialect('duckdb'), 'w'); // => "(w IS NULL OR NOT (isfinite(w)) OR w < 0 OR w > 1e+100 OR (w > 0 AND w < 1e-100))"
+ */
+export function badWeightSql(d: Dialect, w: string): string {
+  return `(${w} IS NULL OR NOT (${d.isFinite(w)}) OR ${w} < 0 OR ${w} > ${d.num(WEIGHT_RANGE.max)} OR (${w} > 0 AND ${w} < ${d.num(WEIGHT_RANGE.min)}))`;
+}
+
 const TRUE_WORDS = ['1', '1.0', 'true', 't', 'yes', 'y'];
 const FALSE_WORDS = ['0', '0.0', 'false', 'f', 'no', 'n'];
-const SPLIT_SPELLINGS: readonly (readonly [string, string])[] = [
+/** Split spellings (trimmed, lower case) and the split each names. */
+export const SPLIT_SPELLINGS: readonly (readonly [string, Split])[] = [
   ['train', 'train'],
   ['train_dev', 'train_dev'],
   ['train-dev', 'train_dev'],
@@ -140,7 +162,7 @@ export function cellQuery(plan: CellPlan, grouping: Grouping, options: CellQuery
   const weighted = roles.weight !== null;
   if (weighted) {
     const w = num(roles.weight!);
-    status.push(`WHEN ${w} IS NULL OR ${w} < 0 OR NOT (${d.isFinite(w)}) THEN 4`);
+    status.push(`WHEN ${badWeightSql(d, w)} THEN 4`);
     row.push(`${w} AS fg_w`);
   }
   // blank: empty after trimming; DuckDB first tests whether the value starts below '!' (cheap), so the

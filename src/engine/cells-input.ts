@@ -4,16 +4,17 @@
  * are summed. The cells enter the flow where the scan's cells would: the result is a `Loaded`.
  * Format: docs/formats.md, "Cells".
  */
-import { AUDIT_COLUMNS } from './cell-query.js';
+import { AUDIT_COLUMNS, WEIGHT_EXPECTED, WEIGHT_RANGE } from './cell-query.js';
 import type { CellPlan, Grouping } from './cells.js';
 import { unknownSplitError } from './cells.js';
 import type { Duck } from './duck.js';
-import { withCells, type Loaded } from './load.js';
+import { checkSplitWeights, splitTotals, withCells, type Loaded } from './load.js';
 import { readCells } from './read-cells.js';
-import { runsOf, cellIndicesFor } from './slices.js';
+import { runsOf } from './slices.js';
 import { ident } from './sql.js';
 import { SPLITS, type SliceColumn, type Split } from './types.js';
 import { describeColumns, detectTable, readError, tableSql, type TableInput } from '../io/read-table.js';
+import { COST_RANGE } from '../io/read-floor-table.js';
 import { error } from '../util/error.js';
 
 /** Columns every cells file has. */
@@ -73,19 +74,212 @@ export function cellsLayout(path: string, columns: readonly string[]): CellsLayo
   return { keys, run: columns.includes('fg_run'), present: new Set(columns), annotators, classes, auditColumns };
 }
 
+/** Most rows one cell may count: 2^53, the largest whole number a double holds exactly. */
+const MAX_CELL_ROWS = 2 ** 53;
+/** Relative slack of comparisons between sums: their floating-point rounding. */
+const SLACK = 1e-9;
+/** Value of an optional statistic left empty or absent (as the sums read them). */
+const DEFAULTS: Readonly<Record<string, string>> = { fg_floor_entry: '-1', fg_floor: 'NULL', fg_floor_n: 'NULL' };
+
+/**
+ * A rule every cell of a cells file obeys (docs/formats.md, "Cells"). `bad` is SQL true when a cell
+ * breaks it, over the statistics as doubles (`v`) or as trimmed text (`t`); `says` is the message after
+ * `column "…": `, from the values as written (`x`).
+ */
+interface CellRule {
+  readonly column: string;
+  readonly bad: (v: (c: string) => string, t: (c: string) => string) => string;
+  readonly says: (x: (c: string) => string) => string;
+  /** a rule over the text (not a number, an empty required value): only for files, not for summed cells */
+  readonly text?: boolean;
+  /** also for the rows the query set aside (fg_split "!…"), whose other sums may be anything */
+  readonly setAside?: boolean;
+}
+
+/**
+ * The rules of the cells of a layout, in the order they are checked on each cell: every statistic is
+ * a number (the required ones not empty), and finite; then what sums of rows with valid weights, floors,
+ * costs and audit labels can be.
+ */
+function cellRules(lay: CellsLayout): CellRule[] {
+  const required = new Set<string>(REQUIRED);
+  const stats = [...NUMERIC, ...lay.auditColumns].filter((c) => lay.present.has(c));
+  const rules: CellRule[] = [];
+  for (const c of stats) {
+    rules.push({
+      column: c,
+      text: true,
+      setAside: true,
+      bad: (_, t) => (required.has(c) ? `${t(c)} IS NULL OR ${t(c)} = '' OR TRY_CAST(${t(c)} AS DOUBLE) IS NULL` : `${t(c)} <> '' AND TRY_CAST(${t(c)} AS DOUBLE) IS NULL`),
+      says: (x) => `expected a number, got "${x(c)}"`,
+    });
+  }
+  for (const c of stats) {
+    rules.push({ column: c, setAside: c === 'fg_rows', bad: (v) => `NOT isfinite(${v(c)})`, says: (x) => `expected a finite number, got "${x(c)}"` });
+  }
+  const le = (a: string, b: string) => `${a} > ${b} * ${1 + SLACK}`;
+  const whole = (e: string) => `${e} <> floor(${e})`;
+  const add = (column: string, bad: CellRule['bad'], says: CellRule['says']) => {
+    if (lay.present.has(column)) rules.push({ column, bad, says });
+  };
+  rules.push({
+    column: 'fg_rows',
+    setAside: true,
+    bad: (v) => `${v('fg_rows')} < 0 OR ${whole(v('fg_rows'))} OR ${v('fg_rows')} > ${MAX_CELL_ROWS}`,
+    says: (x) => `expected a whole number of rows from 0 to 2^53, got "${x('fg_rows')}"`,
+  });
+  add('fg_weight', (v) => `${v('fg_weight')} < 0`, (x) => `expected a weight sum ≥ 0, got "${x('fg_weight')}"`);
+  add(
+    'fg_weight',
+    (v) => `(${v('fg_weight')} > 0 AND ${v('fg_weight')} < ${WEIGHT_RANGE.min}) OR ${v('fg_weight')} > ${v('fg_rows')} * ${WEIGHT_RANGE.max}`,
+    (x) => `weight ${x('fg_weight')} in a cell of ${x('fg_rows')} rows; expected fg_weight = 0 or 1e-100 ≤ fg_weight ≤ fg_rows × 1e100 (each row weighs 0 or 1e-100 to 1e100)`,
+  );
+  add('fg_weight_sq', (v) => `${v('fg_weight_sq')} < 0`, (x) => `expected a sum of squared weights ≥ 0, got "${x('fg_weight_sq')}"`);
+  add(
+    'fg_weight_sq',
+    (v) => le(v('fg_weight_sq'), `${v('fg_weight')} * ${v('fg_weight')}`),
+    (x) => `Σw² ${x('fg_weight_sq')} above the squared weight ${x('fg_weight')}²; expected fg_weight_sq ≤ fg_weight²`,
+  );
+  add(
+    'fg_weight_sq',
+    (v) => le(`${v('fg_weight')} * ${v('fg_weight')}`, `${v('fg_rows')} * ${v('fg_weight_sq')}`),
+    (x) => `weight ${x('fg_weight')} with Σw² ${x('fg_weight_sq')} over ${x('fg_rows')} rows; expected fg_weight² ≤ fg_rows × fg_weight_sq (Cauchy–Schwarz)`,
+  );
+  add(
+    'fg_errors',
+    (v) => `${v('fg_errors')} < 0 OR ${le(v('fg_errors'), v('fg_weight'))}`,
+    (x) => `${x('fg_errors')} errors in a cell of weight ${x('fg_weight')}; expected 0 ≤ fg_errors ≤ fg_weight`,
+  );
+  add(
+    'fg_floor_sum',
+    (v) => `${v('fg_floor_sum')} < 0 OR ${le(v('fg_floor_sum'), v('fg_weight'))}`,
+    (x) => `floor sum ${x('fg_floor_sum')} in a cell of weight ${x('fg_weight')}; expected 0 ≤ fg_floor_sum ≤ fg_weight`,
+  );
+  add('fg_floor', (v) => `${v('fg_floor')} < 0 OR ${v('fg_floor')} > 1`, (x) => `expected a floor in [0, 1] (or empty), got "${x('fg_floor')}"`);
+  add('fg_floor_n', (v) => `${v('fg_floor_n')} <= 0`, (x) => `expected a floor n > 0 (or empty), got "${x('fg_floor_n')}"`);
+  add(
+    'fg_floor_entry',
+    (v) => `${v('fg_floor_entry')} < -1 OR ${whole(v('fg_floor_entry'))} OR ${v('fg_floor_entry')} > 2147483647`,
+    (x) => `expected a whole number ≥ -1 (the floor-table entry; -1 for the default floor), got "${x('fg_floor_entry')}"`,
+  );
+  add(
+    'fg_cost_weight',
+    (v) => `${v('fg_cost_weight')} < 0 OR ${le(v('fg_cost_weight'), v('fg_weight'))}`,
+    (x) => `cost weight ${x('fg_cost_weight')} in a cell of weight ${x('fg_weight')}; expected 0 ≤ fg_cost_weight ≤ fg_weight`,
+  );
+  add(
+    'fg_cost_sum',
+    (v) => `${v('fg_cost_sum')} < ${v('fg_cost_weight')} * ${COST_RANGE.min * (1 - SLACK)} OR ${le(v('fg_cost_sum'), `${v('fg_cost_weight')} * ${COST_RANGE.max}`)}`,
+    (x) =>
+      `cost sum ${x('fg_cost_sum')} over a cost weight of ${x('fg_cost_weight')}; expected 1e-12 × fg_cost_weight ≤ fg_cost_sum ≤ 1e12 × fg_cost_weight (costs from 1e-12 to 1e12)`,
+  );
+  if (lay.annotators.length === 0) return rules;
+  // audit counts (unweighted): whole numbers, each within the rows it counts among
+  const counts = lay.auditColumns.filter((c) => c !== 'fg_panel_errors' && c !== 'fg_agree_sum');
+  for (const c of counts) add(c, (v) => `${v(c)} < 0 OR ${whole(v(c))}`, (x) => `expected a whole number ≥ 0, got "${x(c)}"`);
+  add('fg_audited', (v) => `${v('fg_audited')} > ${v('fg_rows')}`, (x) => `${x('fg_audited')} audited rows in a cell of ${x('fg_rows')} rows; expected fg_audited ≤ fg_rows`);
+  add(
+    'fg_panel_rows',
+    (v) => `${v('fg_panel_rows')} > ${v('fg_audited')}`,
+    (x) => `${x('fg_panel_rows')} panel rows of ${x('fg_audited')} audited rows; expected fg_panel_rows ≤ fg_audited`,
+  );
+  add(
+    'fg_panel_errors',
+    (v) => `${v('fg_panel_errors')} < 0 OR ${le(v('fg_panel_errors'), v('fg_panel_rows'))}`,
+    (x) => `${x('fg_panel_errors')} panel errors in ${x('fg_panel_rows')} panel rows; expected 0 ≤ fg_panel_errors ≤ fg_panel_rows`,
+  );
+  add(
+    'fg_agree_sum',
+    (v) => `${v('fg_agree_sum')} < 0 OR ${le(v('fg_agree_sum'), v('fg_panel_rows'))}`,
+    (x) => `agreement sum ${x('fg_agree_sum')} over ${x('fg_panel_rows')} panel rows; expected 0 ≤ fg_agree_sum ≤ fg_panel_rows`,
+  );
+  for (const a of lay.annotators) {
+    const rowsCol = `fg_ann_rows__${a}`;
+    const errorsCol = `fg_ann_errors__${a}`;
+    const q = JSON.stringify;
+    add(rowsCol, (v) => `${v(rowsCol)} > ${v('fg_audited')}`, (x) => `${x(rowsCol)} labelled rows of ${x('fg_audited')} audited rows; expected ${q(rowsCol)} ≤ fg_audited`);
+    add(errorsCol, (v) => `${v(errorsCol)} > ${v(rowsCol)}`, (x) => `${x(errorsCol)} labels that differ from the label, of ${x(rowsCol)} given; expected ${q(errorsCol)} ≤ ${q(rowsCol)}`);
+    for (const c of [...lay.classes.map((k) => `fg_class__${a}__${k}`), `fg_class_other__${a}`]) {
+      add(c, (v) => `${v(c)} > ${v('fg_panel_rows')}`, (x) => `${x(c)} labels on ${x('fg_panel_rows')} panel rows; expected ${q(c)} ≤ fg_panel_rows`);
+    }
+  }
+  return rules;
+}
+
+/** A statistic's value when a cells file leaves it empty or lacks its column. */
+function defaultOf(c: string): string {
+  return DEFAULTS[c] ?? '0';
+}
+
+/**
+ * The first cell of `from` (in its order) that breaks a rule, and the rule: one scan.
+ * @param value SQL of statistic `c` as text, or null when the relation lacks it
+ * @param asText true for a file read as text (every rule applies); false for summed cells (doubles)
+ */
+async function firstBrokenRule(
+  duck: Duck,
+  from: string,
+  rules: readonly CellRule[],
+  value: (c: string) => string | null,
+  asText: boolean,
+  extra: readonly string[],
+): Promise<{ rule: CellRule; x: (c: string) => string; row: Record<string, unknown> } | null> {
+  const t = (c: string) => {
+    const sql = value(c);
+    return sql === null ? 'NULL' : `trim(CAST(${sql} AS VARCHAR))`;
+  };
+  const v = (c: string) => {
+    const sql = value(c);
+    if (sql === null) return defaultOf(c);
+    return `COALESCE(${asText ? `TRY_CAST(${t(c)} AS DOUBLE)` : `CAST(${sql} AS DOUBLE)`}, ${defaultOf(c)})`;
+  };
+  const used = rules.filter((r) => (asText || !r.text) && value(r.column) !== null);
+  if (used.length === 0) return null;
+  const aside = `COALESCE(starts_with(trim(CAST(fg_split AS VARCHAR)), '!'), false)`;
+  const whens = used.map((r, i) => `WHEN ${r.setAside ? '' : `NOT ${aside} AND `}(${r.bad(v, t)}) THEN ${i}`);
+  // the values a message may show: every statistic the relation holds (each has a finiteness rule)
+  const stats = [...new Set(used.map((r) => r.column))];
+  const shown = stats.map((c, i) => `${asText ? t(c) : `CAST(${value(c)} AS DOUBLE)`} AS fg_x${i}`);
+  const rows = await duck.all(
+    `SELECT * FROM (SELECT fg_rn, CASE ${whens.join(' ')} END AS fg_rule, ${[...shown, ...extra].join(', ')} FROM (SELECT row_number() OVER () AS fg_rn, * FROM ${from})) WHERE fg_rule IS NOT NULL ORDER BY fg_rn LIMIT 1`,
+  );
+  if (rows.length === 0) return null;
+  const row = rows[0];
+  const x = (c: string) => {
+    const i = stats.indexOf(c);
+    const raw = i < 0 ? null : row[`fg_x${i}`];
+    return raw === null || raw === undefined ? '' : asText ? String(raw) : String(Number(raw));
+  };
+  return { rule: used[Number(row.fg_rule)], x, row };
+}
+
 function sameColumns(a: readonly string[], b: readonly string[]): boolean {
   return a.length === b.length && [...a].sort().join('\u0000') === [...b].sort().join('\u0000');
 }
 
-/** The first row of an input where `predicate` holds, as "file: line N, " (row N for Parquet). */
-async function locate(duck: Duck, input: TableInput, expr: string, predicate: string, column: string): Promise<{ at: string; value: string } | null> {
-  const rows = await duck.all(
-    `SELECT fg_rn, CAST(${ident(column)} AS VARCHAR) AS v FROM (SELECT row_number() OVER () AS fg_rn, * FROM ${expr}) WHERE ${predicate} ORDER BY fg_rn LIMIT 1`,
-  );
-  if (rows.length === 0) return null;
-  const rn = Number(rows[0].fg_rn);
-  const at = input.format === 'parquet' ? `row ${rn}` : input.format === 'jsonl' ? `line ${rn}` : `line ${rn + 1}`;
-  return { at: `${input.path}: ${at}, `, value: rows[0].v === null ? '' : String(rows[0].v) };
+let summedCounter = 0;
+
+/**
+ * The rules again on the cells summed over the shards (and over lines that repeat a cell): a sum of
+ * possible cells is possible, but for rounding, overflow and the 2^53 rows a double counts exactly.
+ */
+async function checkSummed(duck: Duck, table: string, lay: CellsLayout, where: string): Promise<void> {
+  const inSum = new Set(['fg_rows', 'fg_weight', 'fg_weight_sq', 'fg_errors', 'fg_floor_sum', 'fg_cost_sum', 'fg_cost_weight', 'fg_floor_entry', 'fg_floor_n']);
+  const value = (c: string) => {
+    const audit = lay.auditColumns.indexOf(c);
+    if (audit >= 0) return `fg_a${audit}`;
+    return inSum.has(c) ? c : null;
+  };
+  const keys = [...(lay.run ? ['fg_run'] : []), ...lay.keys];
+  const extra = ['fg_split', ...keys].map((k, i) => `CAST(${ident(k)} AS VARCHAR) AS fg_k${i}`);
+  const broken = await firstBrokenRule(duck, table, cellRules(lay), value, false, extra);
+  if (!broken) return;
+  const cell = ['fg_split', ...keys]
+    .map((k, i) => [k, broken.row[`fg_k${i}`]] as const)
+    .filter(([, v]) => v !== null && v !== undefined)
+    .map(([k, v]) => `${k} ${JSON.stringify(String(v))}`)
+    .join(', ');
+  throw error(`${where}: the cell ${cell}, summed over the files: column "${broken.rule.column}": ${broken.rule.says(broken.x)}`);
 }
 
 /**
@@ -110,12 +304,12 @@ export async function loadCellFiles(duck: Duck, paths: readonly string[], by: re
     } else if (!sameColumns(cols, columns)) {
       throw error(`${path}: its columns differ from ${paths[0]}'s; shards of one cells result have the same columns`);
     }
-    // every statistic must be a number
-    for (const c of [...NUMERIC, ...mine.auditColumns]) {
-      if (!cols.includes(c)) continue;
-      const bad = `${ident(c)} IS NOT NULL AND trim(CAST(${ident(c)} AS VARCHAR)) <> '' AND TRY_CAST(${ident(c)} AS DOUBLE) IS NULL`;
-      const found = await locate(duck, input, expr, bad, c);
-      if (found) throw error(`${found.at}column "${c}": expected a number, got "${found.value}"`);
+    // every statistic a finite number, and every cell a possible sum of rows (before the shards are summed)
+    const broken = await firstBrokenRule(duck, expr, cellRules(mine), (c) => (cols.includes(c) ? ident(c) : null), true, []);
+    if (broken) {
+      const rn = Number(broken.row.fg_rn);
+      const at = input.format === 'parquet' ? `row ${rn}` : input.format === 'jsonl' ? `line ${rn}` : `line ${rn + 1}`;
+      throw error(`${path}: ${at}, column "${broken.rule.column}": ${broken.rule.says(broken.x)}`);
     }
     inputs.push(input);
     exprs.push(expr);
@@ -143,8 +337,11 @@ export async function loadCellFiles(duck: Duck, paths: readonly string[], by: re
     ...lay.auditColumns.map((_, i) => `sum(fg_a${i}) AS fg_a${i}`),
   ].join(', ')} FROM (SELECT ${inner.join(', ')} FROM (${union})) GROUP BY ${groupBy.join(', ')}) AS fg_in`;
   let read;
+  const summed = `fg_cells_in_${process.pid}_${summedCounter++}`;
   try {
-    read = await readCells(duck, merged, lay.keys, {
+    await duck.run(`CREATE TEMP TABLE ${summed} AS SELECT * FROM ${merged}`);
+    await checkSummed(duck, summed, lay, where);
+    read = await readCells(duck, summed, lay.keys, {
       limit,
       keys: lay.keys,
       split: 'fg_split',
@@ -155,13 +352,15 @@ export async function loadCellFiles(duck: Duck, paths: readonly string[], by: re
   } catch (e) {
     if (e instanceof Error && e.name === 'FloorgapError') throw e;
     throw readError(where, e);
+  } finally {
+    await duck.run(`DROP TABLE IF EXISTS ${summed}`);
   }
   const { table, other } = read;
   const warnings: string[] = [];
   const unknown = new Map<string, number>();
   for (const [raw, n] of other) {
     if (raw === '!unlabelled') warnings.push(`${n} rows with an empty label or prediction were left out`);
-    else if (raw === '!weight') throw error(`${where}: ${n} rows have a weight that is not a number >= 0 (fg_split "!weight"); fix them in the table the cells came from`);
+    else if (raw === '!weight') throw error(`${where}: ${n} rows have a bad weight (fg_split "!weight"), expected ${WEIGHT_EXPECTED}; fix them in the table the cells came from`);
     else if (raw === '!score') throw error(`${where}: ${n} rows have a score that is not a number (fg_split "!score"); fix them in the table the cells came from`);
     else if (raw === '!error') throw error(`${where}: ${n} rows have an error value that is not 0 or 1 (fg_split "!error"); fix them in the table the cells came from`);
     else unknown.set(raw, n);
@@ -176,14 +375,19 @@ export async function loadCellFiles(duck: Duck, paths: readonly string[], by: re
     sets.set(set.join('\u0000'), set);
   }
   if (grouping.kind === 'sets') grouping = { kind: 'sets', sets: [...sets.values()] };
-  const counts: Record<Split, number> = { train: 0, train_dev: 0, dev: 0, test: 0 };
-  for (const i of cellIndicesFor({ table, index: null }, [])) counts[SPLITS[table.split[i]]] += table.rows[i];
+  const totals = splitTotals(table);
+  const counts = totals.rows;
+  const leftOut = other.get('!unlabelled') ?? 0;
+  if (leftOut > 0 && SPLITS.every((s) => counts[s] === 0)) {
+    throw error(`${where}: every row was left out: ${leftOut} rows have an empty label or prediction (fg_split "!unlabelled"); expected class labels in both columns`);
+  }
   for (const required of ['train', 'dev'] as const) {
     if (counts[required] === 0) {
       const present = (Object.keys(counts) as Split[]).filter((s) => counts[s] > 0);
       throw error(`${where}: no cells with split ${required}${present.length ? ` (found ${present.join(', ')})` : ''}; train and dev are required`);
     }
   }
+  checkSplitWeights(where, totals);
   const resolvedBy = by
     ? by.map((b) => {
         if (!lay.keys.includes(b)) {

@@ -2,7 +2,8 @@ import type { Duck } from './duck.js';
 import { binLabel, textSql } from './profile.js';
 import type { Roles } from './roles.js';
 import { SPLIT_HELP } from './roles.js';
-import { AUDIT_COLUMNS, cellColumnNames, cellQuery, STATUS_SPLITS, type ColumnKind } from './cell-query.js';
+import { AUDIT_COLUMNS, badWeightSql, cellColumnNames, cellQuery, STATUS_SPLITS, type ColumnKind } from './cell-query.js';
+import { dialect } from './dialect.js';
 import type { CellTable } from './cell-table.js';
 import { readCells } from './read-cells.js';
 import { literal } from './sql.js';
@@ -96,7 +97,7 @@ export function rowSql(plan: CellPlan): {
 } {
   const { roles } = plan;
   const weight = roles.weight ? `TRY_CAST(${textSql(roles.weight)} AS DOUBLE)` : '1';
-  const badWeight = roles.weight ? `(${weight} IS NULL OR ${weight} < 0 OR isnan(${weight}) OR isinf(${weight}))` : 'FALSE';
+  const badWeight = roles.weight ? badWeightSql(dialect('duckdb'), weight) : 'FALSE';
   const scoreNum = roles.score ? `TRY_CAST(${textSql(roles.score)} AS DOUBLE)` : null;
   const badScore = roles.score ? `(${textSql(roles.score)} IS NOT NULL AND (${scoreNum} IS NULL OR isnan(${scoreNum}) OR isinf(${scoreNum})))` : 'FALSE';
   const { error, badError, unlabelled } = errorSql(roles);

@@ -1,11 +1,12 @@
-import { keySql, readCellResult, scanCells, unknownSplitError, type CellPlan, type Grouping, type ScanIssues } from './cells.js';
-import { cellQuery } from './cell-query.js';
+import { errorSql, keySql, readCellResult, scanCells, unknownSplitError, type CellPlan, type Grouping, type ScanIssues } from './cells.js';
+import { badWeightSql, cellQuery, SPLIT_SPELLINGS, WEIGHT_EXPECTED } from './cell-query.js';
+import { dialect } from './dialect.js';
 import { concatTables, tableCells, type CellTable } from './cell-table.js';
 import type { Duck } from './duck.js';
 import { chooseSliceColumns, createSample, profileColumns, SAMPLE_ROWS, sampleTupleCount, sampleTupleStats, sliceColumns, type Profile } from './profile.js';
 import { chao1 } from '../stats/chao1.js';
 import { resolveRoles, roleColumns, type RoleOptions, type Roles } from './roles.js';
-import { checkWhere, openSource, type Source, type SourceSpec } from './source.js';
+import { checkWhere, openSource, ROWS_VIEW, type Source, type SourceSpec } from './source.js';
 import { safeWhere } from './where.js';
 import { ident } from './sql.js';
 import { SPLITS, type Cell, type SliceColumn, type Split } from './types.js';
@@ -309,12 +310,15 @@ async function scanPlanned(duck: Duck, planned: ScanPlan): Promise<Loaded> {
     throw (await locateReadError(source.inputs)) ?? readError(source.where, e);
   });
   let table = scanned.table;
-  await checkIssues(duck, source, roles, plan, scanned.issues, warnings);
+  const issues = scanned.issues;
+  await checkIssues(duck, source, roles, plan, issues, warnings);
   if (grouping.kind === 'sets' && by && by.length > 2) {
     // a by of three or more columns: one more GROUP BY for exactly those columns
     table = concatTables(table, await scanGroupingTable(duck, plan, by));
   }
-  const counts = splitCounts(table);
+  const totals = splitTotals(table);
+  const counts = totals.rows;
+  if (issues.unlabelled > 0) await checkLeftOut(duck, source.where, plan, counts, issues.unlabelled);
   for (const required of ['train', 'dev'] as const) {
     if (counts[required] === 0) {
       const present = (Object.keys(counts) as Split[]).filter((s) => counts[s] > 0);
@@ -323,6 +327,7 @@ async function scanPlanned(duck: Duck, planned: ScanPlan): Promise<Loaded> {
       );
     }
   }
+  checkSplitWeights(source.where, totals);
   if (floorTable) {
     const used = new Set(table.floorEntry);
     for (const [i, e] of floorTable.entries.entries()) {
@@ -347,12 +352,35 @@ export function withCells(loaded: Omit<Loaded, 'cells'>): Loaded {
   }) as Loaded;
 }
 
-function splitCounts(table: CellTable): Record<Split, number> {
-  const out: Record<Split, number> = { train: 0, train_dev: 0, dev: 0, test: 0 };
-  // in grouping-sets mode count one set only: the cells serving the overall slice
+/** Rows and Σw of each split, over the cells serving the overall slice. */
+export interface SplitTotals {
+  readonly rows: Record<Split, number>;
+  readonly weight: Record<Split, number>;
+}
+
+/** Rows and Σw per split (in grouping-sets mode one set only: the cells serving the overall slice). */
+export function splitTotals(table: CellTable): SplitTotals {
+  const rows: Record<Split, number> = { train: 0, train_dev: 0, dev: 0, test: 0 };
+  const weight: Record<Split, number> = { train: 0, train_dev: 0, dev: 0, test: 0 };
   const use = cellIndicesFor({ table, index: null }, []);
-  for (const i of use) out[SPLITS[table.split[i]]] += table.rows[i];
-  return out;
+  for (const i of use) {
+    rows[SPLITS[table.split[i]]] += table.rows[i];
+    weight[SPLITS[table.split[i]]] += table.weight[i];
+  }
+  return { rows, weight };
+}
+
+/**
+ * Every split that has rows needs some weight: a split whose rows all weigh 0 has no error rate, and
+ * its gaps would silently vanish from the report. (A slice whose rows all weigh 0 is thin instead.)
+ */
+export function checkSplitWeights(where: string, totals: SplitTotals): void {
+  const present = SPLITS.filter((s) => totals.rows[s] > 0);
+  const weightless = present.filter((s) => !(totals.weight[s] > 0));
+  if (weightless.length === 0) return;
+  if (weightless.length === present.length) throw error(`${where}: every row has weight 0; expected some weight > 0`);
+  const s = weightless[0];
+  throw error(`${where}: every row with split ${s} has weight 0 (${plural(totals.rows[s], 'row')}); expected some weight > 0 in each split`);
 }
 
 /**
@@ -397,8 +425,8 @@ export function pairSets(names: readonly string[], by: readonly string[] | null)
 
 async function checkIssues(duck: Duck, source: Source, roles: Roles, plan: CellPlan, issues: ScanIssues, warnings: string[]): Promise<void> {
   if (issues.badWeight > 0) {
-    const at = await firstBadRow(duck, source, `NOT (${weightOk(roles.weight!)})`, roles.weight!, plan.where);
-    throw error(`${at}column "${roles.weight}": expected a weight >= 0, got "${at.value}" (${plural(issues.badWeight, "row")} like it)`);
+    const at = await firstBadRow(duck, source, badWeightSql(dialect('duckdb'), `TRY_CAST(trim("${esc(roles.weight!)}") AS DOUBLE)`), roles.weight!, plan.where);
+    throw error(`${at}column "${roles.weight}": expected ${WEIGHT_EXPECTED}, got "${at.value}" (${plural(issues.badWeight, "row")} like it)`);
   }
   if (issues.badScore > 0) {
     const at = await firstBadRow(duck, source, `NULLIF(trim("${esc(roles.score!)}"), '') IS NOT NULL AND (TRY_CAST(trim("${esc(roles.score!)}") AS DOUBLE) IS NULL OR isinf(TRY_CAST(trim("${esc(roles.score!)}") AS DOUBLE)) OR isnan(TRY_CAST(trim("${esc(roles.score!)}") AS DOUBLE)))`, roles.score!, plan.where);
@@ -416,13 +444,37 @@ async function checkIssues(duck: Duck, source: Source, roles: Roles, plan: CellP
   }
 }
 
-function esc(name: string): string {
-  return name.replace(/"/g, '""');
+/**
+ * When rows left out for an empty label or prediction (or error value) leave no usable row at all, or
+ * none in a required split, says so: "no rows with split train" would send the user looking for a
+ * split that is there. Only on the error path: counts the left-out rows per split in one more query.
+ */
+async function checkLeftOut(duck: Duck, where: string, plan: CellPlan, counts: Record<Split, number>, unlabelled: number): Promise<void> {
+  const { roles } = plan;
+  const what = roles.error ? `an empty "${roles.error}"` : `an empty "${roles.label}" or "${roles.pred}"`;
+  if (SPLITS.every((s) => counts[s] === 0)) {
+    const expected = roles.error ? '0 or 1 (or true/false) in it' : 'class labels in both columns';
+    throw error(`${where}: every row was left out: ${plural(unlabelled, 'row')} ${unlabelled === 1 ? 'has' : 'have'} ${what}; expected ${expected}`);
+  }
+  const missing = (['train', 'dev'] as const).filter((s) => counts[s] === 0);
+  if (missing.length === 0) return;
+  const filter = plan.where ? ` AND (${plan.where})` : '';
+  const rows = await duck.all(
+    `SELECT lower(trim(${ident(plan.splitColumn)})) AS s, count(*) AS n FROM ${ROWS_VIEW} WHERE ${errorSql(roles).unlabelled}${filter} GROUP BY 1`,
+  );
+  const spelling = new Map<string, Split>(SPLIT_SPELLINGS);
+  const left: Record<Split, number> = { train: 0, train_dev: 0, dev: 0, test: 0 };
+  for (const r of rows) {
+    const split = spelling.get(String(r.s));
+    if (split) left[split] += Number(r.n);
+  }
+  for (const s of missing) {
+    if (left[s] > 0) throw error(`${where}: no usable rows with split ${s}: its ${plural(left[s], 'row')} ${left[s] === 1 ? 'has' : 'have'} ${what}`);
+  }
 }
 
-function weightOk(col: string): string {
-  const w = `TRY_CAST(trim("${esc(col)}") AS DOUBLE)`;
-  return `${w} IS NOT NULL AND ${w} >= 0 AND NOT isnan(${w}) AND NOT isinf(${w})`;
+function esc(name: string): string {
+  return name.replace(/"/g, '""');
 }
 
 export type { FloorEntry };

@@ -2,6 +2,22 @@ import type { Duck } from '../engine/duck.js';
 import { detectTable, readError, tableSql } from './read-table.js';
 import { error } from '../util/error.js';
 
+/**
+ * The domain of a labelling cost (cost tables and `--label-cost`): a finite number from `min` to `max`.
+ * With weights of at most 1e100 over up to 1e12 rows, Σw·cost stays below 1e124; with weights of at
+ * least 1e-100, w·cost stays a normal number, so a slice's mean cost is never 0 and the yield it divides
+ * stays finite (docs/method.md, "Labelling cost").
+ */
+export const COST_RANGE = { min: 1e-12, max: 1e12 } as const;
+
+/** What a valid cost is, in words, for messages. */
+export const COST_EXPECTED = 'a cost from 1e-12 to 1e12 (e.g. 1, or 4 for a slice four times dearer to label)';
+
+/** True when `value` is a labelling cost ({@link COST_RANGE}). */
+export function validCost(value: number): boolean {
+  return Number.isFinite(value) && value >= COST_RANGE.min && value <= COST_RANGE.max;
+}
+
 /** One entry of a floor table: key values (a subset of slice columns), the floor, and its sample size. */
 export interface FloorEntry {
   /** line in the file (CSV/TSV: header is line 1) */
@@ -22,7 +38,7 @@ export interface FloorTable {
 
 /**
  * Reads a floor table (CSV, TSV or JSON Lines): key columns + `floor` (fraction in [0, 1]) + optional
- * `n`. Rejects floors outside [0, 1] (costs <= 0), non-positive `n`, and two entries with the same key
+ * `n`. Rejects floors outside [0, 1] (costs outside {@link COST_RANGE}), non-positive `n`, and two entries with the same key
  * (naming both lines, and their values when they differ).
  * @example
  * // package,floor,n
@@ -53,9 +69,10 @@ export async function readFloorTable(duck: Duck, path: string, valueColumn = 'fl
     const rawValue = String(row[valueColumn] ?? '').trim();
     const value = Number(rawValue);
     const isFloor = valueColumn === 'floor';
-    if (rawValue === '' || !Number.isFinite(value) || value < 0 || (isFloor && value > 1) || (!isFloor && value === 0)) {
+    const bad = rawValue === '' || (isFloor ? !Number.isFinite(value) || value < 0 || value > 1 : !validCost(value));
+    if (bad) {
       // a cost divides the yield: zero would make any slice infinitely cheap
-      const expected = isFloor ? 'a fraction in [0, 1] (e.g. 0.02 for 2 %)' : 'a cost > 0 (e.g. 1, or 4 for a slice four times dearer to label)';
+      const expected = isFloor ? 'a fraction in [0, 1] (e.g. 0.02 for 2 %)' : COST_EXPECTED;
       throw error(`${path}: line ${line}, column "${valueColumn}": expected ${expected}, got "${rawValue}"`);
     }
     let n: number | null = null;

@@ -6,7 +6,8 @@ import { assertFinite } from './validate-input.js';
  * unequal Pi", J. Official Statistics 8:183). With equal weights it equals the number of observations.
  * @param sumW the sum of the weights, Σw
  * @param sumW2 the sum of the squared weights, Σw²
- * @returns the effective sample size; 0 when `sumW2 <= 0` (no weighted observations)
+ * @returns the effective sample size; 0 when `sumW2 <= 0` (no weighted observations). Computed as
+ * Σw · (Σw / Σw²) when (Σw)² alone would overflow, so it is finite whenever n itself is a double
  * @throws RangeError when either argument is NaN or infinite
  * @example
  * kishEffectiveN(10, 10); // => 10 (ten weights of 1)
@@ -16,5 +17,6 @@ export function kishEffectiveN(sumW: number, sumW2: number): number {
   assertFinite('kishEffectiveN', 'sumW', sumW);
   assertFinite('kishEffectiveN', 'sumW2', sumW2);
   if (sumW2 <= 0) return 0;
-  return (sumW * sumW) / sumW2;
+  const n = (sumW * sumW) / sumW2;
+  return Number.isFinite(n) ? n : sumW * (sumW / sumW2);
 }

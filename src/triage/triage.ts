@@ -26,9 +26,16 @@ interface Prop {
   readonly n: number;
 }
 
+/**
+ * The split's weighted error rate and Kish n; null without weight, and null (never a crash) for sums no
+ * valid weights give: a Σw, Σw² or Σw·error that is not finite, or a Kish n that is not a finite
+ * positive number.
+ */
 function prop(s: SplitSums | undefined): Prop | null {
-  if (!s || s.weight <= 0) return null;
+  if (!s || !(s.weight > 0)) return null;
+  if (![s.weight, s.weightSq, s.errors].every(Number.isFinite)) return null;
   const n = kishEffectiveN(s.weight, s.weightSq);
+  if (!(n > 0 && Number.isFinite(n))) return null;
   return { p: s.errors / s.weight, n };
 }
 
@@ -71,7 +78,9 @@ export function sliceFloor(stats: SliceStats, confidence: number): SliceFloor {
     const pi = part.weight / w;
     inv += (pi * pi) / part.n;
   }
-  const n = uncertain && inv > 0 ? 1 / inv : null;
+  // entries with n whose share is so small that Σ π² / n is not above 1 / (largest double) leave the
+  // floor as good as exact (its n is not a double): no interval then
+  const n = uncertain && inv > 0 && Number.isFinite(1 / inv) ? 1 / inv : null;
   const ci = n !== null ? wilsonInterval(value * n, n, confidence) : null;
   const entries = new Set(parts.filter((p) => p.weight > 0).map((p) => p.entry));
   const hasDefault = entries.has(-1);
@@ -136,7 +145,8 @@ function draft(stats: SliceStats, devTotal: number, present: ReadonlySet<Split>,
     const hm = mismatch ? share * mismatch.value : null;
     headroom = { total: hb + hv + (hm ?? 0), bias: hb, variance: hv, mismatch: hm };
   }
-  const thin = (rows.train ?? 0) < o.minRows || (rows.dev ?? 0) < o.minRows;
+  // a slice whose train or dev rows all weigh 0 has no rate there: as thin as one without rows
+  const thin = (rows.train ?? 0) < o.minRows || (rows.dev ?? 0) < o.minRows || !props.train || !props.dev;
   const trainSums = stats.splits.train;
   // mean cost of a row: cost-table rows at their cost, the rest at --label-cost
   const cost = trainSums && trainSums.weight > 0 ? (trainSums.costSum + (trainSums.weight - trainSums.costWeight) * o.labelCost) / trainSums.weight : o.labelCost;
@@ -199,13 +209,15 @@ export function sliceYield(share: number, variance: number, mismatch: number | n
 
 /**
  * New labelled rows that halve the slice's generalisation gap under g ∝ n^−β:
- * (n/(n+Δ))^β = 1/2 ⇒ Δ = n (2^(1/β) − 1); null when β ≤ 0.
+ * (n/(n+Δ))^β = 1/2 ⇒ Δ = n (2^(1/β) − 1); null when β ≤ 0, and when the curve is so flat
+ * (β below about 1/1024) that Δ is beyond the largest double.
  * @example
  * labelsToHalve(4000, 0.5); // => 12000
  */
 export function labelsToHalve(nTrain: number, beta: number): number | null {
   if (!(beta > 0) || !(nTrain > 0)) return null;
-  return nTrain * (Math.pow(2, 1 / beta) - 1);
+  const rows = nTrain * (Math.pow(2, 1 / beta) - 1);
+  return Number.isFinite(rows) ? rows : null;
 }
 
 function withQ(g: Gap | null, q: number | null): Gap | null {

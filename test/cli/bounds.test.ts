@@ -25,7 +25,8 @@ describe('boundedNumber and memoryLimit', () => {
     expect(() => boundedNumber(NUMBER_BOUNDS.fdr, 1, '--fdr 1')).toThrow('--fdr 1: expected a fraction strictly between 0 and 1 (e.g. 0.05)');
     expect(() => boundedNumber(NUMBER_BOUNDS.bins, 2.5, '--bins 2.5')).toThrow('--bins 2.5: expected a whole number from 2 to 1,000');
     expect(() => boundedNumber(NUMBER_BOUNDS.top, NaN, '--top abc')).toThrow('--top abc: expected a whole number from 1 to 1,000,000');
-    expect(() => boundedNumber(NUMBER_BOUNDS['label-cost'], Infinity, '--label-cost 1e400')).toThrow(/expected a number > 0 and <= 1,000,000,000,000/);
+    expect(() => boundedNumber(NUMBER_BOUNDS['curve-exponent'], Infinity, '--curve-exponent 1e400')).toThrow('--curve-exponent 1e400: expected a number > 0 and <= 10');
+    expect(() => boundedNumber(NUMBER_BOUNDS['label-cost'], 1e308, '--label-cost 1e308')).toThrow('--label-cost 1e308: expected a cost from 1e-12 to 1e12');
   });
 
   it('threads: 1 to 4 × the cores', () => {

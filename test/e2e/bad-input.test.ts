@@ -48,11 +48,17 @@ describe.concurrent('bad files: exit 2 and one line naming what is wrong', () =>
     ['no label column', [f('no-label.csv')], /no-label\.csv: no label column; the columns are "id", "split", "station", "guess"/],
     ['bytes of no known format', [f('binary.bin')], /binary\.bin: unknown format; expected CSV, TSV, JSON Lines or Parquet/],
     ['bytes that are not UTF-8', [f('invalid-utf8.csv')], /invalid-utf8\.csv: line 22: bytes that are not valid UTF-8; save the file as UTF-8$/],
-    ['weight NaN', [f('weight-nan.csv')], /weight-nan\.csv: line 7, column "weight": expected a weight >= 0, got "NaN"/],
-    ['weight Infinity', [f('weight-inf.csv')], /weight-inf\.csv: line 52, column "weight": expected a weight >= 0, got "Infinity"/],
-    ['weight negative', [f('weight-negative.csv')], /weight-negative\.csv: line 43, column "weight": expected a weight >= 0, got "-2"/],
-    ['weight empty', [f('weight-empty.csv')], /weight-empty\.csv: line 9, column "weight": expected a weight >= 0, got ""/],
-    ['weight text', [f('weight-text.csv')], /weight-text\.csv: line 62, column "weight": expected a weight >= 0, got "heavy"/],
+    ['weight NaN', [f('weight-nan.csv')], /weight-nan\.csv: line 7, column "weight": expected a weight of 0 or between 1e-100 and 1e100, got "NaN"/],
+    ['weight Infinity', [f('weight-inf.csv')], /weight-inf\.csv: line 52, column "weight": expected a weight of 0 or between 1e-100 and 1e100, got "Infinity"/],
+    ['weight negative', [f('weight-negative.csv')], /weight-negative\.csv: line 43, column "weight": expected a weight of 0 or between 1e-100 and 1e100, got "-2"/],
+    ['weight empty', [f('weight-empty.csv')], /weight-empty\.csv: line 9, column "weight": expected a weight of 0 or between 1e-100 and 1e100, got ""/],
+    ['weight text', [f('weight-text.csv')], /weight-text\.csv: line 62, column "weight": expected a weight of 0 or between 1e-100 and 1e100, got "heavy"/],
+    ['weight too large (1e308)', [f('weight-huge.csv')], /weight-huge\.csv: line 5, column "weight": expected a weight of 0 or between 1e-100 and 1e100, got "1e308" \(1 row like it\)$/],
+    ['weight subnormal (1e-320)', [f('weight-subnormal.csv')], /weight-subnormal\.csv: line 46, column "weight": expected a weight of 0 or between 1e-100 and 1e100, got "1e-320" \(1 row like it\)$/],
+    ['every weight 0', [f('weight-all-zero.csv')], /weight-all-zero\.csv: every row has weight 0; expected some weight > 0$/],
+    ['every dev weight 0', [f('weight-zero-dev.csv')], /weight-zero-dev\.csv: every row with split dev has weight 0 \(40 rows\); expected some weight > 0 in each split$/],
+    ['every label empty', [f('labels-all-empty.csv')], /labels-all-empty\.csv: every row was left out: 80 rows have an empty "label" or "pred"; expected class labels in both columns$/],
+    ['every dev prediction empty', [f('dev-preds-empty.csv')], /dev-preds-empty\.csv: no usable rows with split dev: its 40 rows have an empty "label" or "pred"$/],
     ['score text', [f('score-text.csv')], /score-text\.csv: line 5, column "score": expected a number \(model confidence\), got "high"/],
     ['only one split', [f('one-split.csv')], /one-split\.csv: no rows with split dev \(found train\); train and dev are required/],
     ['an unknown split value', [f('unknown-split.csv')], /unknown-split\.csv: column "split" has unknown split values "holdout" \(5 rows\)/],
@@ -66,6 +72,16 @@ describe.concurrent('bad files: exit 2 and one line naming what is wrong', () =>
     // the fifth line lacks its closing brace; the engine's own message points at line 6
     ['JSON Lines with a broken line', [f('broken.jsonl')], /broken\.jsonl: line 5: not valid JSON \(.*\); every line must hold one JSON object$/],
     ['column names with control sequences', [f('control-header.csv')], /control-header\.csv: no label column; the columns are "id", "split", "sta\\u001b\[2Jtion", "verdict\\u202e", "guess\\u001b\]52;c;aGk=\\u0007"/],
+    // ready-made cells with impossible sums
+    ['cells: errors above the weight', ['--cells', f('cells-errors-above-weight.csv')], /cells-errors-above-weight\.csv: line 7, column "fg_errors": 12 errors in a cell of weight 10; expected 0 ≤ fg_errors ≤ fg_weight$/],
+    ['cells: a NaN statistic', ['--cells', f('cells-nan.csv')], /cells-nan\.csv: line 4, column "fg_weight_sq": expected a finite number, got "NaN"$/],
+    ['cells: a floor sum above the weight', ['--cells', f('cells-floor-above-weight.csv')], /cells-floor-above-weight\.csv: line 3, column "fg_floor_sum": floor sum 11 in a cell of weight 10; expected 0 ≤ fg_floor_sum ≤ fg_weight$/],
+    ['cells: negative rows', ['--cells', f('cells-negative-rows.csv')], /cells-negative-rows\.csv: line 8, column "fg_rows": expected a whole number of rows from 0 to 2\^53, got "-10"$/],
+    [
+      'cells: Σw² too small for the rows',
+      ['--cells', f('cells-weight-sq.csv')],
+      /cells-weight-sq\.csv: line 5, column "fg_weight_sq": weight 10 with Σw² 5 over 10 rows; expected fg_weight² ≤ fg_rows × fg_weight_sq \(Cauchy–Schwarz\)$/,
+    ],
     // floor tables
     ['floor table: a line repeated', [f('valid.csv'), '--floor-table', f('floors-duplicate.csv')], /floors-duplicate\.csv: line 4 repeats line 2 \(package=0402\); keep one$/],
     [
@@ -95,7 +111,8 @@ describe.concurrent('bad files: exit 2 and one line naming what is wrong', () =>
     ['baseline: a folder', ['check', f('valid.csv'), '--max-bias', '0.9', '--baseline', BAD], /test\/fixtures\/bad: is a folder; expected a report saved with floorgap report --format json or the baseline model's prediction table$/],
     // cost tables
     ['cost table: one key, two costs', [f('valid.csv'), '--cost-table', f('costs-conflicting.csv')], /costs-conflicting\.csv: lines 3 and 4 give package=QFN different values \(label_cost 4 and 2\); keep one$/],
-    ['cost table: a negative cost', [f('valid.csv'), '--cost-table', f('costs-negative.csv')], /costs-negative\.csv: line 3, column "label_cost": expected a cost > 0.*got "-4"$/],
+    ['cost table: a negative cost', [f('valid.csv'), '--cost-table', f('costs-negative.csv')], /costs-negative\.csv: line 3, column "label_cost": expected a cost from 1e-12 to 1e12.*got "-4"$/],
+    ['cost table: a cost too large to sum (1e308)', [f('valid.csv'), '--cost-table', f('costs-huge.csv')], /costs-huge\.csv: line 3, column "label_cost": expected a cost from 1e-12 to 1e12 \(e\.g\. 1, or 4 for a slice four times dearer to label\), got "1e308"$/],
   ];
   for (const [name, args, message] of cases) {
     it(name, async () => {

@@ -126,14 +126,19 @@ describe('bad input: one line on stderr, exit 2', () => {
   });
   it('negative weight, with file, line and column', async () => {
     const p = file('negw.csv', header + good(40, 'train') + 'x1,dev,S1,a,a,-1\n' + good(40, 'dev'));
-    await expectBad([p], /negw\.csv: line 42, column "weight": expected a weight >= 0, got "-1"/);
+    await expectBad([p], /negw\.csv: line 42, column "weight": expected a weight of 0 or between 1e-100 and 1e100, got "-1"/);
   });
   it('non-numeric weight', async () => {
     const p = file('textw.csv', header + good(40, 'train') + good(40, 'dev') + 'x2,dev,S1,a,a,heavy\n');
-    await expectBad([p], /textw\.csv: line 82, column "weight": expected a weight >= 0, got "heavy"/);
+    await expectBad([p], /textw\.csv: line 82, column "weight": expected a weight of 0 or between 1e-100 and 1e100, got "heavy"/);
   });
   it('--floor outside [0, 1]', async () => {
     await expectBad([file('ok2.csv', header + good(40, 'train') + good(40, 'dev')), '--floor', '1.5'], /--floor 1\.5: expected a fraction in \[0, 1\]/);
+  });
+  it('--label-cost outside [1e-12, 1e12]', async () => {
+    const data = file('ok-cost.csv', header + good(40, 'train') + good(40, 'dev'));
+    await expectBad([data, '--label-cost', '1e308'], /^floorgap: --label-cost 1e308: expected a cost from 1e-12 to 1e12 \(e\.g\. 1, or 4 for a slice four times dearer to label\)$/);
+    await expectBad([data, '--label-cost', '0'], /^floorgap: --label-cost 0: expected a cost from 1e-12 to 1e12/);
   });
   it('a floor table entry outside [0, 1]', async () => {
     const data = file('ok3.csv', header + good(40, 'train') + good(40, 'dev'));

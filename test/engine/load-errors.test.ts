@@ -74,39 +74,84 @@ describe('weights', () => {
     const path = csvFile({ 5: { weight: '-1' } });
     const e = await failure(loadCells(duck, options({ source: files(path) })));
     // id 5 → line 6 (hand-counted)
-    expect(e.message).toBe(`${path}: line 6, column "weight": expected a weight >= 0, got "-1" (1 row like it)`);
+    expect(e.message).toBe(`${path}: line 6, column "weight": expected a weight of 0 or between 1e-100 and 1e100, got "-1" (1 row like it)`);
   });
 
   it('the same count in grouping-sets mode', async () => {
     const path = csvFile({ 5: { weight: '-1' } });
     const e = await failure(loadCells(duck, options({ source: files(path), maxCells: 1 })));
-    expect(e.message).toBe(`${path}: line 6, column "weight": expected a weight >= 0, got "-1" (1 row like it)`);
+    expect(e.message).toBe(`${path}: line 6, column "weight": expected a weight of 0 or between 1e-100 and 1e100, got "-1" (1 row like it)`);
   });
 
   it('a non-numeric weight: the first bad line and the number of bad rows', async () => {
     const path = csvFile({ 3: { weight: 'heavy' }, 7: { weight: 'n/a' } });
     const e = await failure(loadCells(duck, options({ source: files(path) })));
     // id 3 → line 4; two bad rows (hand-counted)
-    expect(e.message).toBe(`${path}: line 4, column "weight": expected a weight >= 0, got "heavy" (2 rows like it)`);
+    expect(e.message).toBe(`${path}: line 4, column "weight": expected a weight of 0 or between 1e-100 and 1e100, got "heavy" (2 rows like it)`);
   });
 
   it('an empty weight', async () => {
     const path = csvFile({ 2: { weight: '' } });
     const e = await failure(loadCells(duck, options({ source: files(path) })));
-    expect(e.message).toBe(`${path}: line 3, column "weight": expected a weight >= 0, got "" (1 row like it)`);
+    expect(e.message).toBe(`${path}: line 3, column "weight": expected a weight of 0 or between 1e-100 and 1e100, got "" (1 row like it)`);
   });
 
   it('inf and NaN are not weights', async () => {
     const path = csvFile({ 4: { weight: 'inf' }, 6: { weight: 'NaN' } });
     const e = await failure(loadCells(duck, options({ source: files(path) })));
-    expect(e.message).toBe(`${path}: line 5, column "weight": expected a weight >= 0, got "inf" (2 rows like it)`);
+    expect(e.message).toBe(`${path}: line 5, column "weight": expected a weight of 0 or between 1e-100 and 1e100, got "inf" (2 rows like it)`);
+  });
+
+  it('a weight too large to square and sum safely (1e308), or too small to stay a normal number (1e-320)', async () => {
+    // the weight domain (docs/method.md, "Weights"): 0, or a finite number from 1e-100 to 1e100
+    const huge = csvFile({ 2: { weight: '1e308' } });
+    const e1 = await failure(loadCells(duck, options({ source: files(huge) })));
+    // id 2 → line 3 (hand-counted)
+    expect(e1.message).toBe(`${huge}: line 3, column "weight": expected a weight of 0 or between 1e-100 and 1e100, got "1e308" (1 row like it)`);
+    const tiny = csvFile({ 4: { weight: '1e-320' }, 7: { weight: '1e-101' } });
+    const e2 = await failure(loadCells(duck, options({ source: files(tiny) })));
+    // id 4 → line 5; two bad rows (hand-counted)
+    expect(e2.message).toBe(`${tiny}: line 5, column "weight": expected a weight of 0 or between 1e-100 and 1e100, got "1e-320" (2 rows like it)`);
+    const above = csvFile({ 6: { weight: '1.0000001e100' } });
+    const e3 = await failure(loadCells(duck, options({ source: files(above) })));
+    expect(e3.message).toBe(`${above}: line 7, column "weight": expected a weight of 0 or between 1e-100 and 1e100, got "1.0000001e100" (1 row like it)`);
+  });
+
+  it('every weight 0: no rate can be formed, an error instead of a report of nulls', async () => {
+    const zero = Object.fromEntries(ROWS.map((_, i) => [i + 1, { weight: '0' }]));
+    const path = csvFile(zero);
+    const e = await failure(loadCells(duck, options({ source: files(path) })));
+    expect(e.message).toBe(`${path}: every row has weight 0; expected some weight > 0`);
+    expect(e.exitCode).toBe(2);
+  });
+
+  it('every weight of one split 0: the error names the split', async () => {
+    // ids 4–6 are the dev rows (hand-counted from the fixture)
+    const path = csvFile({ 4: { weight: '0' }, 5: { weight: '0' }, 6: { weight: '0' } });
+    const e = await failure(loadCells(duck, options({ source: files(path) })));
+    expect(e.message).toBe(`${path}: every row with split dev has weight 0 (3 rows); expected some weight > 0 in each split`);
+    // ids 7–8 are the test rows: an optional split is checked too
+    const test = csvFile({ 7: { weight: '0' }, 8: { weight: '0' } });
+    const e2 = await failure(loadCells(duck, options({ source: files(test) })));
+    expect(e2.message).toBe(`${test}: every row with split test has weight 0 (2 rows); expected some weight > 0 in each split`);
+  });
+
+  it('weights at the ends of the domain (0, 1e-100, 1e100) are read', async () => {
+    const path = csvFile({ 1: { weight: '1e100' }, 2: { weight: '1e-100' }, 3: { weight: '0' } });
+    const loaded = await loadCells(duck, options({ source: files(path) }));
+    // hand arithmetic on the fixture: train rows ids 1–3 weigh 1e100 + 1e-100 + 0 = 1e100 (the small weight
+    // is lost in rounding), Σw² = 1e200; dev rows ids 4–6 weigh 1 each
+    const sum = (split: number, values: Float64Array) => loaded.table.split.reduce((a, s, i) => (s === split ? a + values[i] : a), 0);
+    expect(sum(0, loaded.table.weight)).toBe(1e100);
+    expect(sum(0, loaded.table.weightSq)).toBe(1e200);
+    expect(sum(2, loaded.table.weight)).toBe(3);
   });
 
   it('a bad weight outside --where is not reported; the one inside is', async () => {
     // id 2 (station S2) is filtered out; id 5 (station S1) is kept
     const path = csvFile({ 2: { weight: '-3' }, 5: { weight: '-1' } });
     const e = await failure(loadCells(duck, options({ source: files(path), where: `station = 'S1'` })));
-    expect(e.message).toBe(`${path}: line 6, column "weight": expected a weight >= 0, got "-1" (1 row like it)`);
+    expect(e.message).toBe(`${path}: line 6, column "weight": expected a weight of 0 or between 1e-100 and 1e100, got "-1" (1 row like it)`);
   });
 
   it('JSON Lines: line numbers start at 1', async () => {
@@ -116,21 +161,21 @@ describe('weights', () => {
       .join('\n');
     const path = textFile('data.jsonl', text + '\n');
     const e = await failure(loadCells(duck, options({ source: files(path) })));
-    expect(e.message).toBe(`${path}: line 5, column "weight": expected a weight >= 0, got "-1" (1 row like it)`);
+    expect(e.message).toBe(`${path}: line 5, column "weight": expected a weight of 0 or between 1e-100 and 1e100, got "-1" (1 row like it)`);
   });
 
   it('gzip-compressed TSV: line numbers as in the text', async () => {
     const path = join(dir, 'data.tsv.gz');
     writeGzip(path, [HEADER, ...rowsWith({ 5: { weight: '-1' } }).map((r) => r.join(','))].join('\n').replace(/,/g, '\t') + '\n');
     const e = await failure(loadCells(duck, options({ source: files(path) })));
-    expect(e.message).toBe(`${path}: line 6, column "weight": expected a weight >= 0, got "-1" (1 row like it)`);
+    expect(e.message).toBe(`${path}: line 6, column "weight": expected a weight of 0 or between 1e-100 and 1e100, got "-1" (1 row like it)`);
   });
 
   it('Parquet: row numbers', async () => {
     const path = join(dir, 'data.parquet');
     await csvToParquet(duck, csvFile({ 5: { weight: '-1' } }), path);
     const e = await failure(loadCells(duck, options({ source: files(path) })));
-    expect(e.message).toBe(`${path}: row 5, column "weight": expected a weight >= 0, got "-1" (1 row like it)`);
+    expect(e.message).toBe(`${path}: row 5, column "weight": expected a weight of 0 or between 1e-100 and 1e100, got "-1" (1 row like it)`);
   });
 
   it('per-split files: the message names the file that holds the bad row', async () => {
@@ -138,7 +183,7 @@ describe('weights', () => {
     const train = textFile('train.csv', `${head}\n1,a,a,S1,1\n2,a,b,S2,1\n`);
     const dev = textFile('dev.csv', `${head}\n3,a,a,S1,1\n4,b,a,S2,-2\n`);
     const e = await failure(loadCells(duck, options({ source: { files: [], perSplit: { train, dev } } })));
-    expect(e.message).toBe(`${dev}: line 3, column "weight": expected a weight >= 0, got "-2" (1 row like it)`);
+    expect(e.message).toBe(`${dev}: line 3, column "weight": expected a weight of 0 or between 1e-100 and 1e100, got "-2" (1 row like it)`);
   });
 
   it('per-split files: --where on a column only one file has still locates the bad row', async () => {
@@ -147,7 +192,7 @@ describe('weights', () => {
     const where = `shift IS NULL OR shift = 'day'`;
     const e = await failure(loadCells(duck, options({ source: { files: [], perSplit: { train, dev } }, where })));
     // hand-counted: dev id 4 on line 3 is the only bad row (its shift is missing, so --where keeps it)
-    expect(e.message).toBe(`${dev}: line 3, column "weight": expected a weight >= 0, got "-5" (1 row like it)`);
+    expect(e.message).toBe(`${dev}: line 3, column "weight": expected a weight of 0 or between 1e-100 and 1e100, got "-5" (1 row like it)`);
   });
 
   it('per-split files: a file without the weight column has missing weights', async () => {
@@ -155,7 +200,7 @@ describe('weights', () => {
     const dev = textFile('dev.csv', 'id,label,pred,station\n3,a,a,S1\n4,b,a,S2\n');
     const e = await failure(loadCells(duck, options({ source: { files: [], perSplit: { train, dev } } })));
     // hand-counted: both dev rows (lines 2 and 3) lack a weight
-    expect(e.message).toBe(`${dev}: line 2, column "weight": expected a weight >= 0, got "" (2 rows like it)`);
+    expect(e.message).toBe(`${dev}: line 2, column "weight": expected a weight of 0 or between 1e-100 and 1e100, got "" (2 rows like it)`);
   });
 });
 
@@ -233,6 +278,44 @@ describe('splits', () => {
       const e = await failure(loadCells(duck, options({ source: files(path), maxCells })));
       expect(e.message).toBe(`${path}: no rows with split train (found dev, test); train and dev are required, train_dev and test are optional`);
     }
+  });
+
+  it('every row left out for an empty label or prediction: says so instead of "no rows with split train"', async () => {
+    const empty = Object.fromEntries(ROWS.map((_, i): [number, Record<string, string>] => [i + 1, i % 2 ? { label: ' ' } : { pred: '' }]));
+    const path = csvFile(empty);
+    for (const maxCells of [100_000, 1]) {
+      const e = await failure(loadCells(duck, options({ source: files(path), maxCells })));
+      // hand-counted: all 8 rows have an empty label (ids 2, 4, 6, 8) or prediction (ids 1, 3, 5, 7)
+      expect(e.message).toBe(`${path}: every row was left out: 8 rows have an empty "label" or "pred"; expected class labels in both columns`);
+    }
+  });
+
+  it('every row of a required split left out: names the split and its rows', async () => {
+    // ids 4–6 are the dev rows (hand-counted from the fixture); id 1 (train) is left out too
+    const path = csvFile({ 1: { label: '' }, 4: { pred: '' }, 5: { label: '' }, 6: { pred: '  ' } });
+    const e = await failure(loadCells(duck, options({ source: files(path) })));
+    expect(e.message).toBe(`${path}: no usable rows with split dev: its 3 rows have an empty "label" or "pred"`);
+    // the spelling of the split does not matter; --where narrows the count
+    const val = csvFile({ 4: { pred: '', split: 'VAL' }, 5: { label: '', split: ' validation' }, 6: { pred: '' } });
+    const e2 = await failure(loadCells(duck, options({ source: files(val), where: `station = 'S1' OR split <> 'dev'` })));
+    // hand-counted: --where keeps ids 4 and 5 (split not 'dev' as written) but drops id 6 (S2, split dev)
+    expect(e2.message).toBe(`${val}: no usable rows with split dev: its 2 rows have an empty "label" or "pred"`);
+  });
+
+  it('an error column empty on every row, or on every dev row', async () => {
+    const all = textFile('err-empty.csv', 'split,error,station\ntrain,,A\ntrain, ,B\ndev,,A\ndev,,B\n');
+    const e = await failure(loadCells(duck, options({ source: files(all) })));
+    expect(e.message).toBe(`${all}: every row was left out: 4 rows have an empty "error"; expected 0 or 1 (or true/false) in it`);
+    const dev = textFile('err-empty-dev.csv', 'split,error,station\ntrain,0,A\ntrain,1,B\ndev,,A\ndev,,B\n');
+    const e2 = await failure(loadCells(duck, options({ source: files(dev) })));
+    expect(e2.message).toBe(`${dev}: no usable rows with split dev: its 2 rows have an empty "error"`);
+  });
+
+  it('per-split files: a dev file whose every row lacks a label', async () => {
+    const train = textFile('train.csv', 'id,label,pred\n1,a,a\n2,a,b\n');
+    const dev = textFile('dev.csv', 'id,label,pred\n3,,a\n4,,b\n5,,a\n');
+    const e = await failure(loadCells(duck, options({ source: { files: [], perSplit: { train, dev } } })));
+    expect(e.message).toBe(`${train}, ${dev}: no usable rows with split dev: its 3 rows have an empty "label" or "pred"`);
   });
 
   it('unknown split values are listed as written (trimmed) with their row counts, most frequent first', async () => {

@@ -77,6 +77,18 @@ describe('readFloorTable', () => {
     expect(t.entries.map((e) => e.floor)).toEqual([2.5, 40]);
   });
 
+  it('a cost outside [1e-12, 1e12] (1e308 would make Σw·cost infinite; 0 or 1e-13 the yield) names file, line and column', async () => {
+    for (const bad of ['1e308', '1.5e12', '0', '1e-13', '-4', 'Infinity']) {
+      const path = file(`cost-${bad}.csv`, `station,label_cost\nS1,2\nS2,${bad}\n`);
+      const e = await failure(readFloorTable(duck, path, 'label_cost'));
+      // line 3: hand-counted (header is line 1)
+      expect(e.message).toBe(`${path}: line 3, column "label_cost": expected a cost from 1e-12 to 1e12 (e.g. 1, or 4 for a slice four times dearer to label), got "${bad}"`);
+    }
+    const ends = await readFloorTable(duck, file('cost-ends.csv', 'station,label_cost\nS1,1e12\nS2,1e-12\n'), 'label_cost');
+    // expected: hand-copied from the table above; the ends of the range are costs
+    expect(ends.entries.map((e) => e.floor)).toEqual([1e12, 1e-12]);
+  });
+
   it('a floor of 1.5: names file, line and column', async () => {
     const path = file('floor-too-big.csv', 'station,floor\nS1,0.1\nS2,1.5\n');
     const e = await failure(readFloorTable(duck, path));

@@ -23,6 +23,13 @@ describe('kishEffectiveN', () => {
     expect(kishEffectiveN(1, -1)).toBe(0);
   });
 
+  it('does not overflow when (Σw)² exceeds the largest double but n does not', () => {
+    // Kish 1965 formula by hand: Σw = 1e160, Σw² = 1e300 -> 1e320 / 1e300 = 1e20 (1e320 alone is not a double)
+    expectClose(kishEffectiveN(1e160, 1e300), 1e20, 1e8);
+    // one weight of 1e154: Σw = 1e154, Σw² = 1e308 -> n = 1
+    expectClose(kishEffectiveN(1e154, 1e308), 1, 1e-12);
+  });
+
   it('rejects NaN and infinite input', () => {
     // contract (this module): RangeError for NaN/infinite input
     expect(() => kishEffectiveN(Number.NaN, 1)).toThrow(/kishEffectiveN: sumW must be a finite number, got NaN/);

@@ -11,6 +11,7 @@ import { join } from 'node:path';
 import fc from 'fast-check';
 import { afterAll, describe, expect, it } from 'vitest';
 import type { Cell, Split } from '../../src/engine/types.js';
+import { renderJson } from '../../src/render/json.js';
 import { buildReport } from '../../src/triage/report.js';
 import type { Report, SliceReport } from '../../src/triage/types.js';
 import { CONTEXT, options, sliceCells, type RowsSpec, type SliceSpec } from '../helpers/cells.js';
@@ -175,6 +176,49 @@ describe('report properties on random cells (buildReport)', () => {
       }),
       { seed: 42 },
     );
+  });
+});
+
+/** A copy of `value` with every −0 replaced by 0, every other number (NaN and infinities too) kept. */
+function withoutNegativeZero(value: unknown): unknown {
+  if (Object.is(value, -0)) return 0;
+  if (Array.isArray(value)) return value.map(withoutNegativeZero);
+  if (value !== null && typeof value === 'object') return Object.fromEntries(Object.entries(value).map(([k, v]) => [k, withoutNegativeZero(v)]));
+  return value;
+}
+
+describe('the JSON of a report over the whole input domain (buildReport → renderJson)', () => {
+  /**
+   * Contract (docs/method.md, "Weights" and "Labelling cost"; renderJson writes a non-finite number as
+   * null): weights of 0 or 1e-100 to 1e100 and costs of 1e-12 to 1e12 keep every computed number finite,
+   * so the JSON parses back equal to the report: no number turned into null on the way.
+   */
+  it('(d) parses back equal to the report: no computed number is NaN or infinite (weights 0, 1e-100 … 1e100; costs 1e-12 … 1e12; flat curves)', () => {
+    const extremeWeight = fc.oneof(fc.constantFrom(0, 1e-100, 1e100, 1), fc.double({ min: 1e-100, max: 1e100, noNaN: true }));
+    const cost = fc.option(fc.oneof(fc.constantFrom(1e-12, 1e12), fc.double({ min: 1e-12, max: 1e12, noNaN: true })), { nil: undefined });
+    // curve exponents down to 1e-4: a curve that flat needs more rows than a double holds to halve a gap
+    const beta = fc.oneof(fc.constantFrom(0.5, 1e-4), fc.double({ min: 1e-4, max: 3, noNaN: true }));
+    const withCosts = fc.tuple(cellCase(extremeWeight, anyFloor), fc.array(cost, { minLength: 6, maxLength: 6 }), fc.double({ min: 1e-12, max: 1e12, noNaN: true }), beta);
+    let reports = 0;
+    fc.assert(
+      fc.property(withCosts, ([c, costs, labelCost, curveExponent]) => {
+        // slice i's rows cost costs[i] (a cost-table entry) or --label-cost
+        const cells = cellsOf(c).map((x) => {
+          const k = Number(x.key.station!.slice(1)) - 1;
+          const perRow = costs[k];
+          return perRow === undefined ? x : { ...x, costSum: x.weight * perRow, costWeight: x.weight };
+        });
+        const total = (split: Split) => cells.filter((x) => x.split === split).reduce((a, x) => a + x.weight, 0);
+        // a split whose rows all weigh 0 is an input error (docs/method.md, "Weights")
+        fc.pre(total('train') > 0 && total('dev') > 0);
+        reports += 1;
+        const report = buildReport(cells, ['station'], [], CONTEXT, options({ labelCost, curveExponent }));
+        // JSON has no −0 (it parses back as 0); every other number must come back as it was
+        expect(JSON.parse(renderJson(report)), describeCase(cells)).toEqual(withoutNegativeZero(report));
+      }),
+      { seed: 42 },
+    );
+    expect(reports).toBeGreaterThan(50);
   });
 });
 

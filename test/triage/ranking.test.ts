@@ -5,7 +5,7 @@
  */
 import { describe, expect, it } from 'vitest';
 import { buildReport } from '../../src/triage/report.js';
-import { sliceYield } from '../../src/triage/triage.js';
+import { labelsToHalve, sliceYield } from '../../src/triage/triage.js';
 import type { Report, SliceReport, TriageOptions } from '../../src/triage/types.js';
 import { CONTEXT, options, sliceCells } from '../helpers/cells.js';
 import { expectClose } from '../stats/expect-close.js';
@@ -66,6 +66,17 @@ const cells = [
 ];
 const build = (over: Partial<TriageOptions> = {}): Report => buildReport(cells, ['s'], [], CONTEXT, options(over));
 const get = (r: Report, name: string): SliceReport => r.slices.find((s) => s.label === `s=${name}`)!;
+
+describe('labelsToHalve = n·(2^(1/β) − 1)', () => {
+  it('worked example and a curve too flat for any number of rows a double holds', () => {
+    // hand arithmetic: 4000 × (2² − 1) = 12000 for β = 0.5
+    expect(labelsToHalve(4000, 0.5)).toBe(12000);
+    // hand arithmetic: 2^(1/0.0009) = 2^1111 is above the largest double (2^1024): null by contract (README,
+    // "labels_to_halve"), never an Infinity that the JSON would turn into null unannounced
+    expect(labelsToHalve(4000, 0.0009)).toBeNull();
+    expect(labelsToHalve(4000, 0)).toBeNull();
+  });
+});
 
 describe('foci, yield and flags on the eight-slice report', () => {
   const r = build();

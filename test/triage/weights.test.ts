@@ -5,7 +5,7 @@
  */
 import { describe, expect, it } from 'vitest';
 import { buildReport } from '../../src/triage/report.js';
-import { CONTEXT, options, sliceCells } from '../helpers/cells.js';
+import { cell, CONTEXT, options, sliceCells } from '../helpers/cells.js';
 import { expectClose } from '../stats/expect-close.js';
 
 const LIBRARY = 1e-12; // same formulas as statsmodels: agreement to rounding
@@ -88,5 +88,55 @@ describe('weighted rows', () => {
     // statsmodels 0.13.5: proportion_confint(280.0, 4571.428571428572, method='wilson') -> (0.0546604948031246, 0.06857626610778834)
     expectClose(report.overall.error.train?.lo, 0.0546604948031246, LIBRARY);
     expectClose(report.overall.error.train?.hi, 0.06857626610778834, LIBRARY);
+  });
+});
+
+describe('sums that no valid weights give', () => {
+  it('a split whose Σw² is not finite, or whose Kish n is not positive, has no rate instead of crashing triage', () => {
+    // fixture (hand-built): cells such a --cells file or a future bug could carry; valid weights
+    // (docs/method.md, "Weights") never give them
+    const ok = sliceCells({ line: 'OK' }, { train: { rows: 100, errors: 10 }, dev: { rows: 100, errors: 12 } });
+    const inf = [{ ...cell({ line: 'INF' }, 'train', { rows: 2, errors: 1 }), weight: 2e154, weightSq: Infinity, errors: 1e154 }, cell({ line: 'INF' }, 'dev', { rows: 50, errors: 5 })];
+    // Σw = 1e-200 whose Σw² underflowed to 0: Kish n = 0
+    const zero = [cell({ line: 'ZERO' }, 'train', { rows: 50, errors: 5 }), { ...cell({ line: 'ZERO' }, 'dev', { rows: 1, errors: 0 }), weight: 1e-200, weightSq: 0 }];
+    const r = buildReport([...ok, ...inf, ...zero], ['line'], [], CONTEXT, options());
+    const by = (label: string) => r.slices.find((s) => s.label === label)!;
+    expect(by('line=INF').error.train).toBeNull();
+    expect(by('line=INF').error.dev?.value).toBe(0.1); // hand arithmetic: 5 / 50
+    expect(by('line=ZERO').error.dev).toBeNull();
+    expect(by('line=ZERO').error.train?.value).toBe(0.1); // hand arithmetic: 5 / 50
+    expect(by('line=OK').error.dev?.value).toBe(0.12); // hand arithmetic: 12 / 100
+  });
+});
+
+describe('a slice whose rows all weigh 0', () => {
+  it('is thin: no rate, no test, no focus beyond "collect more rows"', () => {
+    // fixture (hand-built): slice Z has 100 train and 100 dev rows, every one of weight 0
+    const ok = sliceCells({ line: 'OK' }, { train: { rows: 100, errors: 10 }, dev: { rows: 100, errors: 12 } });
+    const z = sliceCells({ line: 'Z' }, { train: { rows: 100, errors: 10, weight: 0 }, dev: { rows: 100, errors: 20, weight: 0 } });
+    const r = buildReport([...ok, ...z], ['line'], [], CONTEXT, options());
+    const slice = r.slices.find((s) => s.label === 'line=Z')!;
+    expect(slice.rows).toEqual({ train: 100, train_dev: null, dev: 100, test: null }); // unweighted counts
+    expect(slice.error.dev).toBeNull();
+    expect(slice.share).toBe(0); // hand arithmetic: 0 / 100
+    expect(slice.focus).toBe('thin');
+    expect(slice.flagged).toBe(false);
+  });
+});
+
+describe('extreme but valid weights', () => {
+  it('a floor entry with n holding a share whose square underflows leaves the floor exact, not of infinite n', () => {
+    // fixture (hand-built): train rows of weight 1e100 at floor entry 0 (no n) and 4 rows of weight 1e-62
+    // at entry 1 (n = 5): π₁ = 4e-62 / 1e100 = 4e-162, π₁² / 5 ≈ 3e-324, whose reciprocal is not a double
+    const cells = [
+      ...sliceCells({ line: 'A' }, { train: { rows: 1, errors: 0, weight: 1e100, entry: 0 }, dev: { rows: 50, errors: 5 } }),
+      ...sliceCells({ line: 'B' }, { train: { rows: 4, errors: 0, weight: 1e-62, entry: 1, floorN: 5, floor: 0.1 } }),
+    ];
+    const r = buildReport(cells, ['line'], [], CONTEXT, options());
+    expect(r.overall.floor.n).toBeNull();
+    // hand arithmetic: the 1e100 rows dominate; floor sum 4e-62 × 0.1 over 1e100 is 4e-163
+    expect(r.overall.floor.value).toBeCloseTo(0, 12);
+    // slice B alone: one entry, n = 5 (docs/method.md, "The floor")
+    expect(r.slices.find((s) => s.label === 'line=B')!.floor.n).toBe(5);
   });
 });
