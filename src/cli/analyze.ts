@@ -88,7 +88,7 @@ function reportOf(loaded: Loaded, triageOptions: TriageOptions, where: string | 
 export async function analyzeWith(duck: Duck, args: AnalysisArgs, io?: AnalysisIO): Promise<Analysis> {
   const triageOptions = toTriageOptions(args);
   if (usesCells(args)) {
-    const loaded = await loadCellFiles(duck, cellPaths(args, io), list(args.by), cellLimit(args['max-cells'] ?? 200_000));
+    const loaded = await loadCellFiles(duck, cellPaths(args, io), args.byColumns ? [...args.byColumns] : list(args.by), cellLimit(args['max-cells'] ?? 200_000));
     return reportOf(loaded, triageOptions, null);
   }
   const loadOptions = toLoadOptions(args);

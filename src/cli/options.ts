@@ -70,6 +70,11 @@ export interface AnalysisArgs {
   'floor-rule': 'panel' | 'typical' | 'best';
   'cost-table'?: string;
   by?: string;
+  /**
+   * the grouping as column names, set by a command that knows it as a list (export's named slices);
+   * used instead of `by` and never split on commas, so a column whose name holds one stays whole
+   */
+  byColumns?: readonly string[];
   'slice-cols'?: string;
   bins: number;
   'max-cells': number;
@@ -134,7 +139,7 @@ export function toLoadOptions(a: AnalysisArgs): LoadOptions {
     },
     roles,
     where: a.where ?? null,
-    by: list(a.by),
+    by: a.byColumns ? [...a.byColumns] : list(a.by),
     sliceCols: list(a['slice-cols']),
     bins: a.bins,
     maxCells: a['max-cells'],
