@@ -14,7 +14,7 @@ import { cacheKey, readCache, writeCache } from '../io/cell-cache.js';
 import { describeKey, readFloorTable, type FloorEntry, type FloorTable } from '../io/read-floor-table.js';
 import { locateReadError, readError, withReadErrors } from '../io/read-errors.js';
 import { firstBadRow } from '../io/locate.js';
-import { error } from '../util/error.js';
+import { error, FloorgapError } from '../util/error.js';
 
 /** Options of loading rows into cells. */
 export interface LoadOptions {
@@ -142,6 +142,32 @@ export async function planScan(
   overrides: { readonly edges?: ReadonlyMap<string, readonly number[]>; readonly grouping?: 'cross' | 'sets' | null } = {},
 ): Promise<ScanPlan> {
   const warnings: string[] = [];
+  const unnamed = source.unnamed ?? [];
+  for (const u of unnamed) warnings.push(`${u.path}: column ${u.column} has no name and was left out; name it in the header to use it`);
+  return withUnnamedNote(unnamed, () => planColumns(duck, options, source, overrides, warnings));
+}
+
+/**
+ * Runs `plan`; when it fails for want of a column (a message listing "the columns are …") and an
+ * input has unnamed columns, which were left out, the message says so: the column may be that one.
+ */
+async function withUnnamedNote<T>(unnamed: NonNullable<Source['unnamed']>, plan: () => Promise<T>): Promise<T> {
+  try {
+    return await plan();
+  } catch (e) {
+    if (!(e instanceof FloorgapError) || unnamed.length === 0 || !e.message.includes('the columns are ')) throw e;
+    const note = unnamed.map((u) => `column ${u.column} of ${u.path}`).join(', ');
+    throw error(`${e.message}; ${note} ${unnamed.length === 1 ? 'has' : 'have'} no name and ${unnamed.length === 1 ? 'was' : 'were'} left out`, e, e.exitCode);
+  }
+}
+
+async function planColumns(
+  duck: Duck,
+  options: LoadOptions,
+  source: Source,
+  overrides: { readonly edges?: ReadonlyMap<string, readonly number[]>; readonly grouping?: 'cross' | 'sets' | null },
+  warnings: string[],
+): Promise<ScanPlan> {
   const roles = resolveRoles(source.columns, options.roles, source.where, source.splitColumn !== null);
   const splitColumn = roles.split ?? source.splitColumn!;
   await checkWhere(duck, options.where);

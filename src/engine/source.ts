@@ -2,7 +2,7 @@ import type { Duck } from './duck.js';
 import { ident, literal } from './sql.js';
 import type { ColumnKind } from './cell-query.js';
 import type { Split } from './types.js';
-import { describeColumns, detectTable, headerNames, pinnedCsvSql, tableSql, type TableInput } from '../io/read-table.js';
+import { checkColumnNames, describeColumns, detectTable, headerNames, pinnedCsvSql, tableSql, type TableInput } from '../io/read-table.js';
 import { withReadErrors } from '../io/read-errors.js';
 import { error } from '../util/error.js';
 
@@ -25,6 +25,11 @@ export interface Source {
    * scan reads (converting every value to text first would cost more than the scan itself)
    */
   readonly native?: { readonly view: string; readonly kinds: ReadonlyMap<string, ColumnKind> } | null;
+  /**
+   * columns whose header name is empty (a CSV or TSV header field with nothing in it, as pandas
+   * writes for its index): left out of the rows view; `column` is the 1-based position in that file
+   */
+  readonly unnamed?: readonly { readonly path: string; readonly column: number }[];
 }
 
 /** Name of the view of the rows with their own column types (see {@link Source.native}). */
@@ -56,11 +61,14 @@ export async function openSource(duck: Duck, spec: SourceSpec): Promise<Source> 
 
   const parts: string[] = [];
   const allColumns: string[] = [];
+  const unnamed: { path: string; column: number }[] = [];
   const where = inputs.map((i) => i.path).join(', ');
   await withReadErrors(inputs, where, async () => {
     for (const input of inputs) {
       let cols: string[];
       let expr: string;
+      // the engine's names of columns whose header field is empty (it calls them column0, column1, …)
+      let dropped: string[] = [];
       if (input.header) {
         // a plain header read from the first bytes: no sniffing of the file
         cols = [...input.header];
@@ -69,20 +77,27 @@ export async function openSource(duck: Duck, spec: SourceSpec): Promise<Source> 
       } else {
         const detected = await tableSql(duck, input);
         cols = await describeColumns(duck, detected, input.path);
-        checkHeader(input.path, cols, (await headerNames(duck, input)) ?? cols);
+        const written = (await headerNames(duck, input)) ?? cols;
+        const empty = checkHeader(input.path, cols, written);
+        if (written.length === cols.length) {
+          dropped = empty.map((i) => cols[i - 1]);
+          for (const column of empty) unnamed.push({ path: input.path, column });
+        }
         expr = input.format === 'csv' || input.format === 'tsv' ? pinnedCsvSql(input, cols) : detected;
+        cols = cols.filter((c) => !dropped.includes(c));
       }
       for (const c of cols) if (!allColumns.includes(c)) allColumns.push(c);
+      const all = dropped.length > 0 ? `* EXCLUDE (${dropped.map(ident).join(', ')})` : '*';
       parts.push(
         input.split
-          ? `SELECT *, ${literal(input.split)} AS ${ident(PER_SPLIT_COLUMN)} FROM ${expr}`
-          : `SELECT * FROM ${expr}`,
+          ? `SELECT ${all}, ${literal(input.split)} AS ${ident(PER_SPLIT_COLUMN)} FROM ${expr}`
+          : `SELECT ${all} FROM ${expr}`,
       );
     }
     await duck.run(`CREATE OR REPLACE VIEW ${ROWS_VIEW} AS ${parts.join(' UNION ALL BY NAME ')}`);
   });
   const native = inputs.every((i) => i.format === 'parquet') ? await withReadErrors(inputs, where, () => nativeView(duck, inputs)) : null;
-  return { inputs, columns: allColumns, splitColumn: perSplit.length > 0 ? PER_SPLIT_COLUMN : null, where, native };
+  return { inputs, columns: allColumns, splitColumn: perSplit.length > 0 ? PER_SPLIT_COLUMN : null, where, native, unnamed };
 }
 
 async function nativeView(duck: Duck, inputs: readonly TableInput[]): Promise<Source['native']> {
@@ -107,16 +122,16 @@ async function nativeView(duck: Duck, inputs: readonly TableInput[]): Promise<So
   }
 }
 
-/** `written`: the header as written in the file (CSV/TSV), where repeated names are still visible. */
-function checkHeader(path: string, cols: readonly string[], written: readonly string[]): void {
+/**
+ * `written`: the header as written in the file (CSV/TSV), where repeated, padded and empty names are
+ * still visible (the engine trims them, renames a repeated one `x_1` and an empty one `column2`).
+ * @returns the 1-based positions of unnamed columns
+ */
+function checkHeader(path: string, cols: readonly string[], written: readonly string[]): number[] {
   for (const c of cols) {
     if (c === PER_SPLIT_COLUMN) throw error(`${path}: column name "${c}" is reserved by floorgap; rename it`);
   }
-  const seen = new Set<string>();
-  for (const c of written) {
-    if (seen.has(c)) throw error(`${path}: column "${c}" appears twice in the header; column names must be unique`);
-    seen.add(c);
-  }
+  return checkColumnNames(path, written);
 }
 
 /** Checks a `--where` expression against the source's columns before the scan. */

@@ -1,5 +1,5 @@
 import type { Duck } from '../engine/duck.js';
-import { detectTable, readError, tableSql } from './read-table.js';
+import { checkColumnNames, detectTable, headerNames, readError, tableSql } from './read-table.js';
 import { error } from '../util/error.js';
 
 /** One entry of a floor table: key values (a subset of slice columns), the floor, and its sample size. */
@@ -40,6 +40,11 @@ export async function readFloorTable(duck: Duck, path: string, valueColumn = 'fl
     throw readError(path, e);
   }
   const columns = rows.length > 0 ? Object.keys(rows[0]) : [];
+  // the header as written: the engine would rename a repeated name (floor_1) and an empty one (column1)
+  const unnamed = checkColumnNames(path, (await headerNames(duck, input)) ?? columns);
+  if (unnamed.length > 0) {
+    throw error(`${path}: column ${unnamed[0]} has no name; name every column of the table (its keys and "${valueColumn}")`);
+  }
   if (rows.length === 0) throw error(`${path}: no entries; expected a header and at least one row with a "${valueColumn}" column`);
   if (!columns.includes(valueColumn)) {
     throw error(`${path}: no "${valueColumn}" column; the columns are ${columns.map((c) => JSON.stringify(c)).join(', ')}`);

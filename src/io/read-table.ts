@@ -192,6 +192,36 @@ export async function headerNames(duck: Duck, input: TableInput): Promise<string
   }
 }
 
+/**
+ * Checks the column names of one input: no two may be the same once surrounding spaces are trimmed
+ * (the engine would rename the second one, `station_1`). Names empty after trimming are allowed
+ * here; the caller decides what an unnamed column means.
+ * @param names the names as written in the file (CSV/TSV header), or as the engine read them
+ * @returns the positions (1-based) of the names that are empty after trimming
+ * @throws FloorgapError naming the two positions and the name
+ * @example
+ * checkColumnNames('p.csv', ['id', '', 'station']); // => [2]
+ * checkColumnNames('p.csv', ['id', 'station', 'station ']); // throws 'p.csv: columns 2 and 3 are both named "station" (after trimming spaces); …'
+ */
+export function checkColumnNames(path: string, names: readonly string[]): number[] {
+  const seen = new Map<string, number>();
+  const unnamed: number[] = [];
+  names.forEach((raw, i) => {
+    const name = raw.trim();
+    if (name === '') {
+      unnamed.push(i + 1);
+      return;
+    }
+    const first = seen.get(name);
+    if (first !== undefined) {
+      const trimmed = names[first] !== raw ? ' (after trimming spaces)' : '';
+      throw error(`${path}: columns ${first + 1} and ${i + 1} are both named ${JSON.stringify(name)}${trimmed}; column names must be unique`);
+    }
+    seen.set(name, i);
+  });
+  return unnamed;
+}
+
 /** Column names of a table expression, in order. */
 export async function describeColumns(duck: Duck, tableExpr: string, path: string): Promise<string[]> {
   try {

@@ -42,7 +42,9 @@ describe.concurrent('bad files: exit 2 and one line naming what is wrong', () =>
     ['header only', [f('header-only.csv')], /header-only\.csv: no rows; expected a header and data rows/],
     ['a row with a field too many', [f('ragged-long.csv')], /ragged-long\.csv: line 11: expected 7 fields as in the header, found 8$/],
     ['a row with fields missing', [f('ragged-short.csv')], /ragged-short\.csv: line 11: expected 7 fields as in the header, found 5$/],
-    ['a column name twice', [f('duplicate-columns.csv')], /duplicate-columns\.csv: column "station" appears twice in the header/],
+    ['a column name twice', [f('duplicate-columns.csv')], /duplicate-columns\.csv: columns 3 and 7 are both named "station"; column names must be unique$/],
+    ['a column name twice, once padded', [f('padded-duplicate.csv')], /padded-duplicate\.csv: columns 3 and 8 are both named "station" \(after trimming spaces\); column names must be unique$/],
+    ['an unnamed column a role needs', [f('unnamed-label.csv')], /unnamed-label\.csv: no label column; the columns are "id", "split", "station", "package", "pred", "weight"; .*; column 5 of .*unnamed-label\.csv has no name and was left out$/],
     ['no label column', [f('no-label.csv')], /no-label\.csv: no label column; the columns are "id", "split", "station", "guess"/],
     ['bytes of no known format', [f('binary.bin')], /binary\.bin: unknown format; expected CSV, TSV, JSON Lines or Parquet/],
     ['bytes that are not UTF-8', [f('invalid-utf8.csv')], /invalid-utf8\.csv: line 22: bytes that are not valid UTF-8; save the file as UTF-8$/],
@@ -74,6 +76,7 @@ describe.concurrent('bad files: exit 2 and one line naming what is wrong', () =>
     ['floor table: a floor above 1', [f('valid.csv'), '--floor-table', f('floors-above-one.csv')], /floors-above-one\.csv: line 3, column "floor": expected a fraction in \[0, 1\].*got "1\.5"$/],
     ['floor table: a negative floor', [f('valid.csv'), '--floor-table', f('floors-negative.csv')], /floors-negative\.csv: line 2, column "floor": expected a fraction in \[0, 1\].*got "-0\.01"$/],
     ['floor table: text for a floor', [f('valid.csv'), '--floor-table', f('floors-text.csv')], /floors-text\.csv: line 2, column "floor": .*got "two percent"$/],
+    ['floor table: a column name twice', [f('valid.csv'), '--floor-table', f('floors-repeated-column.csv')], /floors-repeated-column\.csv: columns 2 and 3 are both named "floor"; column names must be unique$/],
     ['floor table: no key column', [f('valid.csv'), '--floor-table', f('floors-no-key.csv')], /floors-no-key\.csv: no key columns/],
     ['floor table: a role column as key', [f('valid.csv'), '--floor-table', f('floors-role-key.csv')], /floors-role-key\.csv: key column "id" is the id column of .*valid\.csv; keys must be slice columns \(e\.g\. package\), label, pred or split$/],
     ['cost table: a role column as key', [f('valid.csv'), '--cost-table', f('costs-role-key.csv')], /costs-role-key\.csv: key column "weight" is the weight column of/],
@@ -93,6 +96,14 @@ describe.concurrent('awkward but valid files: the right report', () => {
     const { report } = await reportJson([f('bom.csv'), '--slice-cols', 'station']);
     expect(report.source.roles.id).toBe('id'); // the first column, "\ufeffid" if the mark were kept
     expect(report.overall.error.dev?.n).toBe(40);
+    expect(report.overall.error.dev?.value).toBe(0.25); // make.mjs: errors at i % 4 == 0, 10 of 40
+  });
+
+  it('an unnamed first column (a pandas index): left out with a warning, the report made', async () => {
+    const { report } = await reportJson([f('unnamed-index.csv')]);
+    expect(report.warnings).toContain(`${f('unnamed-index.csv')}: column 1 has no name and was left out; name it in the header to use it`);
+    expect(report.source.roles.id).toBe('id');
+    expect(report.slices.map((s) => Object.keys(s.key)[0]).sort()).toEqual(['package', 'package', 'station', 'station', 'station', 'station']); // make.mjs: S1–S4, 0402/QFN
     expect(report.overall.error.dev?.value).toBe(0.25); // make.mjs: errors at i % 4 == 0, 10 of 40
   });
 

@@ -62,14 +62,38 @@ describe('openSource', () => {
   it('a column named twice in a CSV header', async () => {
     const path = file('dup.csv', 'split,label,label,pred\ntrain,a,b,a\n');
     const e = await failure(openSource(duck, { files: [path], perSplit: {} }));
-    expect(e.message).toBe(`${path}: column "label" appears twice in the header; column names must be unique`);
+    expect(e.message).toBe(`${path}: columns 2 and 3 are both named "label"; column names must be unique`);
   });
 
   it('a column named twice in a gzip TSV header', async () => {
     const path = join(dir, 'dup.tsv.gz');
     writeGzip(path, 'split\tpred\tlabel\tpred\ntrain\ta\tb\ta\n');
     const e = await failure(openSource(duck, { files: [path], perSplit: {} }));
-    expect(e.message).toBe(`${path}: column "pred" appears twice in the header; column names must be unique`);
+    expect(e.message).toBe(`${path}: columns 2 and 4 are both named "pred"; column names must be unique`);
+  });
+
+  it('two names the same after trimming spaces: an error naming both positions, not a renamed column', async () => {
+    const path = file('padded.csv', 'split,label,pred,station,station \ntrain,a,a,S1,S1\n');
+    const e = await failure(openSource(duck, { files: [path], perSplit: {} }));
+    expect(e.message).toBe(`${path}: columns 4 and 5 are both named "station" (after trimming spaces); column names must be unique`);
+    const json = file('padded.jsonl', '{"split":"train","label":"a","pred":"a"," station":"S1","station":"S1"}\n');
+    const j = await failure(openSource(duck, { files: [json], perSplit: {} }));
+    expect(j.message).toBe(`${json}: columns 4 and 5 are both named "station" (after trimming spaces); column names must be unique`);
+  });
+
+  it('an unnamed column is left out of the rows view and recorded by position', async () => {
+    const path = file('unnamed.csv', ',split,label,  ,pred\n0,train,a,x,a\n1,dev,b,y,a\n');
+    const source = await openSource(duck, { files: [path], perSplit: {} });
+    expect(source.columns).toEqual(['split', 'label', 'pred']);
+    expect(source.unnamed).toEqual([
+      { path, column: 1 },
+      { path, column: 4 },
+    ]);
+    const rows = await duck.all(`SELECT * FROM ${ROWS_VIEW} ORDER BY split DESC`);
+    expect(rows).toEqual([
+      { split: 'train', label: 'a', pred: 'a' },
+      { split: 'dev', label: 'b', pred: 'a' },
+    ]);
   });
 
   it('columns named x and x_1 are two different columns', async () => {

@@ -47,6 +47,19 @@ describe('readFloorTable', () => {
     ]);
   });
 
+  it('a column name repeated (also after trimming) or left empty is an error naming the name as written', async () => {
+    const twice = file('twice.csv', 'package,floor,floor\n0402,0.02,0.02\n');
+    expect((await failure(readFloorTable(duck, twice))).message).toBe(`${twice}: columns 2 and 3 are both named "floor"; column names must be unique`);
+    const padded = file('padded.tsv', 'package\tfloor\t package\n0402\t0.02\t0402\n');
+    expect((await failure(readFloorTable(duck, padded))).message).toBe(
+      `${padded}: columns 1 and 3 are both named "package" (after trimming spaces); column names must be unique`,
+    );
+    const unnamed = file('unnamed.csv', 'package,,floor\n0402,x,0.02\n');
+    expect((await failure(readFloorTable(duck, unnamed))).message).toBe(
+      `${unnamed}: column 2 has no name; name every column of the table (its keys and "floor")`,
+    );
+  });
+
   it('reads JSON Lines with line numbers starting at 1', async () => {
     const t = await readFloorTable(duck, join(FLOORS, 'floors.jsonl'));
     // expected: hand-copied from test/fixtures/floors/floors.jsonl (first line is line 1)
