@@ -13,6 +13,7 @@ export function analysisOptions<T>(y: Argv<T>) {
     .option('train-dev', { type: 'string', describe: 'file holding the train_dev split', group: 'Inputs:' })
     .option('dev', { type: 'string', describe: 'file holding the dev split', group: 'Inputs:' })
     .option('test', { type: 'string', describe: 'file holding the test split', group: 'Inputs:' })
+    .option('union', { type: 'boolean', default: false, describe: 'read inputs with different columns as one table; a column an input lacks is missing there', group: 'Inputs:' })
     .option('config', { type: 'string', describe: 'project file (default: ./floorgap.json when present)', group: 'Inputs:' })
     .option('where', { type: 'string', describe: 'keep rows matching a DuckDB SQL condition (columns are text)', group: 'Inputs:' })
     .option('cells', { type: 'string', array: true, describe: 'ready-made cells (from floorgap sql) instead of rows: CSV, Parquet or JSON Lines; shards are summed', group: 'Inputs:' })
@@ -56,6 +57,8 @@ export interface AnalysisArgs {
   'train-dev'?: string;
   dev?: string;
   test?: string;
+  /** --union: inputs with different columns are read as one table */
+  union?: boolean;
   where?: string;
   label?: string;
   pred?: string;
@@ -136,6 +139,7 @@ export function toLoadOptions(a: AnalysisArgs): LoadOptions {
     source: {
       files: (a.files ?? []).map(String),
       perSplit: { train: a.train, train_dev: a['train-dev'], dev: a.dev, test: a.test },
+      union: a.union === true,
     },
     roles,
     where: a.where ?? null,

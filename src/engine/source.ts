@@ -1,3 +1,4 @@
+import { stat } from 'node:fs/promises';
 import type { Duck } from './duck.js';
 import { ident, literal } from './sql.js';
 import type { ColumnKind } from './cell-query.js';
@@ -10,6 +11,11 @@ import { error } from '../util/error.js';
 export interface SourceSpec {
   readonly files: readonly string[];
   readonly perSplit: Partial<Record<Split, string>>;
+  /**
+   * true (`--union`): inputs with different columns are read as one table, a column an input lacks
+   * missing there; otherwise every input must have the same columns
+   */
+  readonly union?: boolean;
 }
 
 /** The opened source: a DuckDB view `fg_rows` with every column as text. */
@@ -58,11 +64,13 @@ export async function openSource(duck: Duck, spec: SourceSpec): Promise<Source> 
   const inputs: TableInput[] = [];
   for (const f of spec.files) inputs.push(await detectTable(f));
   for (const [split, f] of perSplit) inputs.push(await detectTable(f, split));
+  await checkDistinctFiles(inputs);
 
   const parts: string[] = [];
   const allColumns: string[] = [];
   const unnamed: { path: string; column: number }[] = [];
   const where = inputs.map((i) => i.path).join(', ');
+  let firstColumns: { readonly path: string; readonly columns: readonly string[] } | null = null;
   await withReadErrors(inputs, where, async () => {
     for (const input of inputs) {
       let cols: string[];
@@ -86,6 +94,8 @@ export async function openSource(duck: Duck, spec: SourceSpec): Promise<Source> 
         expr = input.format === 'csv' || input.format === 'tsv' ? pinnedCsvSql(input, cols) : detected;
         cols = cols.filter((c) => !dropped.includes(c));
       }
+      if (!firstColumns) firstColumns = { path: input.path, columns: cols };
+      else if (!spec.union) checkSameColumns(firstColumns, { path: input.path, columns: cols });
       for (const c of cols) if (!allColumns.includes(c)) allColumns.push(c);
       const all = dropped.length > 0 ? `* EXCLUDE (${dropped.map(ident).join(', ')})` : '*';
       parts.push(
@@ -120,6 +130,44 @@ async function nativeView(duck: Duck, inputs: readonly TableInput[]): Promise<So
     // the text view still serves the scan
     return null;
   }
+}
+
+/**
+ * Refuses an input named twice: the same path, another spelling of it (`./a.csv`, `a.csv`), a symlink
+ * or a hard link to it (the same device and inode). Its rows would be counted twice.
+ */
+async function checkDistinctFiles(inputs: readonly TableInput[]): Promise<void> {
+  const seen = new Map<string, string>();
+  for (const input of inputs) {
+    const info = await stat(input.path);
+    const id = `${info.dev}:${info.ino}`;
+    const first = seen.get(id);
+    if (first !== undefined) throw error(`${input.path}: the same file as ${first}, given twice; give each file once`);
+    seen.set(id, input.path);
+  }
+}
+
+/** Names for a message: at most five, quoted, then how many more. */
+function someNames(names: readonly string[]): string {
+  const shown = names.slice(0, 5).map((c) => JSON.stringify(c)).join(', ');
+  return names.length > 5 ? `${shown} and ${names.length - 5} more` : shown;
+}
+
+/** Inputs read as one table must have the same columns (in any order) unless `--union` is given. */
+function checkSameColumns(
+  first: { readonly path: string; readonly columns: readonly string[] },
+  other: { readonly path: string; readonly columns: readonly string[] },
+): void {
+  const lacks = first.columns.filter((c) => !other.columns.includes(c));
+  const extra = other.columns.filter((c) => !first.columns.includes(c));
+  if (lacks.length === 0 && extra.length === 0) return;
+  const parts = [
+    ...(lacks.length > 0 ? [`${other.path} lacks ${someNames(lacks)}`] : []),
+    ...(extra.length > 0 ? [`${lacks.length > 0 ? '' : `${other.path} `}has ${someNames(extra)} that ${first.path} lacks`] : []),
+  ];
+  throw error(
+    `${other.path}: its columns differ from ${first.path}'s (${parts.join('; ')}); give files with the same columns, or --union to read them as one table with missing values`,
+  );
 }
 
 /**

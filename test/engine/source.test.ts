@@ -1,5 +1,5 @@
 /** Opening inputs into the rows view. Expected values are hand-counted from the fixture tables each test writes. */
-import { writeFileSync } from 'node:fs';
+import { mkdirSync, symlinkSync, writeFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { openDuck, type Duck } from '../../src/engine/duck.js';
@@ -30,10 +30,10 @@ function file(name: string, text: string): string {
 
 
 describe('openSource', () => {
-  it('two files with different columns: one view, columns in first-seen order, missing as null', async () => {
+  it('two files with different columns, with union: one view, columns in first-seen order, missing as null', async () => {
     const a = file('a.csv', 'split,label,pred,station\ntrain,x,x,S1\n');
     const b = file('b.jsonl', '{"split":"dev","label":"y","pred":"x","lighting":"dome"}\n');
-    const source = await openSource(duck, { files: [a, b], perSplit: {} });
+    const source = await openSource(duck, { files: [a, b], perSplit: {}, union: true });
     expect(source.columns).toEqual(['split', 'label', 'pred', 'station', 'lighting']);
     expect(source.splitColumn).toBeNull();
     expect(source.where).toBe(`${a}, ${b}`);
@@ -42,6 +42,43 @@ describe('openSource', () => {
       { split: 'train', label: 'x', pred: 'x', station: 'S1', lighting: null },
       { split: 'dev', label: 'y', pred: 'x', station: null, lighting: 'dome' },
     ]);
+  });
+
+  it('two files with different columns, without union: an error naming the files and the columns that differ', async () => {
+    const a = file('u-a.csv', 'split,label,pred,station,lighting\ntrain,x,x,S1,dome\n');
+    const b = file('u-b.csv', 'split,shift,label,pred,station\ndev,day,y,x,S1\n');
+    const e = await failure(openSource(duck, { files: [a, b], perSplit: {} }));
+    expect(e.message).toBe(
+      `${b}: its columns differ from ${a}'s (${b} lacks "lighting"; has "shift" that ${a} lacks); give files with the same columns, or --union to read them as one table with missing values`,
+    );
+    // the same columns in another order are the same columns
+    const c = file('u-c.csv', 'pred,label,split,lighting,station\ndev,y,x,ring,S2\n');
+    expect((await openSource(duck, { files: [a, c], perSplit: {} })).columns).toEqual(['split', 'label', 'pred', 'station', 'lighting']);
+  });
+
+  it('per-split files follow the same column rule', async () => {
+    const train = file('ps-train.csv', 'label,pred,station\na,a,S1\n');
+    const dev = file('ps-dev.csv', 'label,pred\nb,a\n');
+    const e = await failure(openSource(duck, { files: [], perSplit: { train, dev } }));
+    expect(e.message).toBe(
+      `${dev}: its columns differ from ${train}'s (${dev} lacks "station"); give files with the same columns, or --union to read them as one table with missing values`,
+    );
+    const source = await openSource(duck, { files: [], perSplit: { train, dev }, union: true });
+    expect(source.columns).toEqual(['label', 'pred', 'station']);
+  });
+
+  it('a file named twice (the same path, another spelling of it, a symlink) is an error', async () => {
+    const a = file('twice.csv', 'split,label,pred\ntrain,x,x\n');
+    const link = join(dir, 'twice-link.csv');
+    symlinkSync(a, link);
+    mkdirSync(join(dir, 'sub'), { recursive: true });
+    const again = `${dir}/./sub/../twice.csv`; // not join(), which would tidy the spelling away
+    for (const [first, second] of [[a, a], [a, again], [a, link]]) {
+      const e = await failure(openSource(duck, { files: [first, second], perSplit: {}, union: true }));
+      expect(e.message).toBe(`${second}: the same file as ${first}, given twice; give each file once`);
+    }
+    const e = await failure(openSource(duck, { files: [], perSplit: { train: a, dev: link } }));
+    expect(e.message).toBe(`${link}: the same file as ${a}, given twice; give each file once`);
   });
 
   it('per-split files: each row gets its file split in __fg_split', async () => {
