@@ -3,7 +3,7 @@ import type { Duck } from './duck.js';
 import { ident, literal } from './sql.js';
 import type { ColumnKind } from './cell-query.js';
 import type { Split } from './types.js';
-import { checkColumnNames, describeColumns, detectTable, headerNames, pinnedCsvSql, tableSql, type TableInput } from '../io/read-table.js';
+import { checkColumnNames, describeColumns, detectTable, headerNames, needsOneThread, pinnedCsvSql, tableSql, type TableInput } from '../io/read-table.js';
 import { withReadErrors } from '../io/read-errors.js';
 import { error } from '../util/error.js';
 
@@ -65,6 +65,7 @@ export async function openSource(duck: Duck, spec: SourceSpec): Promise<Source> 
   for (const f of spec.files) inputs.push(await detectTable(f));
   for (const [split, f] of perSplit) inputs.push(await detectTable(f, split));
   await checkDistinctFiles(inputs);
+  if (needsOneThread(inputs)) await duck.run('SET threads = 1');
 
   const parts: string[] = [];
   const allColumns: string[] = [];

@@ -74,22 +74,59 @@ export async function withReadErrors<T>(inputs: readonly TableInput[], where: st
   }
 }
 
+/**
+ * The lines of an input as bytes, one Latin-1 character a byte (a line break is the byte 0x0a in
+ * UTF-8 too), so that bytes that are not UTF-8 can still be found.
+ */
 function lines(input: TableInput): { stream: Readable; rl: ReturnType<typeof createInterface> } {
   const file = createReadStream(input.path);
   const stream: Readable = input.gzip ? file.pipe(createGunzip()) : file;
   if (input.gzip) file.on('error', (e) => stream.destroy(e));
+  stream.setEncoding('latin1');
   return { stream, rl: createInterface({ input: stream, crlfDelay: Infinity }) };
 }
 
-/** The first line of a JSON Lines file that is not one JSON object, or null when every line is. */
-async function badJsonLine(input: TableInput): Promise<string | null> {
+const UTF8 = new TextDecoder('utf-8', { fatal: true });
+/** Half of a surrogate pair without its other half. */
+const LONE_SURROGATE = /[\ud800-\udbff](?![\udc00-\udfff])|(?<![\ud800-\udbff])[\udc00-\udfff]/;
+
+/** True when a parsed JSON value holds a string or key with half a surrogate pair (from a `\u` escape). */
+function hasLoneSurrogate(value: unknown): boolean {
+  if (typeof value === 'string') return LONE_SURROGATE.test(value);
+  if (Array.isArray(value)) return value.some(hasLoneSurrogate);
+  if (value !== null && typeof value === 'object') return Object.entries(value).some(([k, v]) => LONE_SURROGATE.test(k) || hasLoneSurrogate(v));
+  return false;
+}
+
+/** What a JSON value is, for a message: `a JSON number (5)`. */
+function jsonKind(value: unknown): string {
+  if (value === null) return 'a JSON null';
+  const text = JSON.stringify(value);
+  const shown = text.length > 20 ? `${text.slice(0, 20)}…` : text;
+  return `a JSON ${typeof value} (${shown})`;
+}
+
+/**
+ * The first line of a JSON Lines file that is not one JSON object (a line that does not parse, holds
+ * bytes that are not UTF-8 or half a surrogate pair, or holds an array or a bare value), or null when
+ * every line is one.
+ */
+export async function badJsonLine(input: TableInput): Promise<string | null> {
   const { stream, rl } = lines(input);
   let n = 0;
   try {
-    for await (const line of rl) {
+    for await (const bytes of rl) {
       n++;
+      let line: string;
+      try {
+        line = UTF8.decode(Buffer.from(bytes, 'latin1'));
+      } catch {
+        return `line ${n}: bytes that are not valid UTF-8; save the file as UTF-8`;
+      }
       const text = n === 1 ? line.replace(/^\ufeff/, '') : line;
       if (text.trim() === '') continue;
+      // an array document (`[{…}, {…}]`, on one line or pretty-printed): JSON, but not JSON Lines
+      if (text.trimStart().startsWith('[')) return `line ${n}: a JSON array; expected JSON Lines, one object per line`;
       let value: unknown;
       try {
         value = JSON.parse(text);
@@ -97,9 +134,8 @@ async function badJsonLine(input: TableInput): Promise<string | null> {
         const why = e instanceof Error ? e.message.replace(/ in JSON at position \d+.*$/, '').replace(/^Unexpected/, 'unexpected') : 'unreadable';
         return `line ${n}: not valid JSON (${why}); every line must hold one JSON object`;
       }
-      if (value === null || typeof value !== 'object' || Array.isArray(value)) {
-        return `line ${n}: expected a JSON object ({"column": value, …}), found ${Array.isArray(value) ? 'an array' : JSON.stringify(value)?.slice(0, 20)}`;
-      }
+      if (value === null || typeof value !== 'object') return `line ${n}: ${jsonKind(value)}; expected JSON Lines, one object per line`;
+      if (hasLoneSurrogate(value)) return `line ${n}: a \\u escape of half a surrogate pair; expected whole characters (both halves of a pair)`;
     }
     return null;
   } catch {

@@ -1,5 +1,5 @@
 import type { Duck } from '../engine/duck.js';
-import { checkColumnNames, detectTable, headerNames, readError, tableSql } from './read-table.js';
+import { checkColumnNames, detectTable, headerNames, needsOneThread, readError, tableSql } from './read-table.js';
 import { error } from '../util/error.js';
 
 /** One entry of a floor table: key values (a subset of slice columns), the floor, and its sample size. */
@@ -32,12 +32,16 @@ export interface FloorTable {
 export async function readFloorTable(duck: Duck, path: string, valueColumn = 'floor'): Promise<FloorTable> {
   const input = await detectTable(path);
   if (input.format === 'parquet') throw error(`${path}: a floor table must be CSV, TSV or JSON Lines`);
-  const expr = await tableSql(duck, input);
   let rows: Record<string, unknown>[];
+  const [{ t }] = await duck.all(`SELECT current_setting('threads') AS t`);
+  if (needsOneThread([input])) await duck.run('SET threads = 1');
   try {
+    const expr = await tableSql(duck, input);
     rows = await duck.all(`SELECT * FROM ${expr}`);
   } catch (e) {
     throw readError(path, e);
+  } finally {
+    await duck.run(`SET threads = ${Number(t)}`);
   }
   const columns = rows.length > 0 ? Object.keys(rows[0]) : [];
   // the header as written: the engine would rename a repeated name (floor_1) and an empty one (column1)

@@ -4,7 +4,7 @@ import type { Duck } from '../engine/duck.js';
 import { ident, literal } from '../engine/sql.js';
 import type { Split } from '../engine/types.js';
 import { error } from '../util/error.js';
-import { readError } from './read-errors.js';
+import { badJsonLine, readError } from './read-errors.js';
 
 export { readError };
 
@@ -25,6 +25,8 @@ export interface TableInput {
    * repeated names), read from the first bytes; the engine then need not sniff the file
    */
   readonly header?: readonly string[];
+  /** set when the (decompressed) text starts with a UTF-8 byte order mark */
+  readonly bom?: true;
 }
 
 /** The names in a plain header line, or null when DuckDB should read the header itself. */
@@ -102,16 +104,19 @@ export async function detectTable(path: string, split?: Split): Promise<TableInp
   const gzipMagic = buf.length >= 2 && buf[0] === 0x1f && buf[1] === 0x8b;
   const parquetMagic = buf.length >= 4 && buf.subarray(0, 4).toString('latin1') === 'PAR1';
   let format: TableFormat | null = null;
+  let head = '';
   if (parquetMagic) format = 'parquet';
   else if (gzipMagic) {
-    let head = '';
     try {
       head = gunzipSync(buf, { finishFlush: 2 /* Z_SYNC_FLUSH */ }).subarray(0, 8192).toString('utf8');
     } catch {
       head = '';
     }
     format = sniffText(head);
-  } else format = sniffText(buf.toString('utf8'));
+  } else {
+    head = buf.toString('utf8');
+    format = sniffText(head);
+  }
 
   if (byExt.format === 'parquet' && !parquetMagic) {
     throw error(`${path}: the name says Parquet but the file does not start with PAR1; expected a Parquet file`);
@@ -135,7 +140,17 @@ export async function detectTable(path: string, split?: Split): Promise<TableInp
     modified: info.mtime.toISOString(),
     ...(split ? { split } : {}),
     ...(header ? { header } : {}),
+    ...(head.charCodeAt(0) === 0xfeff ? { bom: true as const } : {}),
   };
+}
+
+/**
+ * The engine reads a JSON Lines file that starts with a byte order mark with one thread only: its
+ * parallel JSON reader rejects the mark ("byte order mark (BOM) is not supported", DuckDB 1.5) where
+ * the single-threaded one skips it.
+ */
+export function needsOneThread(inputs: readonly TableInput[]): boolean {
+  return inputs.some((i) => i.format === 'jsonl' && i.bom === true);
 }
 
 /**
@@ -152,6 +167,11 @@ export async function tableSql(duck: Duck, input: TableInput): Promise<string> {
     case 'jsonl': {
       const base = `read_json(${path}, format = 'newline_delimited', compression = ${compression}`;
       const cols = await describeColumns(duck, `${base})`, input.path);
+      if (cols.length === 1 && cols[0] === 'json') {
+        // the engine's one column "json": some line holds no object (an array document, a bare value)
+        const why = await badJsonLine(input);
+        if (why) throw error(`${input.path}: ${why}`);
+      }
       const spec = cols.map((c) => `${literal(c)}: 'VARCHAR'`).join(', ');
       return `${base}, columns = {${spec}})`;
     }

@@ -65,6 +65,11 @@ describe.concurrent('bad files: exit 2 and one line naming what is wrong', () =>
     ['Parquet with a bad footer', [f('bad-footer.parquet')], /bad-footer\.parquet: not a valid Parquet file: its footer is missing or damaged/],
     // the fifth line lacks its closing brace; the engine's own message points at line 6
     ['JSON Lines with a broken line', [f('broken.jsonl')], /broken\.jsonl: line 5: not valid JSON \(.*\); every line must hold one JSON object$/],
+    ['a JSON array document, not JSON Lines', [f('array.json')], /array\.json: line 1: a JSON array; expected JSON Lines, one object per line$/],
+    ['a JSON Lines line that is a bare number', [f('scalar-line.jsonl')], /scalar-line\.jsonl: line 3: a JSON number \(5\); expected JSON Lines, one object per line$/],
+    // the engine names line 2 for both
+    ['JSON Lines: half a surrogate pair on line 1', [f('surrogate.jsonl')], /surrogate\.jsonl: line 1: a \\u escape of half a surrogate pair; expected whole characters \(both halves of a pair\)$/],
+    ['JSON Lines: bytes that are not UTF-8 on line 1', [f('invalid-utf8.jsonl')], /invalid-utf8\.jsonl: line 1: bytes that are not valid UTF-8; save the file as UTF-8$/],
     ['column names with control sequences', [f('control-header.csv')], /control-header\.csv: no label column; the columns are "id", "split", "sta\\u001b\[2Jtion", "verdict\\u202e", "guess\\u001b\]52;c;aGk=\\u0007"/],
     // floor tables
     ['floor table: a line repeated', [f('valid.csv'), '--floor-table', f('floors-duplicate.csv')], /floors-duplicate\.csv: line 4 repeats line 2 \(package=0402\); keep one$/],
@@ -104,6 +109,13 @@ describe.concurrent('awkward but valid files: the right report', () => {
     expect(report.warnings).toContain(`${f('unnamed-index.csv')}: column 1 has no name and was left out; name it in the header to use it`);
     expect(report.source.roles.id).toBe('id');
     expect(report.slices.map((s) => Object.keys(s.key)[0]).sort()).toEqual(['package', 'package', 'station', 'station', 'station', 'station']); // make.mjs: S1–S4, 0402/QFN
+    expect(report.overall.error.dev?.value).toBe(0.25); // make.mjs: errors at i % 4 == 0, 10 of 40
+  });
+
+  it('JSON Lines with a UTF-8 byte order mark: read as without it', async () => {
+    const { report } = await reportJson([f('bom.jsonl'), '--slice-cols', 'station']);
+    expect(report.source.roles.id).toBe('id');
+    expect(report.overall.error.dev?.n).toBe(40);
     expect(report.overall.error.dev?.value).toBe(0.25); // make.mjs: errors at i % 4 == 0, 10 of 40
   });
 

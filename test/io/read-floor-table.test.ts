@@ -71,6 +71,23 @@ describe('readFloorTable', () => {
     ]);
   });
 
+  it('JSON Lines with a byte order mark, on an engine with two threads (whose parallel reader rejects the mark)', async () => {
+    const path = file('bom.jsonl', '\ufeff{"station":"S1","floor":0.05}\n{"station":"S2","floor":0.1}\n');
+    const two = await openDuck({ threads: 2 });
+    try {
+      const t = await readFloorTable(two, path);
+      // expected: hand-copied from the two lines written above
+      expect(t.entries).toEqual([
+        { line: 1, keys: { station: 'S1' }, floor: 0.05, n: null },
+        { line: 2, keys: { station: 'S2' }, floor: 0.1, n: null },
+      ]);
+      // the table is read with one thread, then the engine gets its two back
+      expect(await two.all(`SELECT current_setting('threads') AS t`)).toEqual([{ t: 2 }]);
+    } finally {
+      two.close();
+    }
+  });
+
   it('reads TSV and gzip-compressed CSV', async () => {
     const tsv = file('floors.tsv', 'package\tfloor\n0201\t0.12\n');
     const gz = join(dir, 'floors.csv.gz');
