@@ -328,7 +328,7 @@ async function scanPlanned(duck: Duck, planned: ScanPlan): Promise<Loaded> {
   const warnings = [...planned.warnings];
   const scanned = await scanCells(duck, plan, grouping, source.native ?? null).catch(async (e) => {
     if (e instanceof Error && e.name === 'FloorgapError') throw e;
-    throw (await locateReadError(source.inputs)) ?? readError(source.where, e);
+    throw (await locateReadError(source.inputs, e)) ?? readError(source.where, e);
   });
   let table = scanned.table;
   await checkIssues(duck, source, roles, plan, scanned.issues, warnings);

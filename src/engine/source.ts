@@ -86,8 +86,9 @@ export async function openSource(duck: Duck, spec: SourceSpec): Promise<Source> 
       } else {
         const detected = await tableSql(duck, input);
         cols = await describeColumns(duck, detected, input.path);
-        const written = (await headerNames(duck, input)) ?? cols;
-        const empty = checkHeader(input.path, cols, written);
+        const header = await headerNames(duck, input);
+        const written = header ?? cols;
+        const empty = checkHeader(input.path, cols, written, header !== null);
         if (written.length === cols.length) {
           dropped = empty.map((i) => cols[i - 1]);
           for (const column of empty) unnamed.push({ path: input.path, column });
@@ -176,11 +177,11 @@ function checkSameColumns(
  * still visible (the engine trims them, renames a repeated one `x_1` and an empty one `column2`).
  * @returns the 1-based positions of unnamed columns
  */
-function checkHeader(path: string, cols: readonly string[], written: readonly string[]): number[] {
+function checkHeader(path: string, cols: readonly string[], written: readonly string[], header = true): number[] {
   for (const c of cols) {
     if (c === PER_SPLIT_COLUMN) throw error(`${path}: column name "${c}" is reserved by floorgap; rename it`);
   }
-  return checkColumnNames(path, written);
+  return checkColumnNames(path, written, header);
 }
 
 /** Checks a `--where` expression against the source's columns before the scan. */

@@ -78,6 +78,8 @@ export async function readFloorTable(duck: Duck, path: string, valueColumn = 'fl
     const keys: Record<string, string> = {};
     for (const c of keyColumns) {
       const v = row[c];
+      // keys are written into the cell query, whose SQL ends a string at a NUL
+      if (typeof v === 'string' && v.includes('\0')) throw error(`${path}: line ${line}, column ${JSON.stringify(c)}: the value ${JSON.stringify(v)} holds a NUL byte; expected text`);
       if (v !== null && v !== undefined && String(v).trim() !== '') keys[c] = String(v).trim();
     }
     const id = JSON.stringify(Object.entries(keys).sort());

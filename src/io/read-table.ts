@@ -167,6 +167,8 @@ export async function tableSql(duck: Duck, input: TableInput): Promise<string> {
     case 'jsonl': {
       const base = `read_json(${path}, format = 'newline_delimited', compression = ${compression}`;
       const cols = await describeColumns(duck, `${base})`, input.path);
+      const nul = cols.find((c) => c.includes('\0'));
+      if (nul !== undefined) throw error(`${input.path}: the key ${JSON.stringify(nul)} holds a NUL character; expected key names of text`);
       if (cols.length === 1 && cols[0] === 'json') {
         // the engine's one column "json": some line holds no object (an array document, a bare value)
         const why = await badJsonLine(input);
@@ -217,16 +219,19 @@ export async function headerNames(duck: Duck, input: TableInput): Promise<string
  * (the engine would rename the second one, `station_1`). Names empty after trimming are allowed
  * here; the caller decides what an unnamed column means.
  * @param names the names as written in the file (CSV/TSV header), or as the engine read them
+ * @param header true when `names` is a header line (line 1 of the file)
  * @returns the positions (1-based) of the names that are empty after trimming
  * @throws FloorgapError naming the two positions and the name
  * @example
  * checkColumnNames('p.csv', ['id', '', 'station']); // => [2]
  * checkColumnNames('p.csv', ['id', 'station', 'station ']); // throws 'p.csv: columns 2 and 3 are both named "station" (after trimming spaces); …'
  */
-export function checkColumnNames(path: string, names: readonly string[]): number[] {
+export function checkColumnNames(path: string, names: readonly string[], header = true): number[] {
   const seen = new Map<string, number>();
   const unnamed: number[] = [];
   names.forEach((raw, i) => {
+    // the engine's SQL ends a string at a NUL: such a name cannot be quoted in a query
+    if (raw.includes('\0')) throw error(`${path}: ${header ? 'line 1: ' : ''}the name of column ${i + 1}, ${JSON.stringify(raw)}, holds a NUL byte; expected names of text`);
     const name = raw.trim();
     if (name === '') {
       unnamed.push(i + 1);
