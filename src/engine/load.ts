@@ -2,7 +2,7 @@ import { keySql, readCellResult, scanCells, unknownSplitError, type CellPlan, ty
 import { cellQuery } from './cell-query.js';
 import { concatTables, tableCells, type CellTable } from './cell-table.js';
 import type { Duck } from './duck.js';
-import { chooseSliceColumns, createSample, profileColumns, SAMPLE_ROWS, sampleTupleCount, sampleTupleStats, sliceColumns, type Profile } from './profile.js';
+import { chooseSliceColumns, createSample, MAX_AUTO_COLUMNS, MAX_CATEGORIES, profileColumns, SAMPLE_ROWS, sampleTupleCount, sampleTupleStats, sliceColumns, type Profile } from './profile.js';
 import { chao1 } from '../stats/chao1.js';
 import { resolveRoles, roleColumns, type RoleOptions, type Roles } from './roles.js';
 import { checkWhere, openSource, type Source, type SourceSpec } from './source.js';
@@ -181,7 +181,7 @@ async function planColumns(
     (c) => c === splitColumn || source.columns.includes(c),
   );
   const sample = await withReadErrors(source.inputs, source.where, () => createSample(duck, options.where, SAMPLE_ROWS, sampled));
-  const profile = await profileColumns(duck, profiled, options.where, SAMPLE_ROWS, sample);
+  const profile = await profileColumns(duck, profiled, options.where, SAMPLE_ROWS, sample, named);
   if (profile.sampleRows === 0) {
     throw error(options.where ? `${source.where}: no rows match --where "${options.where}"` : `${source.where}: no rows; expected a header and data rows`);
   }
@@ -203,6 +203,12 @@ async function planColumns(
     }
   }
   const chosen = chooseSliceColumns(profile, roleCols, options.sliceCols, source.where, dataColumns);
+  if (chosen.left.length > 0) {
+    const n = chosen.left.length;
+    warnings.push(
+      `${n.toLocaleString('en-US')} more candidate slice column${n === 1 ? ' was' : 's were'} left out (${someNames(chosen.left)}): at most ${MAX_AUTO_COLUMNS} are chosen by themselves, columns of 2–${MAX_CATEGORIES} values first, then numeric ones, each in file order; choose them with --slice-cols`,
+    );
+  }
   const by = options.by ? resolveBy(options.by, dataColumns, roles, source.where) : null;
   // key columns of floor and cost tables are slice columns: label, pred and split are allowed (a floor
   // per true class), the row-level roles and annotator columns are not
@@ -436,6 +442,11 @@ async function checkIssues(duck: Duck, source: Source, roles: Roles, plan: CellP
     const what = roles.error ? `an empty "${roles.error}"` : `an empty "${roles.label}" or "${roles.pred}"`;
     warnings.push(`${plural(issues.unlabelled, 'row')} with ${what} ${issues.unlabelled === 1 ? 'was' : 'were'} left out`);
   }
+}
+
+/** Names for a message: at most three, quoted, then "…". */
+function someNames(names: readonly string[]): string {
+  return names.slice(0, 3).map((c) => JSON.stringify(c)).join(', ') + (names.length > 3 ? ', …' : '');
 }
 
 function esc(name: string): string {

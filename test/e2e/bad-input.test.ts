@@ -198,6 +198,15 @@ describe.concurrent('large cases, written at test time', () => {
     let many = 'id,split,station,serial,label,pred\n';
     for (let i = 0; i < 100_000; i++) many += `r${i},${i % 2 ? 'dev' : 'train'},S${i % 4},SN${String(i).padStart(6, '0')},good,${i % 5 ? 'good' : 'void'}\n`;
     writeFileSync(join(dir, 'many-values.csv'), many);
+    // a wide table: 1,995 numeric columns (an embedding stored as columns), 300 rows
+    const emb = Array.from({ length: 1995 }, (_, j) => `emb_${j}`);
+    let wide = ['id', 'split', 'label', 'pred', 'station', ...emb].join(',') + '\n';
+    for (let r = 0; r < 300; r++) {
+      const label = r % 3 ? 'a' : 'b';
+      const pred = r % 4 ? label : label === 'a' ? 'b' : 'a';
+      wide += [`r${r}`, r % 2 ? 'dev' : 'train', label, pred, `S${r % 4}`, ...emb.map((_, j) => String(((r * 37 + j * 11) % 1000) / 1000))].join(',') + '\n';
+    }
+    writeFileSync(join(dir, 'wide.csv'), wide);
   });
   afterAll(() => rmSync(dir, { recursive: true, force: true }));
 
@@ -211,6 +220,26 @@ describe.concurrent('large cases, written at test time', () => {
   it('a slice column of 100,000 values is stopped before the scan, with advice', async () => {
     await expectError([join(dir, 'many-values.csv'), '--by', 'serial'], /--by serial: the first 100,000 rows alone hold 100,000 slices, more than --max-slices 10,000; slice by fewer or coarser columns/);
     await expectError([join(dir, 'many-values.csv'), '--slice-cols', 'station,serial'], /the overview's columns give 100,004 slices \(serial alone 100,000\), more than --max-slices 10,000; name fewer or coarser columns in --slice-cols/);
+  });
+
+  it('2,000 columns: the report is made from 32 candidate columns, and a warning says how many were left out', async () => {
+    const { report, stderr } = await reportJson([join(dir, 'wide.csv')]);
+    expect(stderr).toBe('');
+    // the file's one column of 4 values first, then the numeric columns in file order, 32 in all
+    const columns = [...new Set(report.slices.map((s) => Object.keys(s.key)[0]))];
+    expect(columns).toHaveLength(32);
+    expect(columns.sort()).toEqual(['station', ...Array.from({ length: 31 }, (_, j) => `emb_${j}`)].sort());
+    expect(report.warnings).toContain(
+      '1,964 more candidate slice columns were left out ("emb_31", "emb_32", "emb_33", …): at most 32 are chosen by themselves, columns of 2–50 values first, then numeric ones, each in file order; choose them with --slice-cols',
+    );
+    // hand arithmetic on the invented table: 150 dev rows (odd r); errors where r % 4 == 0, none of them odd
+    expect(report.overall.error.dev?.n).toBe(150);
+    expect(report.overall.error.dev?.value).toBe(0);
+    expect(report.overall.error.train?.value).toBe(0.5); // even r: r % 4 == 0 is half of them
+    // --slice-cols reaches any of them
+    const named = await reportJson([join(dir, 'wide.csv'), '--slice-cols', 'emb_1994']);
+    expect(named.report.slices.every((s) => Object.keys(s.key)[0] === 'emb_1994')).toBe(true);
+    expect(named.report.slices).toHaveLength(5); // --bins 5 at the quantiles of 300 distinct values
   });
 
   it('the overview leaves such a column out by itself', async () => {
