@@ -161,6 +161,7 @@ async function withUnnamedNote<T>(unnamed: NonNullable<Source['unnamed']>, plan:
   }
 }
 
+/** {@link planScan} itself; `warnings` collects its warnings. */
 async function planColumns(
   duck: Duck,
   options: LoadOptions,
