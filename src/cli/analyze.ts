@@ -3,6 +3,7 @@ import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { loadCellFiles } from '../engine/cells-input.js';
 import { openDuck, type Duck } from '../engine/duck.js';
+import { needsOneThreadFor } from '../io/read-table.js';
 import { releaseTemp, trackScratch } from '../io/temp-files.js';
 import { cellLimit, loadCells, withCells, type LoadHooks, type Loaded } from '../engine/load.js';
 import { cacheDir, cacheKey, readCache } from '../io/cell-cache.js';
@@ -92,7 +93,7 @@ function reportOf(loaded: Loaded, triageOptions: TriageOptions, where: string | 
 export async function analyzeWith(duck: Duck, args: AnalysisArgs, io?: AnalysisIO): Promise<Analysis> {
   const triageOptions = toTriageOptions(args);
   if (usesCells(args)) {
-    const loaded = await loadCellFiles(duck, cellPaths(args, io), list(args.by), cellLimit(args['max-cells'] ?? 200_000));
+    const loaded = await loadCellFiles(duck, cellPaths(args, io), args.byColumns ? [...args.byColumns] : list(args.by), cellLimit(args['max-cells'] ?? 200_000));
     return reportOf(loaded, triageOptions, null);
   }
   const loadOptions = toLoadOptions(args);
@@ -126,7 +127,10 @@ export async function openEngine(args: Pick<AnalysisArgs, 'threads' | 'memory-li
   };
   let duck: Duck;
   try {
-    duck = await openDuck({ threads: args.threads, memoryLimit: args['memory-limit'] }, { ...access, spill });
+    // the engine's JSON reader rejects a byte order mark when it reads in parallel; a locked engine
+    // cannot change its threads later, so it opens with one thread when any file it reads needs that
+    const threads = (await needsOneThreadFor(access.read)) ? 1 : args.threads;
+    duck = await openDuck({ threads, memoryLimit: args['memory-limit'] }, { ...access, spill });
   } catch (e) {
     removeSpill();
     throw e;

@@ -13,6 +13,7 @@ export function analysisOptions<T>(y: Argv<T>) {
     .option('train-dev', { type: 'string', describe: 'file holding the train_dev split', group: 'Inputs:' })
     .option('dev', { type: 'string', describe: 'file holding the dev split', group: 'Inputs:' })
     .option('test', { type: 'string', describe: 'file holding the test split', group: 'Inputs:' })
+    .option('union', { type: 'boolean', default: false, describe: 'read inputs with different columns as one table; a column an input lacks is missing there', group: 'Inputs:' })
     .option('config', { type: 'string', describe: 'project file (default: ./floorgap.json when present)', group: 'Inputs:' })
     .option('where', { type: 'string', describe: 'keep rows matching a DuckDB SQL condition (columns are text)', group: 'Inputs:' })
     .option('cells', { type: 'string', array: true, describe: 'ready-made cells (from floorgap sql) instead of rows: CSV, Parquet or JSON Lines; shards are summed', group: 'Inputs:' })
@@ -56,6 +57,8 @@ export interface AnalysisArgs {
   'train-dev'?: string;
   dev?: string;
   test?: string;
+  /** --union: inputs with different columns are read as one table */
+  union?: boolean;
   where?: string;
   label?: string;
   pred?: string;
@@ -70,6 +73,11 @@ export interface AnalysisArgs {
   'floor-rule': 'panel' | 'typical' | 'best';
   'cost-table'?: string;
   by?: string;
+  /**
+   * the grouping as column names, set by a command that knows it as a list (export's named slices);
+   * used instead of `by` and never split on commas, so a column whose name holds one stays whole
+   */
+  byColumns?: readonly string[];
   'slice-cols'?: string;
   bins: number;
   'max-cells': number;
@@ -114,10 +122,11 @@ export function toLoadOptions(a: AnalysisArgs): LoadOptions {
     source: {
       files: (a.files ?? []).map(String),
       perSplit: { train: a.train, train_dev: a['train-dev'], dev: a.dev, test: a.test },
+      union: a.union === true,
     },
     roles,
     where: a.where ?? null,
-    by: list(a.by),
+    by: a.byColumns ? [...a.byColumns] : list(a.by),
     sliceCols: list(a['slice-cols']),
     bins: a.bins,
     maxCells: a['max-cells'],

@@ -3,7 +3,7 @@ import { badWeightSql, cellQuery, SPLIT_SPELLINGS, WEIGHT_EXPECTED } from './cel
 import { dialect } from './dialect.js';
 import { concatTables, tableCells, type CellTable } from './cell-table.js';
 import type { Duck } from './duck.js';
-import { chooseSliceColumns, createSample, profileColumns, SAMPLE_ROWS, sampleTupleCount, sampleTupleStats, sliceColumns, type Profile } from './profile.js';
+import { chooseSliceColumns, createSample, MAX_AUTO_COLUMNS, MAX_CATEGORIES, profileColumns, SAMPLE_ROWS, sampleTupleCount, sampleTupleStats, sliceColumns, type Profile } from './profile.js';
 import { chao1 } from '../stats/chao1.js';
 import { resolveRoles, roleColumns, type RoleOptions, type Roles } from './roles.js';
 import { checkWhere, openSource, ROWS_VIEW, type Source, type SourceSpec } from './source.js';
@@ -16,7 +16,7 @@ import { cacheKey, readCache, writeCache } from '../io/cell-cache.js';
 import { describeKey, readFloorTable, type FloorEntry, type FloorTable } from '../io/read-floor-table.js';
 import { locateReadError, readError, withReadErrors } from '../io/read-errors.js';
 import { firstBadRow } from '../io/locate.js';
-import { error } from '../util/error.js';
+import { error, FloorgapError } from '../util/error.js';
 
 /** Options of loading rows into cells. */
 export interface LoadOptions {
@@ -144,6 +144,33 @@ export async function planScan(
   overrides: { readonly edges?: ReadonlyMap<string, readonly number[]>; readonly grouping?: 'cross' | 'sets' | null } = {},
 ): Promise<ScanPlan> {
   const warnings: string[] = [];
+  const unnamed = source.unnamed ?? [];
+  for (const u of unnamed) warnings.push(`${u.path}: column ${u.column} has no name and was left out; name it in the header to use it`);
+  return withUnnamedNote(unnamed, () => planColumns(duck, options, source, overrides, warnings));
+}
+
+/**
+ * Runs `plan`; when it fails for want of a column (a message listing "the columns are …") and an
+ * input has unnamed columns, which were left out, the message says so: the column may be that one.
+ */
+async function withUnnamedNote<T>(unnamed: NonNullable<Source['unnamed']>, plan: () => Promise<T>): Promise<T> {
+  try {
+    return await plan();
+  } catch (e) {
+    if (!(e instanceof FloorgapError) || unnamed.length === 0 || !e.message.includes('the columns are ')) throw e;
+    const note = unnamed.map((u) => `column ${u.column} of ${u.path}`).join(', ');
+    throw error(`${e.message}; ${note} ${unnamed.length === 1 ? 'has' : 'have'} no name and ${unnamed.length === 1 ? 'was' : 'were'} left out`, e, e.exitCode);
+  }
+}
+
+/** {@link planScan} itself; `warnings` collects its warnings. */
+async function planColumns(
+  duck: Duck,
+  options: LoadOptions,
+  source: Source,
+  overrides: { readonly edges?: ReadonlyMap<string, readonly number[]>; readonly grouping?: 'cross' | 'sets' | null },
+  warnings: string[],
+): Promise<ScanPlan> {
   const roles = resolveRoles(source.columns, options.roles, source.where, source.splitColumn !== null);
   const splitColumn = roles.split ?? source.splitColumn!;
   // from here on the filter is the checked text DuckDB wrote back, never the text as given
@@ -160,7 +187,7 @@ export async function planScan(
     (c) => c === splitColumn || source.columns.includes(c),
   );
   const sample = await withReadErrors(source.inputs, source.where, () => createSample(duck, options.where, SAMPLE_ROWS, sampled));
-  const profile = await profileColumns(duck, profiled, options.where, SAMPLE_ROWS, sample);
+  const profile = await profileColumns(duck, profiled, options.where, SAMPLE_ROWS, sample, named);
   if (profile.sampleRows === 0) {
     throw error(givenWhere ? `${source.where}: no rows match --where "${givenWhere}"` : `${source.where}: no rows; expected a header and data rows`);
   }
@@ -182,6 +209,12 @@ export async function planScan(
     }
   }
   const chosen = chooseSliceColumns(profile, roleCols, options.sliceCols, source.where, dataColumns);
+  if (chosen.left.length > 0) {
+    const n = chosen.left.length;
+    warnings.push(
+      `${n.toLocaleString('en-US')} more candidate slice column${n === 1 ? ' was' : 's were'} left out (${someNames(chosen.left)}): at most ${MAX_AUTO_COLUMNS} are chosen by themselves, columns of 2–${MAX_CATEGORIES} values first, then numeric ones, each in file order; choose them with --slice-cols`,
+    );
+  }
   const by = options.by ? resolveBy(options.by, dataColumns, roles, source.where) : null;
   // key columns of floor and cost tables are slice columns: label, pred and split are allowed (a floor
   // per true class), the row-level roles and annotator columns are not
@@ -307,7 +340,7 @@ async function scanPlanned(duck: Duck, planned: ScanPlan): Promise<Loaded> {
   const warnings = [...planned.warnings];
   const scanned = await scanCells(duck, plan, grouping, source.native ?? null).catch(async (e) => {
     if (e instanceof Error && e.name === 'FloorgapError') throw e;
-    throw (await locateReadError(source.inputs)) ?? readError(source.where, e);
+    throw (await locateReadError(source.inputs, e)) ?? readError(source.where, e);
   });
   let table = scanned.table;
   const issues = scanned.issues;
@@ -471,6 +504,11 @@ async function checkLeftOut(duck: Duck, where: string, plan: CellPlan, counts: R
   for (const s of missing) {
     if (left[s] > 0) throw error(`${where}: no usable rows with split ${s}: its ${plural(left[s], 'row')} ${left[s] === 1 ? 'has' : 'have'} ${what}`);
   }
+}
+
+/** Names for a message: at most three, quoted, then "…". */
+function someNames(names: readonly string[]): string {
+  return names.slice(0, 3).map((c) => JSON.stringify(c)).join(', ') + (names.length > 3 ? ', …' : '');
 }
 
 function esc(name: string): string {

@@ -7,7 +7,10 @@ import { error } from '../util/error.js';
 /** What the sampled pre-pass saw of one column. */
 export interface ColumnProfile {
   readonly name: string;
-  /** distinct non-empty values in the sample */
+  /**
+   * distinct non-empty values in the sample: exact for a column of at most about 2,000 raw values or
+   * one named exact (see {@link profileColumns}); above that, an estimate within a few per cent
+   */
   readonly distinct: number;
   /** non-empty values in the sample */
   readonly present: number;
@@ -56,7 +59,12 @@ export function textSql(column: string): string {
 
 /**
  * The sampled pre-pass: counts distinct, present and numeric values of each column in the first
- * 100,000 rows (after `--where`).
+ * 100,000 rows (after `--where`). Columns are profiled in batches, so that a table of thousands of
+ * columns (embeddings stored as columns) costs time in proportion, never one query holding an
+ * aggregate per column, whose memory the engine cannot bound.
+ * @param exact columns whose distinct values are counted exactly however many there are (those named
+ *   in `--by` or `--slice-cols`, whose count a message may quote); for the others, a count above
+ *   2,000 is an estimate
  */
 export async function profileColumns(
   duck: Duck,
@@ -64,31 +72,53 @@ export async function profileColumns(
   where: string | null,
   sampleRows = SAMPLE_ROWS,
   from?: string,
+  exact: ReadonlySet<string> = new Set(),
 ): Promise<Profile> {
   const from_ = sampleSql(where, sampleRows, from);
-  // first the raw distinct values per column (cheap); columns with few of them are then profiled on
-  // their distinct values (trim and number parsing once per value, not once per row)
-  const raw = await duck.all(`SELECT ${['count(*) AS n', ...columns.map((c, i) => `count(DISTINCT ${ident(c)}) AS r${i}`)].join(', ')} FROM ${from_}`);
-  const n = Number(raw[0].n);
-  const few = columns.map((_, i) => Number(raw[0][`r${i}`]) <= FEW_VALUES);
-  const stats = new Map<number, { distinct: number; present: number; numeric: number }>();
-  const lowIdx = columns.map((_, i) => i).filter((i) => few[i]);
-  if (lowIdx.length > 0) {
-    const parts = lowIdx.map((i) => `SELECT ${i} AS c, NULLIF(trim(v), '') AS t, n FROM (SELECT ${ident(columns[i])} AS v, count(*) AS n FROM ${from_} GROUP BY 1)`);
-    const rows = await duck.all(
-      `SELECT c, count(DISTINCT t) AS d, coalesce(sum(n) FILTER (WHERE t IS NOT NULL), 0) AS p, coalesce(sum(n) FILTER (WHERE TRY_CAST(t AS DOUBLE) IS NOT NULL), 0) AS x FROM (${parts.join(' UNION ALL ')}) GROUP BY c`,
-    );
-    for (const r of rows) stats.set(Number(r.c), { distinct: Number(r.d), present: Number(r.p), numeric: Number(r.x) });
+  const [{ n: rowCount }] = await duck.all(`SELECT count(*) AS n FROM ${from_}`);
+  const n = Number(rowCount);
+  // first, per column, an estimate of its raw distinct values (HyperLogLog: small, fixed memory), its
+  // raw values and its smallest one; cheap aggregates that route each column to one of the passes below
+  const raw: { estimate: number; values: number; min: string | null }[] = [];
+  for (const batch of batches(columns.map((_, i) => i), ESTIMATE_BATCH)) {
+    const aggs = batch.flatMap((i) => [`approx_count_distinct(${ident(columns[i])}) AS e${i}`, `count(${ident(columns[i])}) AS v${i}`, `min(${ident(columns[i])}) AS m${i}`]);
+    const [r] = await duck.all(`SELECT ${aggs.join(', ')} FROM ${from_}`);
+    for (const i of batch) raw[i] = { estimate: Number(r[`e${i}`]), values: Number(r[`v${i}`]), min: r[`m${i}`] === null ? null : String(r[`m${i}`]) };
   }
-  const highIdx = columns.map((_, i) => i).filter((i) => !few[i]);
-  if (highIdx.length > 0) {
-    const aggs = highIdx.flatMap((i) => [
-      `count(DISTINCT ${textSql(columns[i])}) AS d${i}`,
-      `count(${textSql(columns[i])}) AS p${i}`,
-      `count(TRY_CAST(${textSql(columns[i])} AS DOUBLE)) AS x${i}`,
+  const stats = new Map<number, { distinct: number; present: number; numeric: number }>();
+  // columns with few raw values are profiled exactly on their distinct values (trim and number parsing
+  // once per value, not once per row): a GROUP BY per column, or, for a small sample, where a query per
+  // column costs more than its rows, one grouping of (column, value) pairs per batch
+  const lowIdx = columns.map((_, i) => i).filter((i) => raw[i].estimate <= FEW_VALUES);
+  const pairs = n < PAIRS_BELOW_ROWS;
+  for (const batch of batches(lowIdx, pairs ? FEW_BATCH : FEW_BATCH_PER_COLUMN)) {
+    const values = pairs
+      ? `SELECT c, NULLIF(trim(v), '') AS t, count(*) AS n FROM (UNPIVOT (SELECT ${batch.map((i) => `${ident(columns[i])} AS c${i}`).join(', ')} FROM ${from_}) ON COLUMNS(*) INTO NAME c VALUE v) GROUP BY c, v`
+      : batch.map((i) => `SELECT 'c${i}' AS c, NULLIF(trim(v), '') AS t, n FROM (SELECT ${ident(columns[i])} AS v, count(*) AS n FROM ${from_} GROUP BY 1)`).join(' UNION ALL ');
+    const rows = await duck.all(
+      `SELECT c, count(DISTINCT t) AS d, coalesce(sum(n) FILTER (WHERE t IS NOT NULL), 0) AS p, coalesce(sum(n) FILTER (WHERE TRY_CAST(t AS DOUBLE) IS NOT NULL), 0) AS x FROM (${values}) GROUP BY c`,
+    );
+    for (const r of rows) stats.set(Number(String(r.c).slice(1)), { distinct: Number(r.d), present: Number(r.p), numeric: Number(r.x) });
+  }
+  // columns with many values: numbers counted per row (the cast ignores surrounding spaces, as
+  // trimming would); a value empty after trimming can only exist when the smallest value is empty or
+  // starts with a space or a control character, else every raw value is present
+  const highIdx = columns.map((_, i) => i).filter((i) => raw[i].estimate > FEW_VALUES);
+  for (const batch of batches(highIdx, MANY_BATCH)) {
+    const blankable = (i: number) => raw[i].min === null || raw[i].min === '' || raw[i].min!.charCodeAt(0) <= 0x20;
+    const aggs = batch.flatMap((i) => [
+      `count(TRY_CAST(${ident(columns[i])} AS DOUBLE)) AS x${i}`,
+      ...(blankable(i) ? [`count(${textSql(columns[i])}) AS p${i}`] : []),
+      ...(exact.has(columns[i]) ? [`count(DISTINCT ${textSql(columns[i])}) AS d${i}`] : []),
     ]);
     const [r] = await duck.all(`SELECT ${aggs.join(', ')} FROM ${from_}`);
-    for (const i of highIdx) stats.set(i, { distinct: Number(r[`d${i}`]), present: Number(r[`p${i}`]), numeric: Number(r[`x${i}`]) });
+    for (const i of batch) {
+      stats.set(i, {
+        distinct: exact.has(columns[i]) ? Number(r[`d${i}`]) : raw[i].estimate,
+        present: blankable(i) ? Number(r[`p${i}`]) : raw[i].values,
+        numeric: Number(r[`x${i}`]),
+      });
+    }
   }
   return {
     sampleRows: n,
@@ -99,15 +129,40 @@ export async function profileColumns(
 
 /** Columns with at most this many raw values in the sample are profiled on their distinct values. */
 const FEW_VALUES = 2000;
+/**
+ * Columns per query of the pre-pass: the routing aggregates; columns of few values (at most about
+ * 2,000 values each, so a batch groups about 512,000 pairs at most); columns of many values (each
+ * perhaps an exact count(DISTINCT) over up to 100,000 values).
+ */
+const ESTIMATE_BATCH = 256;
+const FEW_BATCH = 256;
+const FEW_BATCH_PER_COLUMN = 32;
+const MANY_BATCH = 32;
+/**
+ * Samples of fewer rows group columns of few values as (column, value) pairs; larger ones one column at
+ * a time (measured on 2 cores: pairs cost less below about 20,000 rows, a query per column above).
+ */
+const PAIRS_BELOW_ROWS = 20_000;
+
+function batches<T>(items: readonly T[], size: number): T[][] {
+  const out: T[][] = [];
+  for (let i = 0; i < items.length; i += size) out.push(items.slice(i, i + size));
+  return out;
+}
 
 /** A column is numeric when every non-empty sampled value parses as a number. */
 export function isNumeric(p: ColumnProfile): boolean {
   return p.present > 0 && p.numeric === p.present;
 }
 
+/** Most candidate slice columns chosen automatically (without `--slice-cols`). */
+export const MAX_AUTO_COLUMNS = 32;
+
 /**
  * Picks candidate slice columns: every non-role column with 2–50 distinct values, plus numeric columns
- * with more (cut into bins). `explicit` (from `--slice-cols`) overrides the automatic list.
+ * with more (cut into bins), at most {@link MAX_AUTO_COLUMNS} of them: the columns of 2–50 values
+ * first, then the binned ones, each in file order; the rest are `left` out (their names, in file
+ * order). `explicit` (from `--slice-cols`) overrides the automatic list.
  */
 export function chooseSliceColumns(
   profile: Profile,
@@ -115,7 +170,7 @@ export function chooseSliceColumns(
   explicit: readonly string[] | null,
   where: string,
   allColumns?: readonly string[],
-): { columns: { name: string; kind: 'category' | 'binned' }[]; skipped: string[] } {
+): { columns: { name: string; kind: 'category' | 'binned' }[]; skipped: string[]; left: string[] } {
   const byName = new Map(profile.columns.map((c) => [c.name, c]));
   const kindOf = (p: ColumnProfile): 'category' | 'binned' =>
     isNumeric(p) && p.distinct > MAX_CATEGORIES ? 'binned' : 'category';
@@ -127,17 +182,24 @@ export function chooseSliceColumns(
       }
       return { name, kind: kindOf(p) };
     });
-    return { columns, skipped: [] };
+    return { columns, skipped: [], left: [] };
   }
-  const columns: { name: string; kind: 'category' | 'binned' }[] = [];
+  const eligible: { name: string; kind: 'category' | 'binned' }[] = [];
   const skipped: string[] = [];
   for (const p of profile.columns) {
     if (roleCols.includes(p.name)) continue;
-    if (p.distinct >= 2 && p.distinct <= MAX_CATEGORIES) columns.push({ name: p.name, kind: 'category' });
-    else if (isNumeric(p) && p.distinct > MAX_CATEGORIES) columns.push({ name: p.name, kind: 'binned' });
+    if (p.distinct >= 2 && p.distinct <= MAX_CATEGORIES) eligible.push({ name: p.name, kind: 'category' });
+    else if (isNumeric(p) && p.distinct > MAX_CATEGORIES) eligible.push({ name: p.name, kind: 'binned' });
     else skipped.push(p.name);
   }
-  return { columns, skipped };
+  const kept = new Set(
+    [...eligible.filter((c) => c.kind === 'category'), ...eligible.filter((c) => c.kind === 'binned')].slice(0, MAX_AUTO_COLUMNS).map((c) => c.name),
+  );
+  return {
+    columns: eligible.filter((c) => kept.has(c.name)),
+    skipped,
+    left: eligible.filter((c) => !kept.has(c.name)).map((c) => c.name),
+  };
 }
 
 /** Rounds to 3 significant digits, so bin labels show the exact edges used. */

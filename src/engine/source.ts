@@ -1,8 +1,9 @@
+import { stat } from 'node:fs/promises';
 import type { Duck } from './duck.js';
 import { ident, literal } from './sql.js';
 import type { ColumnKind } from './cell-query.js';
 import type { Split } from './types.js';
-import { describeColumns, detectTable, headerNames, pinnedCsvSql, tableSql, type TableInput } from '../io/read-table.js';
+import { checkColumnNames, describeColumns, detectTable, headerNames, pinnedCsvSql, tableSql, type TableInput } from '../io/read-table.js';
 import { withReadErrors } from '../io/read-errors.js';
 import { error } from '../util/error.js';
 
@@ -10,6 +11,11 @@ import { error } from '../util/error.js';
 export interface SourceSpec {
   readonly files: readonly string[];
   readonly perSplit: Partial<Record<Split, string>>;
+  /**
+   * true (`--union`): inputs with different columns are read as one table, a column an input lacks
+   * missing there; otherwise every input must have the same columns
+   */
+  readonly union?: boolean;
 }
 
 /** The opened source: a DuckDB view `fg_rows` with every column as text. */
@@ -25,6 +31,11 @@ export interface Source {
    * scan reads (converting every value to text first would cost more than the scan itself)
    */
   readonly native?: { readonly view: string; readonly kinds: ReadonlyMap<string, ColumnKind> } | null;
+  /**
+   * columns whose header name is empty (a CSV or TSV header field with nothing in it, as pandas
+   * writes for its index): left out of the rows view; `column` is the 1-based position in that file
+   */
+  readonly unnamed?: readonly { readonly path: string; readonly column: number }[];
 }
 
 /** Name of the view of the rows with their own column types (see {@link Source.native}). */
@@ -53,14 +64,19 @@ export async function openSource(duck: Duck, spec: SourceSpec): Promise<Source> 
   const inputs: TableInput[] = [];
   for (const f of spec.files) inputs.push(await detectTable(f));
   for (const [split, f] of perSplit) inputs.push(await detectTable(f, split));
+  await checkDistinctFiles(inputs);
 
   const parts: string[] = [];
   const allColumns: string[] = [];
+  const unnamed: { path: string; column: number }[] = [];
   const where = inputs.map((i) => i.path).join(', ');
+  let firstColumns: { readonly path: string; readonly columns: readonly string[] } | null = null;
   await withReadErrors(inputs, where, async () => {
     for (const input of inputs) {
       let cols: string[];
       let expr: string;
+      // the engine's names of columns whose header field is empty (it calls them column0, column1, …)
+      let dropped: string[] = [];
       if (input.header) {
         // a plain header read from the first bytes: no sniffing of the file
         cols = [...input.header];
@@ -69,20 +85,30 @@ export async function openSource(duck: Duck, spec: SourceSpec): Promise<Source> 
       } else {
         const detected = await tableSql(duck, input);
         cols = await describeColumns(duck, detected, input.path);
-        checkHeader(input.path, cols, (await headerNames(duck, input)) ?? cols);
+        const header = await headerNames(duck, input);
+        const written = header ?? cols;
+        const empty = checkHeader(input.path, cols, written, header !== null);
+        if (written.length === cols.length) {
+          dropped = empty.map((i) => cols[i - 1]);
+          for (const column of empty) unnamed.push({ path: input.path, column });
+        }
         expr = input.format === 'csv' || input.format === 'tsv' ? pinnedCsvSql(input, cols) : detected;
+        cols = cols.filter((c) => !dropped.includes(c));
       }
+      if (!firstColumns) firstColumns = { path: input.path, columns: cols };
+      else if (!spec.union) checkSameColumns(firstColumns, { path: input.path, columns: cols });
       for (const c of cols) if (!allColumns.includes(c)) allColumns.push(c);
+      const all = dropped.length > 0 ? `* EXCLUDE (${dropped.map(ident).join(', ')})` : '*';
       parts.push(
         input.split
-          ? `SELECT *, ${literal(input.split)} AS ${ident(PER_SPLIT_COLUMN)} FROM ${expr}`
-          : `SELECT * FROM ${expr}`,
+          ? `SELECT ${all}, ${literal(input.split)} AS ${ident(PER_SPLIT_COLUMN)} FROM ${expr}`
+          : `SELECT ${all} FROM ${expr}`,
       );
     }
     await duck.run(`CREATE OR REPLACE VIEW ${ROWS_VIEW} AS ${parts.join(' UNION ALL BY NAME ')}`);
   });
   const native = inputs.every((i) => i.format === 'parquet') ? await withReadErrors(inputs, where, () => nativeView(duck, inputs)) : null;
-  return { inputs, columns: allColumns, splitColumn: perSplit.length > 0 ? PER_SPLIT_COLUMN : null, where, native };
+  return { inputs, columns: allColumns, splitColumn: perSplit.length > 0 ? PER_SPLIT_COLUMN : null, where, native, unnamed };
 }
 
 async function nativeView(duck: Duck, inputs: readonly TableInput[]): Promise<Source['native']> {
@@ -107,16 +133,54 @@ async function nativeView(duck: Duck, inputs: readonly TableInput[]): Promise<So
   }
 }
 
-/** `written`: the header as written in the file (CSV/TSV), where repeated names are still visible. */
-function checkHeader(path: string, cols: readonly string[], written: readonly string[]): void {
+/**
+ * Refuses an input named twice: the same path, another spelling of it (`./a.csv`, `a.csv`), a symlink
+ * or a hard link to it (the same device and inode). Its rows would be counted twice.
+ */
+async function checkDistinctFiles(inputs: readonly TableInput[]): Promise<void> {
+  const seen = new Map<string, string>();
+  for (const input of inputs) {
+    const info = await stat(input.path);
+    const id = `${info.dev}:${info.ino}`;
+    const first = seen.get(id);
+    if (first !== undefined) throw error(`${input.path}: the same file as ${first}, given twice; give each file once`);
+    seen.set(id, input.path);
+  }
+}
+
+/** Names for a message: at most five, quoted, then how many more. */
+function someNames(names: readonly string[]): string {
+  const shown = names.slice(0, 5).map((c) => JSON.stringify(c)).join(', ');
+  return names.length > 5 ? `${shown} and ${names.length - 5} more` : shown;
+}
+
+/** Inputs read as one table must have the same columns (in any order) unless `--union` is given. */
+function checkSameColumns(
+  first: { readonly path: string; readonly columns: readonly string[] },
+  other: { readonly path: string; readonly columns: readonly string[] },
+): void {
+  const lacks = first.columns.filter((c) => !other.columns.includes(c));
+  const extra = other.columns.filter((c) => !first.columns.includes(c));
+  if (lacks.length === 0 && extra.length === 0) return;
+  const parts = [
+    ...(lacks.length > 0 ? [`${other.path} lacks ${someNames(lacks)}`] : []),
+    ...(extra.length > 0 ? [`${lacks.length > 0 ? '' : `${other.path} `}has ${someNames(extra)} that ${first.path} lacks`] : []),
+  ];
+  throw error(
+    `${other.path}: its columns differ from ${first.path}'s (${parts.join('; ')}); give files with the same columns, or --union to read them as one table with missing values`,
+  );
+}
+
+/**
+ * `written`: the header as written in the file (CSV/TSV), where repeated, padded and empty names are
+ * still visible (the engine trims them, renames a repeated one `x_1` and an empty one `column2`).
+ * @returns the 1-based positions of unnamed columns
+ */
+function checkHeader(path: string, cols: readonly string[], written: readonly string[], header = true): number[] {
   for (const c of cols) {
     if (c === PER_SPLIT_COLUMN) throw error(`${path}: column name "${c}" is reserved by floorgap; rename it`);
   }
-  const seen = new Set<string>();
-  for (const c of written) {
-    if (seen.has(c)) throw error(`${path}: column "${c}" appears twice in the header; column names must be unique`);
-    seen.add(c);
-  }
+  return checkColumnNames(path, written, header);
 }
 
 /**

@@ -107,6 +107,7 @@ export async function cacheKey(options: LoadOptions, version: string, cwd: strin
     version,
     build: buildStamp(),
     inputs,
+    union: options.source.union === true,
     tables,
     roles: options.roles,
     where: options.where,

@@ -1,5 +1,5 @@
 import type { Duck } from '../engine/duck.js';
-import { detectTable, readError, tableSql } from './read-table.js';
+import { checkColumnNames, detectTable, headerNames, readError, tableSql } from './read-table.js';
 import { error } from '../util/error.js';
 
 /**
@@ -48,14 +48,19 @@ export interface FloorTable {
 export async function readFloorTable(duck: Duck, path: string, valueColumn = 'floor'): Promise<FloorTable> {
   const input = await detectTable(path);
   if (input.format === 'parquet') throw error(`${path}: a floor table must be CSV, TSV or JSON Lines`);
-  const expr = await tableSql(duck, input);
   let rows: Record<string, unknown>[];
   try {
+    const expr = await tableSql(duck, input);
     rows = await duck.all(`SELECT * FROM ${expr}`);
   } catch (e) {
     throw readError(path, e);
   }
   const columns = rows.length > 0 ? Object.keys(rows[0]) : [];
+  // the header as written: the engine would rename a repeated name (floor_1) and an empty one (column1)
+  const unnamed = checkColumnNames(path, (await headerNames(duck, input)) ?? columns);
+  if (unnamed.length > 0) {
+    throw error(`${path}: column ${unnamed[0]} has no name; name every column of the table (its keys and "${valueColumn}")`);
+  }
   if (rows.length === 0) throw error(`${path}: no entries; expected a header and at least one row with a "${valueColumn}" column`);
   if (!columns.includes(valueColumn)) {
     throw error(`${path}: no "${valueColumn}" column; the columns are ${columns.map((c) => JSON.stringify(c)).join(', ')}`);
@@ -86,6 +91,8 @@ export async function readFloorTable(duck: Duck, path: string, valueColumn = 'fl
     const keys: Record<string, string> = {};
     for (const c of keyColumns) {
       const v = row[c];
+      // keys are written into the cell query, whose SQL ends a string at a NUL
+      if (typeof v === 'string' && v.includes('\0')) throw error(`${path}: line ${line}, column ${JSON.stringify(c)}: the value ${JSON.stringify(v)} holds a NUL byte; expected text`);
       if (v !== null && v !== undefined && String(v).trim() !== '') keys[c] = String(v).trim();
     }
     const id = JSON.stringify(Object.entries(keys).sort());

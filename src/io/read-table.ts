@@ -4,7 +4,7 @@ import type { Duck } from '../engine/duck.js';
 import { ident, literal } from '../engine/sql.js';
 import type { Split } from '../engine/types.js';
 import { error } from '../util/error.js';
-import { readError } from './read-errors.js';
+import { badJsonLine, readError } from './read-errors.js';
 
 export { readError };
 
@@ -25,6 +25,8 @@ export interface TableInput {
    * repeated names), read from the first bytes; the engine then need not sniff the file
    */
   readonly header?: readonly string[];
+  /** set when the (decompressed) text starts with a UTF-8 byte order mark */
+  readonly bom?: true;
 }
 
 /** The names in a plain header line, or null when DuckDB should read the header itself. */
@@ -102,16 +104,19 @@ export async function detectTable(path: string, split?: Split): Promise<TableInp
   const gzipMagic = buf.length >= 2 && buf[0] === 0x1f && buf[1] === 0x8b;
   const parquetMagic = buf.length >= 4 && buf.subarray(0, 4).toString('latin1') === 'PAR1';
   let format: TableFormat | null = null;
+  let head = '';
   if (parquetMagic) format = 'parquet';
   else if (gzipMagic) {
-    let head = '';
     try {
       head = gunzipSync(buf, { finishFlush: 2 /* Z_SYNC_FLUSH */ }).subarray(0, 8192).toString('utf8');
     } catch {
       head = '';
     }
     format = sniffText(head);
-  } else format = sniffText(buf.toString('utf8'));
+  } else {
+    head = buf.toString('utf8');
+    format = sniffText(head);
+  }
 
   if (byExt.format === 'parquet' && !parquetMagic) {
     throw error(`${path}: the name says Parquet but the file does not start with PAR1; expected a Parquet file`);
@@ -135,7 +140,32 @@ export async function detectTable(path: string, split?: Split): Promise<TableInp
     modified: info.mtime.toISOString(),
     ...(split ? { split } : {}),
     ...(header ? { header } : {}),
+    ...(head.charCodeAt(0) === 0xfeff ? { bom: true as const } : {}),
   };
+}
+
+/**
+ * The engine reads a JSON Lines file that starts with a byte order mark with one thread only: its
+ * parallel JSON reader rejects the mark ("byte order mark (BOM) is not supported", DuckDB 1.5) where
+ * the single-threaded one skips it.
+ */
+export function needsOneThread(inputs: readonly TableInput[]): boolean {
+  return inputs.some((i) => i.format === 'jsonl' && i.bom === true);
+}
+
+/**
+ * {@link needsOneThread} for the files a command will read, before its engine opens (a locked engine
+ * cannot change its threads later). A file that cannot be read counts as not needing it: its error
+ * comes when it is read.
+ * @example
+ * await needsOneThreadFor(['preds.jsonl']); // => true when preds.jsonl starts with a byte order mark
+ */
+export async function needsOneThreadFor(paths: readonly string[]): Promise<boolean> {
+  for (const path of paths) {
+    const input = await detectTable(path).catch(() => null);
+    if (input && needsOneThread([input])) return true;
+  }
+  return false;
 }
 
 /**
@@ -152,6 +182,13 @@ export async function tableSql(duck: Duck, input: TableInput): Promise<string> {
     case 'jsonl': {
       const base = `read_json(${path}, format = 'newline_delimited', compression = ${compression}`;
       const cols = await describeColumns(duck, `${base})`, input.path);
+      const nul = cols.find((c) => c.includes('\0'));
+      if (nul !== undefined) throw error(`${input.path}: the key ${JSON.stringify(nul)} holds a NUL character; expected key names of text`);
+      if (cols.length === 1 && cols[0] === 'json') {
+        // the engine's one column "json": some line holds no object (an array document, a bare value)
+        const why = await badJsonLine(input);
+        if (why) throw error(`${input.path}: ${why}`);
+      }
       const spec = cols.map((c) => `${literal(c)}: 'VARCHAR'`).join(', ');
       return `${base}, columns = {${spec}})`;
     }
@@ -190,6 +227,39 @@ export async function headerNames(duck: Duck, input: TableInput): Promise<string
   } catch (e) {
     throw readError(input.path, e);
   }
+}
+
+/**
+ * Checks the column names of one input: no two may be the same once surrounding spaces are trimmed
+ * (the engine would rename the second one, `station_1`). Names empty after trimming are allowed
+ * here; the caller decides what an unnamed column means.
+ * @param names the names as written in the file (CSV/TSV header), or as the engine read them
+ * @param header true when `names` is a header line (line 1 of the file)
+ * @returns the positions (1-based) of the names that are empty after trimming
+ * @throws FloorgapError naming the two positions and the name
+ * @example
+ * checkColumnNames('p.csv', ['id', '', 'station']); // => [2]
+ * checkColumnNames('p.csv', ['id', 'station', 'station ']); // throws 'p.csv: columns 2 and 3 are both named "station" (after trimming spaces); …'
+ */
+export function checkColumnNames(path: string, names: readonly string[], header = true): number[] {
+  const seen = new Map<string, number>();
+  const unnamed: number[] = [];
+  names.forEach((raw, i) => {
+    // the engine's SQL ends a string at a NUL: such a name cannot be quoted in a query
+    if (raw.includes('\0')) throw error(`${path}: ${header ? 'line 1: ' : ''}the name of column ${i + 1}, ${JSON.stringify(raw)}, holds a NUL byte; expected names of text`);
+    const name = raw.trim();
+    if (name === '') {
+      unnamed.push(i + 1);
+      return;
+    }
+    const first = seen.get(name);
+    if (first !== undefined) {
+      const trimmed = names[first] !== raw ? ' (after trimming spaces)' : '';
+      throw error(`${path}: columns ${first + 1} and ${i + 1} are both named ${JSON.stringify(name)}${trimmed}; column names must be unique`);
+    }
+    seen.set(name, i);
+  });
+  return unnamed;
 }
 
 /** Column names of a table expression, in order. */

@@ -42,9 +42,14 @@ describe.concurrent('bad files: exit 2 and one line naming what is wrong', () =>
     ['empty file', [f('empty.csv')], /empty\.csv: the file is empty; expected a table with a header line$/],
     ['only blank lines', [f('blank-lines.csv')], /blank-lines\.csv: the file holds only blank lines/],
     ['header only', [f('header-only.csv')], /header-only\.csv: no rows; expected a header and data rows/],
+    ['LF line ends with one CRLF line', [f('mixed-line-ends.csv')], /mixed-line-ends\.csv: line 22: ends with CRLF \(\\r\\n\) where line 1 ends with LF \(\\n\); expected one kind of line end throughout the file$/],
+    ['a carriage return alone inside a row', [f('lone-cr.csv')], /lone-cr\.csv: line 22: a carriage return \(\\r\) inside a row, not in quotes; expected line ends of one kind, \\n or \\r\\n$/],
+    ['a NUL byte in a header name', [f('nul-header.csv')], /nul-header\.csv: line 1: the name of column 3, "sta\\u0000tion", holds a NUL byte; expected names of text$/],
     ['a row with a field too many', [f('ragged-long.csv')], /ragged-long\.csv: line 11: expected 7 fields as in the header, found 8$/],
     ['a row with fields missing', [f('ragged-short.csv')], /ragged-short\.csv: line 11: expected 7 fields as in the header, found 5$/],
-    ['a column name twice', [f('duplicate-columns.csv')], /duplicate-columns\.csv: column "station" appears twice in the header/],
+    ['a column name twice', [f('duplicate-columns.csv')], /duplicate-columns\.csv: columns 3 and 7 are both named "station"; column names must be unique$/],
+    ['a column name twice, once padded', [f('padded-duplicate.csv')], /padded-duplicate\.csv: columns 3 and 8 are both named "station" \(after trimming spaces\); column names must be unique$/],
+    ['an unnamed column a role needs', [f('unnamed-label.csv')], /unnamed-label\.csv: no label column; the columns are "id", "split", "station", "package", "pred", "weight"; .*; column 5 of .*unnamed-label\.csv has no name and was left out$/],
     ['no label column', [f('no-label.csv')], /no-label\.csv: no label column; the columns are "id", "split", "station", "guess"/],
     ['bytes of no known format', [f('binary.bin')], /binary\.bin: unknown format; expected CSV, TSV, JSON Lines or Parquet/],
     ['bytes that are not UTF-8', [f('invalid-utf8.csv')], /invalid-utf8\.csv: line 22: bytes that are not valid UTF-8; save the file as UTF-8$/],
@@ -71,6 +76,11 @@ describe.concurrent('bad files: exit 2 and one line naming what is wrong', () =>
     ['Parquet with a bad footer', [f('bad-footer.parquet')], /bad-footer\.parquet: not a valid Parquet file: its footer is missing or damaged/],
     // the fifth line lacks its closing brace; the engine's own message points at line 6
     ['JSON Lines with a broken line', [f('broken.jsonl')], /broken\.jsonl: line 5: not valid JSON \(.*\); every line must hold one JSON object$/],
+    ['a JSON array document, not JSON Lines', [f('array.json')], /array\.json: line 1: a JSON array; expected JSON Lines, one object per line$/],
+    ['a JSON Lines line that is a bare number', [f('scalar-line.jsonl')], /scalar-line\.jsonl: line 3: a JSON number \(5\); expected JSON Lines, one object per line$/],
+    // the engine names line 2 for both
+    ['JSON Lines: half a surrogate pair on line 1', [f('surrogate.jsonl')], /surrogate\.jsonl: line 1: a \\u escape of half a surrogate pair; expected whole characters \(both halves of a pair\)$/],
+    ['JSON Lines: bytes that are not UTF-8 on line 1', [f('invalid-utf8.jsonl')], /invalid-utf8\.jsonl: line 1: bytes that are not valid UTF-8; save the file as UTF-8$/],
     ['column names with control sequences', [f('control-header.csv')], /control-header\.csv: no label column; the columns are "id", "split", "sta\\u001b\[2Jtion", "verdict\\u202e", "guess\\u001b\]52;c;aGk=\\u0007"/],
     // ready-made cells with impossible sums
     ['cells: errors above the weight', ['--cells', f('cells-errors-above-weight.csv')], /cells-errors-above-weight\.csv: line 7, column "fg_errors": 12 errors in a cell of weight 10; expected 0 ≤ fg_errors ≤ fg_weight$/],
@@ -92,6 +102,8 @@ describe.concurrent('bad files: exit 2 and one line naming what is wrong', () =>
     ['floor table: a floor above 1', [f('valid.csv'), '--floor-table', f('floors-above-one.csv')], /floors-above-one\.csv: line 3, column "floor": expected a fraction in \[0, 1\].*got "1\.5"$/],
     ['floor table: a negative floor', [f('valid.csv'), '--floor-table', f('floors-negative.csv')], /floors-negative\.csv: line 2, column "floor": expected a fraction in \[0, 1\].*got "-0\.01"$/],
     ['floor table: text for a floor', [f('valid.csv'), '--floor-table', f('floors-text.csv')], /floors-text\.csv: line 2, column "floor": .*got "two percent"$/],
+    ['floor table: a column name twice', [f('valid.csv'), '--floor-table', f('floors-repeated-column.csv')], /floors-repeated-column\.csv: columns 2 and 3 are both named "floor"; column names must be unique$/],
+    ['floor table: a NUL byte in a key', [f('valid.csv'), '--floor-table', f('floors-nul.csv')], /floors-nul\.csv: line 2, column "package": the value "04\\u000002" holds a NUL byte; expected text$/],
     ['floor table: no key column', [f('valid.csv'), '--floor-table', f('floors-no-key.csv')], /floors-no-key\.csv: no key columns/],
     ['floor table: a role column as key', [f('valid.csv'), '--floor-table', f('floors-role-key.csv')], /floors-role-key\.csv: key column "id" is the id column of .*valid\.csv; keys must be slice columns \(e\.g\. package\), label, pred or split$/],
     ['cost table: a role column as key', [f('valid.csv'), '--cost-table', f('costs-role-key.csv')], /costs-role-key\.csv: key column "weight" is the weight column of/],
@@ -125,6 +137,21 @@ describe.concurrent('awkward but valid files: the right report', () => {
   it('a UTF-8 byte order mark: the first column keeps its name', async () => {
     const { report } = await reportJson([f('bom.csv'), '--slice-cols', 'station']);
     expect(report.source.roles.id).toBe('id'); // the first column, "\ufeffid" if the mark were kept
+    expect(report.overall.error.dev?.n).toBe(40);
+    expect(report.overall.error.dev?.value).toBe(0.25); // make.mjs: errors at i % 4 == 0, 10 of 40
+  });
+
+  it('an unnamed first column (a pandas index): left out with a warning, the report made', async () => {
+    const { report } = await reportJson([f('unnamed-index.csv')]);
+    expect(report.warnings).toContain(`${f('unnamed-index.csv')}: column 1 has no name and was left out; name it in the header to use it`);
+    expect(report.source.roles.id).toBe('id');
+    expect(report.slices.map((s) => Object.keys(s.key)[0]).sort()).toEqual(['package', 'package', 'station', 'station', 'station', 'station']); // make.mjs: S1–S4, 0402/QFN
+    expect(report.overall.error.dev?.value).toBe(0.25); // make.mjs: errors at i % 4 == 0, 10 of 40
+  });
+
+  it('JSON Lines with a UTF-8 byte order mark: read as without it', async () => {
+    const { report } = await reportJson([f('bom.jsonl'), '--slice-cols', 'station']);
+    expect(report.source.roles.id).toBe('id');
     expect(report.overall.error.dev?.n).toBe(40);
     expect(report.overall.error.dev?.value).toBe(0.25); // make.mjs: errors at i % 4 == 0, 10 of 40
   });
@@ -265,6 +292,15 @@ describe.concurrent('large cases, written at test time', () => {
     let many = 'id,split,station,serial,label,pred\n';
     for (let i = 0; i < 100_000; i++) many += `r${i},${i % 2 ? 'dev' : 'train'},S${i % 4},SN${String(i).padStart(6, '0')},good,${i % 5 ? 'good' : 'void'}\n`;
     writeFileSync(join(dir, 'many-values.csv'), many);
+    // a wide table: 1,995 numeric columns (an embedding stored as columns), 300 rows
+    const emb = Array.from({ length: 1995 }, (_, j) => `emb_${j}`);
+    let wide = ['id', 'split', 'label', 'pred', 'station', ...emb].join(',') + '\n';
+    for (let r = 0; r < 300; r++) {
+      const label = r % 3 ? 'a' : 'b';
+      const pred = r % 4 ? label : label === 'a' ? 'b' : 'a';
+      wide += [`r${r}`, r % 2 ? 'dev' : 'train', label, pred, `S${r % 4}`, ...emb.map((_, j) => String(((r * 37 + j * 11) % 1000) / 1000))].join(',') + '\n';
+    }
+    writeFileSync(join(dir, 'wide.csv'), wide);
   });
   afterAll(() => rmSync(dir, { recursive: true, force: true }));
 
@@ -278,6 +314,26 @@ describe.concurrent('large cases, written at test time', () => {
   it('a slice column of 100,000 values is stopped before the scan, with advice', async () => {
     await expectError([join(dir, 'many-values.csv'), '--by', 'serial'], /--by serial: the first 100,000 rows alone hold 100,000 slices, more than --max-slices 10,000; slice by fewer or coarser columns/);
     await expectError([join(dir, 'many-values.csv'), '--slice-cols', 'station,serial'], /the overview's columns give 100,004 slices \(serial alone 100,000\), more than --max-slices 10,000; name fewer or coarser columns in --slice-cols/);
+  });
+
+  it('2,000 columns: the report is made from 32 candidate columns, and a warning says how many were left out', async () => {
+    const { report, stderr } = await reportJson([join(dir, 'wide.csv')]);
+    expect(stderr).toBe('');
+    // the file's one column of 4 values first, then the numeric columns in file order, 32 in all
+    const columns = [...new Set(report.slices.map((s) => Object.keys(s.key)[0]))];
+    expect(columns).toHaveLength(32);
+    expect(columns.sort()).toEqual(['station', ...Array.from({ length: 31 }, (_, j) => `emb_${j}`)].sort());
+    expect(report.warnings).toContain(
+      '1,964 more candidate slice columns were left out ("emb_31", "emb_32", "emb_33", …): at most 32 are chosen by themselves, columns of 2–50 values first, then numeric ones, each in file order; choose them with --slice-cols',
+    );
+    // hand arithmetic on the invented table: 150 dev rows (odd r); errors where r % 4 == 0, none of them odd
+    expect(report.overall.error.dev?.n).toBe(150);
+    expect(report.overall.error.dev?.value).toBe(0);
+    expect(report.overall.error.train?.value).toBe(0.5); // even r: r % 4 == 0 is half of them
+    // --slice-cols reaches any of them
+    const named = await reportJson([join(dir, 'wide.csv'), '--slice-cols', 'emb_1994']);
+    expect(named.report.slices.every((s) => Object.keys(s.key)[0] === 'emb_1994')).toBe(true);
+    expect(named.report.slices).toHaveLength(5); // --bins 5 at the quantiles of 300 distinct values
   });
 
   it('the overview leaves such a column out by itself', async () => {

@@ -82,6 +82,11 @@ beforeAll(async () => {
       return `${i},${i % 2 ? 'train' : 'dev'},${i % 4 < 2 ? 'A' : 'B'},c,${i % 5 ? 'c' : 'd'},0.${i % 10},${notes[i % notes.length]},${memo}`;
     })].join('\n') + '\n',
   );
+  // a column whose name holds a comma (quoted in the header): cam, side is L on even rows, R on odd ones
+  writeFileSync(
+    out('comma.csv'),
+    ['id,split,"cam, side",label,pred', ...Array.from({ length: 40 }, (_, i) => `${i},${i % 4 < 2 ? 'train' : 'dev'},${i % 2 ? 'R' : 'L'},c,${i % 3 ? 'c' : 'd'}`)].join('\n') + '\n',
+  );
   // files in the way, for --force and its refusal
   writeFileSync(out('taken.csv'), 'old rows\n');
   writeFileSync(out('forced.csv'), 'old rows\n');
@@ -111,6 +116,7 @@ beforeAll(async () => {
       job('both', notes('both.csv', '--top', '2', '--slice', 'cam=A')),
       job('badSplit', notes('bad-split.csv', '--splits', 'train,holdout')),
       job('dotJson', notes('rows.json')),
+      job('comma', ['export', out('comma.csv'), '--slice', 'cam\\, side=R', '--splits', 'dev', '--out', out('comma-out.csv')]),
     ],
     3,
   );
@@ -313,6 +319,19 @@ describe('choosing slices and rows', () => {
     const want = demo.rows.filter((r) => ['dev', 'test'].includes(r.v.split) && r.v.station === 'S5' && r.v.lighting === 'dome');
     expect(rows.map((r) => r.id).sort()).toEqual(want.map((r) => r.v.id).sort());
     expect(m.slices[0].rows.total).toBe(want.length);
+  });
+
+  it('--slice names a column whose name holds a comma (\\,): the grouping is that one column', async () => {
+    expect(runs.comma.stderr).toBe('');
+    expect(runs.comma.code).toBe(0);
+    const m = manifest(out('comma-out.csv'));
+    expect(m.selection.by).toEqual(['cam, side']);
+    expect(m.slices.map((s: any) => s.label)).toEqual(['cam, side=R']);
+    const rows = await readRows(out('comma-out.csv'));
+    // hand arithmetic on the invented table: dev rows are i % 4 in {2, 3}, R rows are odd i, so i % 4 == 3: 10 of 40
+    expect(rows.map((r) => Number(r.id)).sort((a, b) => a - b)).toEqual([3, 7, 11, 15, 19, 23, 27, 31, 35, 39]);
+    // the model's errors first (pred d where i % 3 == 0: 3, 15, 27, 39), then the rest in input order
+    expect(rows.map((r) => r.id).slice(0, 4)).toEqual(['3', '15', '27', '39']);
   });
 
   it('an unknown column or a key matching no row is a clear error (exit 2), and nothing is written', () => {

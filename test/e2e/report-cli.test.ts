@@ -148,6 +148,29 @@ describe('bad input: one line on stderr, exit 2', () => {
   it('a usage error (unknown option) exits 2 too', async () => {
     await expectBad(['data-samples/solder-joints.csv', '--no-such-option'], /Unknown argument/);
   });
+  it('inputs with different columns: an error naming the columns, or one table with --union', async () => {
+    const rowsOf = (split: string, value: string) =>
+      Array.from({ length: 40 }, (_, i) => `${split}${i},${split},S${i % 3},${value},a,${i % 4 === 0 ? 'b' : 'a'}`).join('\n') + '\n';
+    const a = file('u-a.csv', 'id,split,station,lighting,label,pred\n' + rowsOf('train', 'dome'));
+    const b = file('u-b.csv', 'id,split,station,shift,label,pred\n' + rowsOf('dev', 'night'));
+    await expectBad([a, b], new RegExp(`u-b\\.csv: its columns differ from .*u-a\\.csv's \\(.*u-b\\.csv lacks "lighting"; has "shift" that .*u-a\\.csv lacks\\); give files with the same columns, or --union`));
+    const r = await runCli([a, b, '--union', '--slice-cols', 'lighting,shift', '--format', 'json', '--no-cache']);
+    expect(r.code, r.stderr).toBe(0);
+    const rep = JSON.parse(r.stdout) as Report;
+    // hand arithmetic on the invented files: lighting only in the 40 train rows of u-a.csv, shift only in the 40 dev rows of u-b.csv
+    expect(rep.slices.map((x) => x.label).sort()).toEqual(['lighting=(missing)', 'lighting=dome', 'shift=(missing)', 'shift=night']);
+    expect(rep.slices.find((x) => x.label === 'lighting=(missing)')?.error.dev?.n).toBe(40);
+    // every command that reads rows takes --union, sql among them
+    const sql = await runCli(['sql', a, b, '--union', '--table', 'lake.preds', '--slice-cols', 'lighting']);
+    expect(sql.code, sql.stderr).toBe(0);
+  });
+  it('a file given twice, also under another spelling, is an error', async () => {
+    const p = file('twice.csv', header + good(40, 'train') + good(40, 'dev'));
+    await expectBad([p, p], /twice\.csv: the same file as .*twice\.csv, given twice; give each file once$/);
+    const r = await runCli(['twice.csv', './twice.csv'], { cwd: dir });
+    expect(r.stderr).toBe('floorgap: ./twice.csv: the same file as twice.csv, given twice; give each file once\n');
+    expect(r.code).toBe(2);
+  });
   it('a bad --where names the expression', async () => {
     await expectBad(['data-samples/solder-joints.csv', '--where', 'nonexistent_col = 1'], /--where "nonexistent_col = 1": not a valid DuckDB SQL condition/);
   });

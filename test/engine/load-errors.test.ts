@@ -186,19 +186,19 @@ describe('weights', () => {
     expect(e.message).toBe(`${dev}: line 3, column "weight": expected a weight of 0 or between 1e-100 and 1e100, got "-2" (1 row like it)`);
   });
 
-  it('per-split files: --where on a column only one file has still locates the bad row', async () => {
+  it('per-split files read with union: --where on a column only one file has still locates the bad row', async () => {
     const train = textFile('train.csv', 'id,label,pred,weight,shift\n1,a,a,1,day\n2,a,b,1,night\n');
     const dev = textFile('dev.csv', 'id,label,pred,weight\n3,a,a,1\n4,b,a,-5\n');
     const where = `shift IS NULL OR shift = 'day'`;
-    const e = await failure(loadCells(duck, options({ source: { files: [], perSplit: { train, dev } }, where })));
+    const e = await failure(loadCells(duck, options({ source: { files: [], perSplit: { train, dev }, union: true }, where })));
     // hand-counted: dev id 4 on line 3 is the only bad row (its shift is missing, so --where keeps it)
     expect(e.message).toBe(`${dev}: line 3, column "weight": expected a weight of 0 or between 1e-100 and 1e100, got "-5" (1 row like it)`);
   });
 
-  it('per-split files: a file without the weight column has missing weights', async () => {
+  it('per-split files read with union: a file without the weight column has missing weights', async () => {
     const train = textFile('train.csv', 'id,label,pred,station,weight\n1,a,a,S1,1\n2,a,b,S2,1\n');
     const dev = textFile('dev.csv', 'id,label,pred,station\n3,a,a,S1\n4,b,a,S2\n');
-    const e = await failure(loadCells(duck, options({ source: { files: [], perSplit: { train, dev } } })));
+    const e = await failure(loadCells(duck, options({ source: { files: [], perSplit: { train, dev }, union: true } })));
     // hand-counted: both dev rows (lines 2 and 3) lack a weight
     expect(e.message).toBe(`${dev}: line 2, column "weight": expected a weight of 0 or between 1e-100 and 1e100, got "" (2 rows like it)`);
   });

@@ -3,7 +3,7 @@ import { writeFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { openDuck, type Duck } from '../../src/engine/duck.js';
-import { binEdges, binLabel, chooseSliceColumns, isNumeric, profileColumns, type Profile } from '../../src/engine/profile.js';
+import { binEdges, binLabel, chooseSliceColumns, isNumeric, MAX_AUTO_COLUMNS, profileColumns, type Profile } from '../../src/engine/profile.js';
 import { openSource } from '../../src/engine/source.js';
 import { FloorgapError } from '../../src/util/error.js';
 import { makeTempDir, removeTempDir } from '../helpers/table-variants.js';
@@ -60,6 +60,65 @@ describe('profileColumns', () => {
   });
 });
 
+describe('profileColumns on a wide table', () => {
+  it('2,000 columns in batches; columns of many values counted per row, exactly when named', async () => {
+    // fixture (generated below, 2,200 rows, r = 0…2199; more than the 2,000 values profiled per value):
+    //   many   String(r)                          → 2,200 numbers
+    //   padded ' ' + r on even rows, '  ' on odd  → 1,100 present values, all numbers
+    //   word   'w' + r                            → 2,200 text values
+    //   f0…f1996  String(r % 7)                   → 7 numbers each
+    const names = ['many', 'padded', 'word', ...Array.from({ length: 1997 }, (_, i) => `f${i}`)];
+    const lines = [names.join(',')];
+    for (let r = 0; r < 2200; r++) {
+      lines.push([String(r), r % 2 ? '  ' : ` ${r}`, `w${r}`, ...Array.from({ length: 1997 }, () => String(r % 7))].join(','));
+    }
+    const path = join(dir, 'wide.csv');
+    writeFileSync(path, lines.join('\n') + '\n');
+    const wideDuck = await openDuck({ threads: 1 });
+    try {
+      await openSource(wideDuck, { files: [path], perSplit: {} });
+      const p = await profileColumns(wideDuck, names, null, undefined, undefined, new Set(['many']));
+      expect(p.sampleRows).toBe(2200);
+      const at = (name: string) => p.columns.find((c) => c.name === name)!;
+      expect(at('many')).toEqual({ name: 'many', distinct: 2200, present: 2200, numeric: 2200 });
+      // not named: the count of distinct values is an estimate (HyperLogLog), present and numeric exact
+      expect(at('padded')).toMatchObject({ present: 1100, numeric: 1100 });
+      expect(at('word')).toMatchObject({ present: 2200, numeric: 0 });
+      expect(at('word').distinct).toBeGreaterThan(2000);
+      expect(at('f0')).toEqual({ name: 'f0', distinct: 7, present: 2200, numeric: 2200 });
+      expect(at('f1996')).toEqual({ name: 'f1996', distinct: 7, present: 2200, numeric: 2200 });
+      expect(p.columns).toHaveLength(2000);
+    } finally {
+      wideDuck.close();
+    }
+  });
+});
+
+describe('profileColumns on a sample of 20,000 rows or more (one GROUP BY per column of few values)', () => {
+  it('counts as on a small sample', async () => {
+    // fixture (generated below, 24,000 rows, i = 1…24000): small 'a','b','c' by i % 3, padded
+    // ' ' + (i % 4) + ' ' on odd rows and '   ' on even ones, word 'w' + (i % 60)
+    const lines = ['small,padded,word'];
+    for (let i = 1; i <= 24_000; i++) lines.push(['abc'[i % 3], i % 2 ? ` ${i % 4} ` : '   ', `w${i % 60}`].join(','));
+    const path = join(dir, 'long.csv');
+    writeFileSync(path, lines.join('\n') + '\n');
+    const longDuck = await openDuck({ threads: 1 });
+    try {
+      await openSource(longDuck, { files: [path], perSplit: {} });
+      const p = await profileColumns(longDuck, ['small', 'padded', 'word'], null);
+      expect(p.sampleRows).toBe(24_000);
+      // hand-counted: odd i take i % 4 in {1, 3}; 12,000 odd rows; every value of word once per 60 rows
+      expect(p.columns).toEqual([
+        { name: 'small', distinct: 3, present: 24_000, numeric: 0 },
+        { name: 'padded', distinct: 2, present: 12_000, numeric: 12_000 },
+        { name: 'word', distinct: 60, present: 24_000, numeric: 0 },
+      ]);
+    } finally {
+      longDuck.close();
+    }
+  });
+});
+
 describe('chooseSliceColumns', () => {
   it('keeps 2–50 values as categories, bins numbers with more, skips the rest', () => {
     expect(chooseSliceColumns(profile, ['split', 'label', 'pred'], null, 'p.csv')).toEqual({
@@ -69,7 +128,30 @@ describe('chooseSliceColumns', () => {
         { name: 'sparse', kind: 'category' },
       ],
       skipped: ['const', 'name'],
+      left: [],
     });
+  });
+
+  it('at most 32 automatic candidates: columns of 2–50 values first, then numeric ones, each in file order', () => {
+    // invented profile: 10 numeric columns of 300 values first in the file, then 40 columns of 4 values
+    const wide: Profile = {
+      sampleRows: 300,
+      complete: true,
+      columns: [
+        ...Array.from({ length: 10 }, (_, i) => ({ name: `emb_${i}`, distinct: 300, present: 300, numeric: 300 })),
+        ...Array.from({ length: 40 }, (_, i) => ({ name: `flag_${i}`, distinct: 4, present: 300, numeric: 0 })),
+      ],
+    };
+    expect(MAX_AUTO_COLUMNS).toBe(32);
+    const chosen = chooseSliceColumns(wide, [], null, 'w.csv');
+    expect(chosen.columns).toEqual(Array.from({ length: 32 }, (_, i) => ({ name: `flag_${i}`, kind: 'category' })));
+    expect(chosen.left).toEqual([...Array.from({ length: 10 }, (_, i) => `emb_${i}`), ...Array.from({ length: 8 }, (_, i) => `flag_${32 + i}`)]);
+    // with 28 columns of 2–50 values, the first 4 numeric ones fill the 32, kept in file order
+    const mixed: Profile = { ...wide, columns: [...wide.columns.slice(0, 10), ...wide.columns.slice(10, 38)] };
+    const m = chooseSliceColumns(mixed, [], null, 'w.csv');
+    expect(m.columns.map((c) => c.name)).toEqual([...['emb_0', 'emb_1', 'emb_2', 'emb_3'], ...Array.from({ length: 28 }, (_, i) => `flag_${i}`)]);
+    expect(m.columns[0].kind).toBe('binned');
+    expect(m.left).toEqual(['emb_4', 'emb_5', 'emb_6', 'emb_7', 'emb_8', 'emb_9']);
   });
 
   it('explicit columns override the choice, and an unknown one lists the columns', () => {

@@ -100,6 +100,18 @@ describe('the cache across runs', () => {
     expect(entries().length).toBe(n + 3);
   });
 
+  it('cells cached with --union never let a run without it skip the column check', async () => {
+    const a = join(dir, 'union-a.csv');
+    table(a, [1]);
+    const b = join(dir, 'union-b.csv');
+    writeFileSync(b, 'id,split,station,lighting,label,pred\nx1,dev,S1,dome,a,a\n');
+    const union = await runMain(['report', a, b, '--union', '--format', 'json', '--floor', '0.02'], { XDG_CACHE_HOME: cacheHome() });
+    expect(union.code, union.stderr).toBe(0);
+    const plain = await runMain(['report', a, b, '--format', 'json', '--floor', '0.02'], { XDG_CACHE_HOME: cacheHome() });
+    expect(plain.code).toBe(2);
+    expect(plain.stderr).toMatch(/union-b\.csv: its columns differ from .*union-a\.csv's/);
+  });
+
   it('--no-cache neither reads nor writes the cache', async () => {
     const file = join(dir, 'nocache.csv');
     table(file, [9]);

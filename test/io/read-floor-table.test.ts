@@ -5,6 +5,8 @@ import { fileURLToPath } from 'node:url';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { openDuck, type Duck } from '../../src/engine/duck.js';
 import { describeKey, readFloorTable } from '../../src/io/read-floor-table.js';
+import { needsOneThreadFor } from '../../src/io/read-table.js';
+import { openEngine } from '../../src/cli/analyze.js';
 import { FloorgapError } from '../../src/util/error.js';
 import { csvToParquet, makeTempDir, removeTempDir, writeGzip } from '../helpers/table-variants.js';
 import { failure } from '../helpers/failure.js';
@@ -47,6 +49,19 @@ describe('readFloorTable', () => {
     ]);
   });
 
+  it('a column name repeated (also after trimming) or left empty is an error naming the name as written', async () => {
+    const twice = file('twice.csv', 'package,floor,floor\n0402,0.02,0.02\n');
+    expect((await failure(readFloorTable(duck, twice))).message).toBe(`${twice}: columns 2 and 3 are both named "floor"; column names must be unique`);
+    const padded = file('padded.tsv', 'package\tfloor\t package\n0402\t0.02\t0402\n');
+    expect((await failure(readFloorTable(duck, padded))).message).toBe(
+      `${padded}: columns 1 and 3 are both named "package" (after trimming spaces); column names must be unique`,
+    );
+    const unnamed = file('unnamed.csv', 'package,,floor\n0402,x,0.02\n');
+    expect((await failure(readFloorTable(duck, unnamed))).message).toBe(
+      `${unnamed}: column 2 has no name; name every column of the table (its keys and "floor")`,
+    );
+  });
+
   it('reads JSON Lines with line numbers starting at 1', async () => {
     const t = await readFloorTable(duck, join(FLOORS, 'floors.jsonl'));
     // expected: hand-copied from test/fixtures/floors/floors.jsonl (first line is line 1)
@@ -56,6 +71,24 @@ describe('readFloorTable', () => {
       { line: 2, keys: { station: 'S1', lighting: 'dome' }, floor: 0.1, n: null },
       { line: 3, keys: { lighting: 'ring' }, floor: 0.02, n: null },
     ]);
+  });
+
+  it('JSON Lines with a byte order mark: a command opens its engine with one thread for it (the parallel reader rejects the mark)', async () => {
+    const path = file('bom.jsonl', '\ufeff{"station":"S1","floor":0.05}\n{"station":"S2","floor":0.1}\n');
+    expect(await needsOneThreadFor([file('plain.csv', 'station,floor\nS1,0.05\n'), path])).toBe(true);
+    expect(await needsOneThreadFor([file('plain2.csv', 'station,floor\nS1,0.05\n')])).toBe(false);
+    const engine = await openEngine({ threads: 2, 'memory-limit': '200MB' }, { read: [path], write: [] });
+    try {
+      expect(await engine.all(`SELECT current_setting('threads') AS t`)).toEqual([{ t: 1 }]);
+      const t = await readFloorTable(engine, path);
+      // expected: hand-copied from the two lines written above
+      expect(t.entries).toEqual([
+        { line: 1, keys: { station: 'S1' }, floor: 0.05, n: null },
+        { line: 2, keys: { station: 'S2' }, floor: 0.1, n: null },
+      ]);
+    } finally {
+      engine.close();
+    }
   });
 
   it('reads TSV and gzip-compressed CSV', async () => {

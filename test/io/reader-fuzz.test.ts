@@ -8,8 +8,11 @@
  *
  * Mutations: delete, insert or replace bytes (quotes, commas, newlines, \r, NUL, ESC, bytes that are not
  * UTF-8 such as 0xff, …), insert short texts (a BOM, "NaN", "1e999", bidi controls, …), duplicate or drop
- * lines, truncate, swap or rename header names. fast-check draws them with a fixed seed, so a failure
- * reproduces; its message holds the mutated bytes (escaped and as hex) and the command.
+ * lines, truncate, swap or rename header names. A smaller property (40 inputs) mutates only the CSV
+ * header: 30 to 400 more columns, names with control characters (NUL, ESC, tab, DEL, a bidi override),
+ * padded, repeated or blank names; a report it ends in must name only columns of the header (never an
+ * engine's rename such as `station_1`) and at most 32 slice columns. fast-check draws them with a fixed
+ * seed, so a failure reproduces; its message holds the mutated bytes (escaped and as hex) and the command.
  *
  * Speed: one in-process run costs about 100 ms (a DuckDB opened and closed per run, and yargs laying out
  * its help text per command). Each property draws batches of 4 mutated inputs and runs them concurrently
@@ -20,11 +23,14 @@ import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import fc from 'fast-check';
 import { afterAll, describe, expect, it } from 'vitest';
+import type { Report } from '../../src/triage/types.js';
 import { runMain } from '../helpers/run-main.js';
 
 /** Mutated inputs run at the same time, and batches per property: 4 × 250 = 1,000 inputs. */
 const BATCH = 4;
 const BATCHES = 250;
+/** Batches of the header mutations (wide headers cost more per run): 10 × 4 = 40 inputs. */
+const HEADER_BATCHES = 10;
 /** A run that takes longer than this counts as a hang. */
 const RUN_TIMEOUT_MS = 10_000;
 /** vitest timeout of one 1,000-input property (about 70–100 s when the machine is not busy). */
@@ -63,7 +69,8 @@ type Mutation =
   | { kind: 'drop-line'; line: number }
   | { kind: 'truncate'; at: number }
   | { kind: 'swap-header'; i: number; j: number }
-  | { kind: 'rename-header'; i: number; name: string };
+  | { kind: 'rename-header'; i: number; name: string }
+  | { kind: 'widen'; columns: number; numeric: boolean };
 
 /** Bytes that matter to a reader: quotes, separators, line ends, NUL, ESC, braces, not-UTF-8 bytes. */
 const SPECIAL_BYTES = [0x22, 0x2c, 0x0a, 0x0d, 0x00, 0x1b, 0x09, 0x7b, 0x7d, 0x5b, 0x5d, 0x3a, 0x5c, 0x20, 0xff, 0xfe, 0xc3, 0x80, 0xe2];
@@ -93,6 +100,18 @@ const mutation: fc.Arbitrary<Mutation> = fc.oneof(
 );
 /** One mutated input: 1 to 4 mutations of the valid one. */
 const mutations = fc.array(mutation, { minLength: 1, maxLength: 4 });
+
+/**
+ * Header names of the classes a header can go wrong in: control characters (C0, ESC sequences, NUL,
+ * tab, a bidi override), padding with spaces, names that repeat another after trimming, blank names.
+ */
+const NAME_CLASSES = ['sta\x01tion', 'sta\x1b[2Jtion', 'la\u202ebel', 'a\x00b', 'stat\tion', ' station', 'station ', ' split', 'pred ', '  ', '', 'x\x7f'];
+/** Header mutations: wide headers (30 to 400 more columns), and names of the classes above. */
+const headerMutation: fc.Arbitrary<Mutation> = fc.oneof(
+  fc.record({ kind: fc.constant('widen' as const), columns: fc.integer({ min: 30, max: 400 }), numeric: fc.boolean() }),
+  fc.record({ kind: fc.constant('rename-header' as const), i: fc.nat({ max: 7 }), name: fc.constantFrom(...NAME_CLASSES) }),
+);
+const headerMutations = fc.array(headerMutation, { minLength: 1, maxLength: 3 });
 
 /** The lines of a buffer, each with its line end ("\n" split, so a "\r" stays with its line). */
 function lines(buf: Buffer): Buffer[] {
@@ -173,6 +192,18 @@ function apply(input: Buffer, m: Mutation, jsonl: boolean): Buffer {
       });
     case 'rename-header':
       return editHeader(input, jsonl, (names) => names.map((n, i) => (i === m.i % names.length ? m.name : n)));
+    case 'widen': {
+      // CSV only: `columns` more columns x0, x1, … with numbers (many values) or three categories
+      const all = lines(input);
+      return Buffer.concat(
+        all.map((line, k) => {
+          const text = line.toString('utf8');
+          const end = text.match(/\r?\n$/)?.[0] ?? '';
+          const cells = Array.from({ length: m.columns }, (_, j) => (k === 0 ? `x${j}` : m.numeric ? String(((k * 31 + j * 7) % 97) / 10) : `v${(k + j) % 3}`));
+          return Buffer.from(`${text.slice(0, text.length - end.length)},${cells.join(',')}${end}`, 'utf8');
+        }),
+      );
+    }
   }
 }
 
@@ -219,12 +250,14 @@ const FORMATS: Record<'csv' | 'jsonl' | 'floor', Format> = {
 };
 
 type Outcome = { kind: 'report' } | { kind: 'error'; line: string };
+/** A further check of a report (exit 0) against the mutated bytes; returns what is wrong, or null. */
+type ReportCheck = (report: Report, bytes: Buffer) => string | null;
 
 /**
  * Runs one mutated input; returns what it ended in, or throws an Error whose message holds the
  * mutated bytes, the command and the observed output.
  */
-async function runOne(format: Format, ops: readonly Mutation[], slot: number): Promise<Outcome> {
+async function runOne(format: Format, ops: readonly Mutation[], slot: number, check?: ReportCheck): Promise<Outcome> {
   const bytes = ops.reduce<Buffer>((buf, m) => apply(buf, m, format.jsonl), Buffer.from(format.valid, 'utf8'));
   const path = format.file(slot);
   writeFileSync(path, bytes);
@@ -253,6 +286,8 @@ async function runOne(format: Format, ops: readonly Mutation[], slot: number): P
       throw new Error(describeRun(`exit 0 without valid JSON on stdout: ${observed}`));
     }
     if ((report as { schema?: unknown }).schema !== 'floorgap.report/1') throw new Error(describeRun(`exit 0 with JSON that is not a report: ${observed}`));
+    const wrong = check?.(report as Report, bytes);
+    if (wrong) throw new Error(describeRun(`exit 0, but ${wrong}: ${observed}`));
     return { kind: 'report' };
   }
   if (r.code === 2) {
@@ -264,13 +299,18 @@ async function runOne(format: Format, ops: readonly Mutation[], slot: number): P
   throw new Error(describeRun(`exit ${r.code} (expected 0 or 2): ${observed}`));
 }
 
-/** Runs 250 batches of 4 mutated inputs (1,000 in all) and returns how the runs ended. */
-async function fuzz(format: Format): Promise<{ reports: number; errors: Map<string, number> }> {
+/** Runs `batches` batches of 4 mutated inputs (250: 1,000 in all) and returns how the runs ended. */
+async function fuzz(
+  format: Format,
+  draw: fc.Arbitrary<Mutation[]> = mutations,
+  batches = BATCHES,
+  check?: ReportCheck,
+): Promise<{ reports: number; errors: Map<string, number> }> {
   let reports = 0;
   const errors = new Map<string, number>();
   await fc.assert(
-    fc.asyncProperty(fc.array(mutations, { minLength: BATCH, maxLength: BATCH }), async (batch) => {
-      const outcomes = await Promise.allSettled(batch.map((ops, slot) => runOne(format, ops, slot)));
+    fc.asyncProperty(fc.array(draw, { minLength: BATCH, maxLength: BATCH }), async (batch) => {
+      const outcomes = await Promise.allSettled(batch.map((ops, slot) => runOne(format, ops, slot, check)));
       const failed = outcomes.find((o): o is PromiseRejectedResult => o.status === 'rejected');
       if (failed) throw failed.reason;
       for (const o of outcomes as PromiseFulfilledResult<Outcome>[]) {
@@ -282,10 +322,24 @@ async function fuzz(format: Format): Promise<{ reports: number; errors: Map<stri
         }
       }
     }),
-    { seed: 42, numRuns: BATCHES },
+    { seed: 42, numRuns: batches },
   );
   return { reports, errors };
 }
+
+/**
+ * A report names only columns the header has (trimmed), never one the engine renamed (`station_1`,
+ * `column2`), and its overview has at most 32 slice columns (src/engine/profile.ts MAX_AUTO_COLUMNS).
+ */
+const namesAsWritten: ReportCheck = (report, bytes) => {
+  const first = bytes.toString('utf8').replace(/^\ufeff/, '').split('\n', 1)[0].replace(/\r$/, '');
+  const header = new Set(first.split(',').map((n) => n.trim()));
+  const used = new Set(report.slices.flatMap((x) => Object.keys(x.key)));
+  for (const name of [...used, ...Object.values(report.source.roles)]) {
+    if (name !== null && !header.has(name)) return `column ${JSON.stringify(name)} is not a name of the header`;
+  }
+  return used.size > 32 ? `${used.size} slice columns in the overview, more than 32` : null;
+};
 
 describe('reader fuzzing: 1,000 mutated inputs per format end in a report or one clean error line', () => {
   it('the valid inputs give a report (the fuzzing starts from good files)', async () => {
@@ -297,6 +351,16 @@ describe('reader fuzzing: 1,000 mutated inputs per format end in a report or one
       expect(r.code, `${format.name}: ${r.stderr}`).toBe(0);
     }
   });
+
+  it(
+    'CSV table: 40 header mutations (wide headers, control characters, padded, repeated and blank names)',
+    async () => {
+      const { reports, errors } = await fuzz(FORMATS.csv, headerMutations, HEADER_BATCHES, namesAsWritten);
+      expect(reports, JSON.stringify([...errors])).toBeGreaterThan(0);
+      expect(errors.size).toBeGreaterThan(0);
+    },
+    PROPERTY_TIMEOUT_MS,
+  );
 
   for (const key of ['csv', 'jsonl', 'floor'] as const) {
     it(

@@ -65,25 +65,28 @@ function asList(v: string | string[] | undefined): string[] {
   return (Array.isArray(v) ? v : [v]).map(String);
 }
 
-/** The selection the flags ask for, and the `--by` the analysis must use for it. */
-function selectionOf(args: ExportArgs): { selection: Selection; by: string | undefined; named: NamedSlice[] } {
+/**
+ * The selection the flags ask for, and the grouping the analysis must use for it: `--by` as given, or
+ * the named slices' columns as a list (a column name may hold a comma).
+ */
+function selectionOf(args: ExportArgs): { selection: Selection; byColumns: string[] | undefined; named: NamedSlice[] } {
   const named = asList(args.slice).map(parseSliceKey);
   const top = args.top ?? null;
   if (named.length > 0 && top !== null) throw error('--top and --slice choose slices in two ways; give one of them');
-  if (named.length === 0) return { selection: top === null ? { kind: 'flagged' } : { kind: 'top', n: top }, by: args.by, named };
+  if (named.length === 0) return { selection: top === null ? { kind: 'flagged' } : { kind: 'top', n: top }, byColumns: undefined, named };
   const grouping = namedGrouping(named);
   if (args.by !== undefined) {
     const by = String(args.by).split(',').map((s) => s.trim()).filter(Boolean);
     const bad = named.find((s) => s.pairs.length !== by.length || !s.pairs.every(([c]) => by.includes(c)));
     if (bad) throw error(`--slice "${bad.text}" does not name the --by columns ${by.join(', ')}; a named slice needs no --by (its columns define the grouping)`);
-    return { selection: { kind: 'named', slices: named }, by: args.by, named };
+    return { selection: { kind: 'named', slices: named }, byColumns: undefined, named };
   }
-  return { selection: { kind: 'named', slices: named }, by: grouping ? grouping.join(',') : undefined, named };
+  return { selection: { kind: 'named', slices: named }, byColumns: grouping ?? undefined, named };
 }
 
 /** The options that shaped the report and so the selection, as given (defaults filled in). */
 const SHAPING: readonly (keyof AnalysisArgs)[] = [
-  'where', 'label', 'pred', 'error', 'split', 'id', 'score', 'weight', 'run-column', 'run', 'by', 'slice-cols', 'bins', 'max-cells',
+  'union', 'where', 'label', 'pred', 'error', 'split', 'id', 'score', 'weight', 'run-column', 'run', 'by', 'slice-cols', 'bins', 'max-cells',
   'floor', 'floor-table', 'annotators', 'floor-rule', 'cost-table', 'confidence', 'fdr', 'fdr-method', 'min-rows', 'floor-margin',
   'min-headroom', 'curve-exponent', 'label-cost',
 ];
@@ -105,8 +108,8 @@ export async function runExport(args: ExportArgs, io: CliIO, argv: readonly stri
   const format = exportFormatFor(out);
   const splits = parseSplits(args.splits);
   const limit = args['limit-per-slice'] ?? null;
-  const { selection, by, named } = selectionOf(args);
-  const analysisArgs: AnalysisArgs = { ...args, by };
+  const { selection, byColumns, named } = selectionOf(args);
+  const analysisArgs: AnalysisArgs = byColumns ? { ...args, byColumns } : args;
   toTriageOptions(analysisArgs); // bad options fail before the engine starts
   const loadOptions = toLoadOptions(analysisArgs);
   await checkOutput(out, args.force);

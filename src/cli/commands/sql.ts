@@ -43,6 +43,7 @@ export function sqlOptions<T>(y: Argv<T>) {
     .option('train-dev', { type: 'string', describe: 'file holding the train_dev split', group: 'Inputs:' })
     .option('dev', { type: 'string', describe: 'file holding the dev split', group: 'Inputs:' })
     .option('test', { type: 'string', describe: 'file holding the test split', group: 'Inputs:' })
+    .option('union', { type: 'boolean', default: false, describe: 'read sample files with different columns as one table; a column a file lacks is missing there', group: 'Inputs:' })
     .option('config', { type: 'string', describe: 'project file (default: ./floorgap.json when present)', group: 'Inputs:' })
     .option('where', { type: 'string', describe: 'keep rows matching an SQL condition (written into the query as given)', group: 'Inputs:' })
     .option('label', { type: 'string', describe: 'column with the true class (default: label)', group: 'Columns:' })
