@@ -21,8 +21,8 @@ import { writeFile } from 'node:fs/promises';
 import { join } from 'node:path';
 import { DEMO_PACKAGES, demoFloorCsvLines, generateDemoRows } from '../src/demo/generate.js';
 import { Random } from '../src/demo/random.js';
-import { openDuck } from '../src/engine/duck.js';
-import { literal } from '../src/engine/sql.js';
+import { openDuck } from '../src/sql/duck.js';
+import { literal } from '../src/sql/quote.js';
 
 export const BENCH_COLUMNS = ['id', 'split', 'station', 'package', 'board', 'nozzle', 'line', 'operator', 'sharpness', 'label', 'pred', 'score'] as const;
 

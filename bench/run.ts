@@ -16,13 +16,13 @@ import { cpus, loadavg, tmpdir, totalmem } from 'node:os';
 import { join } from 'node:path';
 import { op, table as aqTable } from 'arquero';
 import { writeBenchTable } from './bench-table.js';
-import { CellTableBuilder, tableCells, type CellTable } from '../src/engine/cell-table.js';
-import { openDuck, type Duck } from '../src/engine/duck.js';
-import { loadCells, type LoadOptions, type Loaded } from '../src/engine/load.js';
-import { cacheKey, readCache } from '../src/io/cell-cache.js';
-import { rollupSlices } from '../src/engine/slices.js';
-import { literal } from '../src/engine/sql.js';
-import { SPLITS, type Split } from '../src/engine/types.js';
+import { CellTableBuilder, tableCells, type CellTable } from '../src/cells/cell-table.js';
+import { openDuck, type Duck } from '../src/sql/duck.js';
+import { loadCells, type LoadOptions, type Loaded } from '../src/cells/load.js';
+import { cacheKey, readCache } from '../src/cells/cache.js';
+import { rollupSlices } from '../src/slices/rollup.js';
+import { literal } from '../src/sql/quote.js';
+import { SPLITS, type Split } from '../src/core/cell.js';
 import { renderJson } from '../src/render/json.js';
 import { buildReport, type ReportContext } from '../src/triage/report.js';
 import { DEFAULT_TRIAGE_OPTIONS, type Report } from '../src/triage/types.js';
@@ -291,17 +291,15 @@ type Row = Record<string, unknown>;
 const results: Row[] = [];
 const interactive: Row[] = [];
 let frameNote: string | null = null;
-/** The explorer's frame hook: applies a key and renders the table view at a size (src/tui/bench-frame.tsx). */
+/** The explorer's frame hook: applies a key and renders the table view at a size (bench/frame.tsx). */
 type FrameFn = (report: Report, width: number, height: number, key?: string, from?: unknown) => { frame: string; state: unknown };
 let renderFrame: FrameFn | null = null;
 try {
-  // a path in a variable: the benchmark runs (without the frame) while the explorer's module is missing
-  const hook = '../src/tui/bench-frame.js';
-  const mod = (await import(hook)) as { renderFrameForBench?: FrameFn };
+  const mod = (await import('./frame.js')) as { renderFrameForBench?: FrameFn };
   renderFrame = mod.renderFrameForBench ?? null;
-  if (!renderFrame) frameNote = 'src/tui/bench-frame has no renderFrameForBench: no ink frame measured';
+  if (!renderFrame) frameNote = 'bench/frame.tsx has no renderFrameForBench: no ink frame measured';
 } catch (e) {
-  frameNote = `src/tui/bench-frame could not be loaded (${(e as Error).message.split('\n')[0]}): no ink frame measured`;
+  frameNote = `bench/frame.tsx could not be loaded (${(e as Error).message.split('\n')[0]}): no ink frame measured`;
 }
 
 for (const rows of sizes) {

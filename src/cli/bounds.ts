@@ -5,8 +5,8 @@
  * thousands of threads, `--bins 10000000` grew memory until the kernel stopped it.
  */
 import { cpus, totalmem } from 'node:os';
-import { COST_EXPECTED, COST_RANGE } from '../io/read-floor-table.js';
-import { error } from '../util/error.js';
+import { COST_EXPECTED, COST_RANGE } from '../read/keyed-table.js';
+import { error } from '../core/errors.js';
 
 /** A numeric option's domain: whole or real, and its ends (open ends exclude the value). */
 export interface NumberBound {

@@ -1,5 +1,5 @@
 import { failureText } from '../render/failure.js';
-import { exitCodeOf } from '../util/error.js';
+import { exitCodeOf } from '../core/errors.js';
 import type { CliIO } from './io.js';
 
 /**

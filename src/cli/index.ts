@@ -1,8 +1,8 @@
 import yargs, { type Argv } from 'yargs';
-import { FloorgapError, INTERNAL_EXIT } from '../util/error.js';
-import { readConfig } from '../io/config.js';
+import { FloorgapError, INTERNAL_EXIT } from '../core/errors.js';
+import { readConfig } from '../read/config.js';
 import { checkBounds, type ShowOption } from './bounds.js';
-import { VERSION } from '../version.js';
+import { VERSION } from '../core/version.js';
 import { checkOptions, runCheck, type CheckArgs } from './commands/check.js';
 import { demoOptions, runDemo, type DemoArgs } from './commands/demo.js';
 import { exportOptions, runExport, type ExportArgs } from './commands/export.js';

@@ -1,9 +1,13 @@
 import type { Argv } from 'yargs';
-import { DEFAULT_MEMORY_LIMIT, DEFAULT_THREADS } from '../engine/duck.js';
-import type { LoadOptions } from '../engine/load.js';
-import type { RoleOptions } from '../engine/roles.js';
+import type { AnalysisHooks, AnalysisRequest } from '../app/analysis.js';
+import { cacheDir } from '../cells/cache.js';
+import { error } from '../core/errors.js';
+import type { CliIO } from './io.js';
+import { scanProgress } from './progress.js';
+import { DEFAULT_MEMORY_LIMIT, DEFAULT_THREADS } from '../sql/duck.js';
+import type { LoadOptions } from '../cells/load.js';
+import type { RoleOptions } from '../read/roles.js';
 import { DEFAULT_TRIAGE_OPTIONS, type TriageOptions } from '../triage/types.js';
-import { error } from '../util/error.js';
 
 /** Options every analysing command takes: inputs, roles, slicing, floors, statistics, engine. */
 export function analysisOptions<T>(y: Argv<T>) {
@@ -152,4 +156,38 @@ export function toTriageOptions(a: AnalysisArgs): TriageOptions {
     floorRule: a['floor-rule'],
     run: a.run ?? null,
   };
+}
+
+/** Options that shape cells from rows; with --cells they have no effect. */
+const ROW_OPTIONS: readonly (keyof AnalysisArgs)[] = ['where', 'label', 'pred', 'error', 'split', 'id', 'score', 'weight', 'run-column', 'slice-cols', 'floor', 'floor-table', 'annotators', 'cost-table'];
+
+function cellsPaths(args: AnalysisArgs): string[] {
+  return (Array.isArray(args.cells) ? args.cells : args.cells === undefined ? [] : [args.cells]).map(String).filter((p) => p !== '');
+}
+
+/**
+ * The analysis the flags ask for: rows or cells files, triage options, engine resources, the cache.
+ * With --cells, options that shape cells from rows are named on `warn` as ignored.
+ * @param io the environment (cache folder), the working folder, and where a warning goes
+ */
+export function analysisRequest(args: AnalysisArgs, io: Pick<CliIO, 'env' | 'cwd'> & { readonly stderr?: CliIO['stderr'] }): AnalysisRequest {
+  const triage = toTriageOptions(args);
+  const engine = { threads: args.threads, memoryLimit: args['memory-limit'] };
+  const cache = args.cache === false ? null : { dir: cacheDir(io.env), cwd: io.cwd };
+  if (args.cells !== undefined) {
+    const rows = [...(args.files ?? []), args.train, args['train-dev'], args.dev, args.test].filter((f) => f !== undefined);
+    if (rows.length > 0) throw error(`--cells and prediction tables (${rows.join(', ')}) were both given; give one of them`);
+    const ignored = ROW_OPTIONS.filter((k) => args[k] !== undefined);
+    if (ignored.length > 0) {
+      io.stderr?.write(`floorgap: ${ignored.map((k) => `--${k}`).join(', ')} ignored: cells already carry what the rows gave (floorgap sql takes these options)\n`);
+    }
+    const by = args.byColumns ? [...args.byColumns] : list(args.by);
+    return { input: { kind: 'cells', paths: cellsPaths(args), by, maxCells: args['max-cells'] }, triage, engine, cache };
+  }
+  return { input: { kind: 'rows', load: toLoadOptions(args) }, triage, engine, cache };
+}
+
+/** The hooks of an analysis run from the command line: progress of long scans on stderr. */
+export function analysisHooks(args: AnalysisArgs, io: Pick<CliIO, 'stderr' | 'env'>): AnalysisHooks {
+  return { onScan: scanProgress(io, args.progress ?? 'auto') };
 }

@@ -3,10 +3,10 @@
  * when reading starts and one when it ends, nothing more (logs stay short). Only for large inputs
  * unless `--progress always`; never with `--progress never`.
  */
-import type { Duck } from '../engine/duck.js';
-import type { LoadHooks } from '../engine/load.js';
-import { watchProgress, type ScanProgress } from '../engine/progress.js';
-import { sanitize, truncate } from '../render/sanitize.js';
+import type { Duck } from '../sql/duck.js';
+import type { LoadHooks } from '../cells/load.js';
+import { watchProgress, type ScanProgress } from '../sql/progress.js';
+import { sanitize, truncate } from '../terminal/sanitize.js';
 import type { CliIO } from './io.js';
 
 /** Inputs at least this large (bytes, all files together) show progress under `--progress auto`. */

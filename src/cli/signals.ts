@@ -4,8 +4,8 @@
  * the signal's number, as shells report it). The explorer claims the signals while it runs, to restore
  * the terminal before it exits with the same codes.
  */
-import { interruptAll } from '../engine/duck.js';
-import { removeTempsSync } from '../io/temp-files.js';
+import { interruptAll } from '../sql/duck.js';
+import { removeTempsSync } from '../output/temp-files.js';
 
 export const SIGNAL_EXIT = { SIGINT: 130, SIGTERM: 143, SIGHUP: 129 } as const;
 export type HandledSignal = keyof typeof SIGNAL_EXIT;

@@ -1,7 +1,7 @@
 import { promises as fs } from 'node:fs';
 import { join } from 'node:path';
-import { checkDestination, writeAtomic, writeReason } from '../io/write-atomic.js';
-import { error } from '../util/error.js';
+import { checkDestination, writeAtomic, writeReason } from '../output/write-atomic.js';
+import { error } from '../core/errors.js';
 import { checkDemoOptions, demoFloorCsvLines, demoRowsToCsvLines, generateDemoRows, type DemoOptions } from './generate.js';
 
 /** File names {@link writeDemo} writes inside its folder. */

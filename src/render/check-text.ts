@@ -1,7 +1,7 @@
 import type { CheckResult, Comparison, LimitCheck } from '../triage/check.js';
-import { paint } from './ansi.js';
+import { paint } from '../terminal/ansi.js';
 import { points, pointsInterval, pValue, signedPoints } from './format.js';
-import { sanitize } from './sanitize.js';
+import { sanitize } from '../terminal/sanitize.js';
 
 const LIMIT_WORD: Record<LimitCheck['limit'], string> = {
   'max-bias': 'avoidable bias',

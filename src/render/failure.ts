@@ -1,5 +1,5 @@
-import { FloorgapError } from '../util/error.js';
-import { sanitize } from './sanitize.js';
+import { FloorgapError } from '../core/errors.js';
+import { sanitize } from '../terminal/sanitize.js';
 
 /**
  * What floorgap prints when a failure ends a command: one sanitised line, `floorgap: MESSAGE` for a

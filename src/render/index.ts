@@ -2,7 +2,7 @@
  * Renderers of the slice report: text for a terminal, markdown, CSV and JSON.
  */
 import type { Report } from '../triage/types.js';
-import { error } from '../util/error.js';
+import { error } from '../core/errors.js';
 import { renderCsv } from './csv.js';
 import { renderJson } from './json.js';
 import { renderMarkdown } from './markdown.js';
@@ -52,4 +52,4 @@ export { renderCsv } from './csv.js';
 export { renderJson } from './json.js';
 export { renderMarkdown, escapeMarkdown } from './markdown.js';
 export { renderText } from './text.js';
-export { sanitize, displayWidth, truncate } from './sanitize.js';
+export { sanitize, displayWidth, truncate } from '../terminal/sanitize.js';

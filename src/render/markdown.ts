@@ -3,10 +3,10 @@
  * per slice. Every data string is sanitized (no live controls) and then escaped so it can neither break
  * the table nor turn into markup.
  */
-import type { Split } from '../engine/types.js';
+import type { Split } from '../core/cell.js';
 import type { Gap, Report, SliceReport } from '../triage/types.js';
 import { count, levelPercent, NULL_MARK, percent, points, pointsInterval, signedPoints } from './format.js';
-import { sanitize } from './sanitize.js';
+import { sanitize } from '../terminal/sanitize.js';
 import { FDR_METHOD_NAME, FLOOR_SOURCE_NAME } from './words.js';
 
 /** Characters that are markup anywhere in a line or inside a table cell. */

@@ -3,9 +3,9 @@
  * warnings), the slice table fitted to the terminal width, and a legend. Colour is decoration only:
  * without it the output reads the same (flag mark `*`, focus spelled out).
  */
-import type { Split } from '../engine/types.js';
+import type { Split } from '../core/cell.js';
 import type { Focus, Gap, Report, SliceReport } from '../triage/types.js';
-import { paint, type Style } from './ansi.js';
+import { paint, type Style } from '../terminal/ansi.js';
 import {
   bytes,
   count,
@@ -17,7 +17,7 @@ import {
   pValue,
   signedPoints,
 } from './format.js';
-import { displayWidth, pad, sanitize, truncate } from './sanitize.js';
+import { displayWidth, pad, sanitize, truncate } from '../terminal/sanitize.js';
 import { FDR_METHOD_NAME, FLOOR_SOURCE_NAME } from './words.js';
 
 /** Options of {@link renderText}. */

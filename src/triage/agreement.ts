@@ -1,4 +1,4 @@
-import type { AuditSums } from '../engine/types.js';
+import type { AuditSums } from '../core/cell.js';
 import { cohensKappa, fleissKappa } from '../stats/index.js';
 import type { Agreement } from './types.js';
 

@@ -1,4 +1,4 @@
-import type { AuditSums } from '../engine/types.js';
+import type { AuditSums } from '../core/cell.js';
 import { betaPosterior, wilsonInterval, type BetaPrior } from '../stats/index.js';
 import type { FloorRule, Rate } from './types.js';
 

@@ -1,4 +1,4 @@
-import type { SliceStats } from '../engine/slices.js';
+import type { SliceStats } from '../slices/rollup.js';
 import { fitPowerLaw, kishEffectiveN, logGapWeight } from '../stats/index.js';
 import type { Curve } from './types.js';
 

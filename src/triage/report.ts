@@ -1,5 +1,6 @@
-import { selectCells } from '../engine/cell-table.js';
-import { rollupSlices, runsOf, type Cells, type SliceStats } from '../engine/slices.js';
+import { selectCells } from '../cells/cell-table.js';
+import { runsOf } from '../cells/cell-table.js';
+import { rollupSlices, type Cells, type SliceStats } from '../slices/rollup.js';
 import { fitBetaPrior, type BetaPrior } from '../stats/index.js';
 import { annotatorFloor, ruleCounts } from './annotator-floor.js';
 import { sliceCurve } from './curve.js';

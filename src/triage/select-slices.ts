@@ -2,7 +2,7 @@
  * Which slices of a report `floorgap export` writes rows for, and the one-line reason shown beside each
  * exported row. Pure: plain data in, plain data out.
  */
-import { error } from '../util/error.js';
+import { error } from '../core/errors.js';
 import type { Report, SliceReport } from './types.js';
 
 /** A slice named on the command line (`--slice "station=S5,lighting=dome"`), as pairs in the order given. */

@@ -1,6 +1,6 @@
-import type { SliceStats, SplitSums } from '../engine/slices.js';
-import type { Split } from '../engine/types.js';
-import { SPLITS } from '../engine/types.js';
+import type { SliceStats, SplitSums } from '../slices/rollup.js';
+import type { Split } from '../core/cell.js';
+import { SPLITS } from '../core/cell.js';
 import {
   benjaminiHochberg,
   benjaminiYekutieli,

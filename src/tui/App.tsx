@@ -1,10 +1,10 @@
 import { Box, Text, useInput } from 'ink';
-import { useEffect, useMemo, useReducer, useRef, useState } from 'react';
-import type { ErrorExample } from '../engine/examples.js';
+import { useCallback, useEffect, useMemo, useReducer, useRef, useState } from 'react';
+import type { ErrorExample } from '../rows/examples.js';
 import { failureText } from '../render/failure.js';
-import { sanitize, truncate } from '../render/sanitize.js';
+import { sanitize, truncate } from '../terminal/sanitize.js';
 import type { SliceReport } from '../triage/types.js';
-import { exitCodeOf, FloorgapError } from '../util/error.js';
+import { exitCodeOf, FloorgapError } from '../core/errors.js';
 import { Line } from './components/Line.js';
 import { SliceTable } from './components/SliceTable.js';
 import { detailLines } from './detail.js';
@@ -13,7 +13,7 @@ import { useTerminalSize } from './hooks/use-terminal-size.js';
 import { DETAIL_HINT, DETAIL_HINT_ASCII, HINT, HINT_ASCII, KEYS, splitKeys } from './keys.js';
 import { barScale, clampCursor, MIN_COLUMNS, MIN_ROWS, screenLayout, SORT_LABEL, tableColumns, windowStart } from './model.js';
 import { initialState, reduce, shownSlices } from './state.js';
-import type { ExplorerData } from './session.js';
+import type { ExplorerData } from './data.js';
 import type { Span } from './theme.js';
 
 /** Loading progress as the engine reports it. */
@@ -69,20 +69,30 @@ export function App(props: AppProps) {
   const [progress, setProgress] = useState<LoadProgress | null>(null);
   const [elapsed, setElapsed] = useState(0);
   const [state, dispatch] = useReducer(reduce, initialState);
-  const [drill, setDrill] = useState<readonly SliceReport[] | 'loading' | null>(null);
-  const [examples, setExamples] = useState<readonly ErrorExample[] | string | 'loading' | null>(null);
-  const startRef = useRef(0);
+  // the detail pane's breakdown and examples, each with the slice (and column) it was loaded for: one
+  // that belongs to another slice is still loading
+  const [drillFor, setDrillFor] = useState<{ readonly slice: SliceReport; readonly column: string; readonly value: readonly SliceReport[] } | null>(null);
+  const [examplesFor, setExamplesFor] = useState<{ readonly slice: SliceReport; readonly value: readonly ErrorExample[] | string } | null>(null);
+  // the first table row on screen, kept from the last frame so the window moves only when the cursor leaves it
+  const [shownFrom, setShownFrom] = useState(0);
   const exited = useRef(false);
-  const exit = (code: number, error?: unknown) => {
+  const onExit = useRef(props.onExit);
+  useEffect(() => {
+    onExit.current = props.onExit;
+  }, [props.onExit]);
+  const exit = useCallback((code: number, error?: unknown) => {
     if (exited.current) return;
     exited.current = true;
-    props.onExit(code, error);
-  };
+    onExit.current(code, error);
+  }, []);
   /** a failed request: a FloorgapError is a message on the status line (`what: message`), anything else ends the explorer */
-  const failed = (what: string, show: (message: string) => void = (m) => dispatch({ type: 'done', message: m })) => (e: unknown) => {
-    if (e instanceof FloorgapError) show(`${what}: ${e.message}`);
-    else exit(exitCodeOf(e), e);
-  };
+  const failed = useCallback(
+    (what: string, show: (message: string) => void = (m) => dispatch({ type: 'done', message: m })) => (e: unknown) => {
+      if (e instanceof FloorgapError) show(`${what}: ${e.message}`);
+      else exit(exitCodeOf(e), e);
+    },
+    [exit],
+  );
   const { report, mode, sortKey, descending, filter, draft, marked, intervals, pickerCursor, picked, detailScroll, message, busy } = state;
 
   // load once; poll progress meanwhile
@@ -122,8 +132,8 @@ export function App(props: AppProps) {
   const columns = useMemo(() => tableColumns(width, { intervals, mismatch: hasMismatch }), [width, intervals, hasMismatch]);
   const scale = useMemo(() => barScale(shown), [shown]);
   const bodyHeight = Math.max(1, layout.body - 1); // table rows: the body less the table's header line
-  const start = windowStart(shown.length, cursor, bodyHeight, startRef.current);
-  startRef.current = start;
+  const start = windowStart(shown.length, cursor, bodyHeight, shownFrom);
+  if (start !== shownFrom) setShownFrom(start); // React's pattern for state kept from the previous render
   const drillColumns = useMemo(() => (data && selected ? data.columns.filter((c) => !(c in selected.key)) : []), [data, selected]);
   const drillColumn = drillColumns.length > 0 ? drillColumns[state.drillIndex % drillColumns.length] : null;
 
@@ -152,22 +162,22 @@ export function App(props: AppProps) {
   useEffect(() => {
     if (mode !== 'detail' || !data || !selected) return;
     let alive = true;
-    setDrill(drillColumn ? 'loading' : null);
-    setExamples('loading');
     if (drillColumn) {
       data.drill(selected, drillColumn).then(
-        (d) => alive && setDrill(d),
+        (d) => alive && setDrillFor({ slice: selected, column: drillColumn, value: d }),
         failed('breakdown', (m) => alive && dispatch({ type: 'done', message: m })),
       );
     }
     data.examples(selected).then(
-      (x) => alive && setExamples(x),
-      failed('examples', (m) => alive && setExamples(m)),
+      (x) => alive && setExamplesFor({ slice: selected, value: x }),
+      failed('examples', (m) => alive && setExamplesFor({ slice: selected, value: m })),
     );
     return () => {
       alive = false;
     };
-  }, [mode, data, selected, drillColumn]);
+  }, [mode, data, selected, drillColumn, failed]);
+  const drill = !drillColumn ? null : drillFor && drillFor.slice === selected && drillFor.column === drillColumn ? drillFor.value : 'loading';
+  const examples = examplesFor && examplesFor.slice === selected ? examplesFor.value : 'loading';
 
   // the detail pane's lines, and how far they can scroll (told to the reducer so ↑ works at once)
   const detailRoom = Math.max(1, layout.body);

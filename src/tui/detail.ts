@@ -2,9 +2,9 @@
  * The detail pane's lines for one slice: every number with its interval, the lever in plain words, the
  * breakdown by another column and the most confident errors. Pure: the pane scrolls through them.
  */
-import type { ErrorExample } from '../engine/examples.js';
+import type { ErrorExample } from '../rows/examples.js';
 import { count, levelPercent, NULL_MARK, points, pointsInterval, pValue, signedPoints } from '../render/format.js';
-import { sanitize, truncate } from '../render/sanitize.js';
+import { sanitize, truncate } from '../terminal/sanitize.js';
 import type { Gap, Report, SliceReport } from '../triage/types.js';
 import { LEVER } from './model.js';
 import { FOCUS_COLOR, type Span } from './theme.js';

@@ -1,5 +1,5 @@
 import { count, NULL_MARK, points, signedPoints } from '../render/format.js';
-import { sanitize, truncate } from '../render/sanitize.js';
+import { sanitize, truncate } from '../terminal/sanitize.js';
 import type { Report } from '../triage/types.js';
 import type { Span } from './theme.js';
 

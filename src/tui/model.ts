@@ -4,7 +4,7 @@
  * every rule is testable on its own.
  */
 import { count, NULL_MARK, points, signedPoints } from '../render/format.js';
-import { displayWidth, pad, sanitize, truncate } from '../render/sanitize.js';
+import { displayWidth, pad, sanitize, truncate } from '../terminal/sanitize.js';
 import type { Focus, SliceReport } from '../triage/types.js';
 
 /** Sort columns, in the order the sort key cycles through them. */

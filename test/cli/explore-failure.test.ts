@@ -16,8 +16,8 @@ import { main } from '../../src/cli/index.js';
 import { runExport } from '../../src/cli/commands/export.js';
 import { buildReport } from '../../src/triage/report.js';
 import { detailLines } from '../../src/tui/detail.js';
-import { explorerData } from '../../src/tui/session.js';
-import { error } from '../../src/util/error.js';
+import { explorerData } from '../../src/app/explorer-data.js';
+import { error } from '../../src/core/errors.js';
 
 vi.mock('../../src/triage/report.js', async (original) => {
   const actual = await original<typeof import('../../src/triage/report.js')>();
@@ -31,8 +31,8 @@ vi.mock('../../src/tui/detail.js', async (original) => {
   const actual = await original<typeof import('../../src/tui/detail.js')>();
   return { ...actual, detailLines: vi.fn(actual.detailLines) };
 });
-vi.mock('../../src/tui/session.js', async (original) => {
-  const actual = await original<typeof import('../../src/tui/session.js')>();
+vi.mock('../../src/app/explorer-data.js', async (original) => {
+  const actual = await original<typeof import('../../src/app/explorer-data.js')>();
   return { ...actual, explorerData: vi.fn(actual.explorerData) };
 });
 

@@ -7,8 +7,8 @@ import { join } from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { progressLine, scanProgress } from '../../src/cli/progress.js';
 import { writeDemo } from '../../src/demo/write-demo.js';
-import type { Duck } from '../../src/engine/duck.js';
-import { watchProgress } from '../../src/engine/progress.js';
+import type { Duck } from '../../src/sql/duck.js';
+import { watchProgress } from '../../src/sql/progress.js';
 import { Captured, runMain } from '../helpers/run-main.js';
 import { makeTempDir, removeTempDir } from '../helpers/table-variants.js';
 

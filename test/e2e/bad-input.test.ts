@@ -11,7 +11,7 @@ import { join } from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import type { CheckResult } from '../../src/triage/check.js';
 import type { Report } from '../../src/triage/types.js';
-import { openDuck } from '../../src/engine/duck.js';
+import { openDuck } from '../../src/sql/duck.js';
 import { runCli } from '../helpers/run-cli.js';
 
 const BAD = join('test', 'fixtures', 'bad');

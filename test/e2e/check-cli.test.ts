@@ -9,7 +9,7 @@ import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { XMLParser } from 'fast-xml-parser';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { openDuck } from '../../src/engine/duck.js';
+import { openDuck } from '../../src/sql/duck.js';
 import type { CheckResult } from '../../src/triage/check.js';
 import type { Report } from '../../src/triage/types.js';
 import { runCli } from '../helpers/run-cli.js';

@@ -10,7 +10,7 @@ import { existsSync, mkdtempSync, readdirSync, readFileSync, rmSync, writeFileSy
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { openDuck, type Duck } from '../../src/engine/duck.js';
+import { openDuck, type Duck } from '../../src/sql/duck.js';
 import { ROOT, runCli, type CliResult } from '../helpers/run-cli.js';
 
 const TABLE = 'data-samples/solder-joints.csv';

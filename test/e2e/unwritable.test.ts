@@ -9,7 +9,7 @@ import { chmodSync, lstatSync, mkdirSync, mkdtempSync, readdirSync, readFileSync
 import { tmpdir, userInfo } from 'node:os';
 import { join } from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { writeAtomic } from '../../src/io/write-atomic.js';
+import { writeAtomic } from '../../src/output/write-atomic.js';
 import { failure } from '../helpers/failure.js';
 import { runCli } from '../helpers/run-cli.js';
 

@@ -4,8 +4,8 @@
  * report (three `lighting` slices, named after the grouping asked for; `by: null` for the overview), `drill` with two hand-built slices, `examples` with hand-written rows,
  * and records every call, so a test can check what the explorer asked for.
  */
-import type { ErrorExample } from '../../src/engine/examples.js';
-import type { ExplorerData } from '../../src/tui/session.js';
+import type { ErrorExample } from '../../src/rows/examples.js';
+import type { ExplorerData } from '../../src/tui/data.js';
 import type { Report, SliceReport } from '../../src/triage/types.js';
 import { reportFixture } from './report-fixture.js';
 

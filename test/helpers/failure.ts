@@ -1,5 +1,5 @@
 import { expect } from 'vitest';
-import { FloorgapError } from '../../src/util/error.js';
+import { FloorgapError } from '../../src/core/errors.js';
 
 /** Awaits a promise that must reject with a user-facing FloorgapError, and returns that error. */
 export async function failure(p: Promise<unknown>): Promise<FloorgapError> {

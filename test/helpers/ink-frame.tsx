@@ -5,8 +5,8 @@
  */
 import { render } from 'ink-testing-library';
 import { App, type AppProps } from '../../src/tui/App.js';
-import { stripAnsi } from '../../src/render/ansi.js';
-import type { ExplorerData } from '../../src/tui/session.js';
+import { stripAnsi } from '../../src/terminal/ansi.js';
+import type { ExplorerData } from '../../src/tui/data.js';
 import { FAKE_EXPORT_PATH } from './explorer-fixture.js';
 
 /** Keys as a terminal sends them (VT sequences, as ink's parser reads them). */

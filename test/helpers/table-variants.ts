@@ -8,7 +8,7 @@ import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { fileURLToPath } from 'node:url';
 import { gzipSync } from 'node:zlib';
-import type { Duck } from '../../src/engine/duck.js';
+import type { Duck } from '../../src/sql/duck.js';
 
 /** Folder of the hand-written table fixtures. */
 export const TABLES = fileURLToPath(new URL('../fixtures/tables/', import.meta.url));

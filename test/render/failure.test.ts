@@ -5,7 +5,7 @@
  */
 import { describe, expect, it } from 'vitest';
 import { failureText } from '../../src/render/failure.js';
-import { error } from '../../src/util/error.js';
+import { error } from '../../src/core/errors.js';
 
 describe('failureText', () => {
   it('prints a FloorgapError as its message, sanitised, in one line', () => {

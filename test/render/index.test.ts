@@ -1,6 +1,6 @@
 import { describe, expect, it } from 'vitest';
 import { FORMATS, render, renderCsv, renderJson, renderMarkdown, renderText } from '../../src/render/index.js';
-import { FloorgapError } from '../../src/util/error.js';
+import { FloorgapError } from '../../src/core/errors.js';
 import { reportFixture } from '../helpers/report-fixture.js';
 
 // The report is the fixture (hand-built) in test/helpers/report-fixture.ts.

@@ -6,7 +6,7 @@
  * (x, n) pairs; raw rates and rule counts are hand-computed from the invented audits.
  */
 import { describe, expect, it } from 'vitest';
-import type { AuditSums, Cell } from '../../src/engine/types.js';
+import type { AuditSums, Cell } from '../../src/core/cell.js';
 import { fitBetaPrior } from '../../src/stats/index.js';
 import { ruleCounts } from '../../src/triage/annotator-floor.js';
 import { buildReport } from '../../src/triage/report.js';

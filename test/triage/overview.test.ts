@@ -4,7 +4,7 @@
  * statsmodels 0.13.5 (Debian 0.13.5+dfsg) with /usr/bin/python3.
  */
 import { describe, expect, it } from 'vitest';
-import type { Cell } from '../../src/engine/types.js';
+import type { Cell } from '../../src/core/cell.js';
 import { buildReport } from '../../src/triage/report.js';
 import type { Report, SliceReport } from '../../src/triage/types.js';
 import { CONTEXT, cell, options, sliceCells } from '../helpers/cells.js';

@@ -10,7 +10,7 @@ import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import fc from 'fast-check';
 import { afterAll, describe, expect, it } from 'vitest';
-import type { Cell, Split } from '../../src/engine/types.js';
+import type { Cell, Split } from '../../src/core/cell.js';
 import { renderJson } from '../../src/render/json.js';
 import { buildReport } from '../../src/triage/report.js';
 import type { Report, SliceReport } from '../../src/triage/types.js';

@@ -1,12 +1,12 @@
 // Must come first: chalk decides on colour when ink loads it (see the helper).
 import { restoreColorEnv } from '../helpers/force-color.js';
 import { afterEach, describe, expect, it } from 'vitest';
-import { stripAnsi } from '../../src/render/ansi.js';
-import { displayWidth } from '../../src/render/sanitize.js';
+import { stripAnsi } from '../../src/terminal/ansi.js';
+import { displayWidth } from '../../src/terminal/sanitize.js';
 import type { Report } from '../../src/triage/types.js';
 import { HINT } from '../../src/tui/keys.js';
-import type { ExplorerData } from '../../src/tui/session.js';
-import { FloorgapError } from '../../src/util/error.js';
+import type { ExplorerData } from '../../src/tui/data.js';
+import { FloorgapError } from '../../src/core/errors.js';
 import { LEVER } from '../../src/tui/model.js';
 import { EXAMPLES_FIXTURE, FAKE_EXPORT_PATH, fakeExplorerData, sliceOfRank } from '../helpers/explorer-fixture.js';
 import { KEY, linesOf, renderExplorer, settle, type Explorer, type ExplorerProps } from '../helpers/ink-frame.js';

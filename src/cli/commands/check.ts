@@ -1,17 +1,17 @@
 import type { Argv } from 'yargs';
-import { pairedCounts } from '../../engine/paired.js';
-import { readBaseline } from '../../io/read-baseline.js';
-import { checkDestination, writeAtomic } from '../../io/write-atomic.js';
+import { pairedCounts } from '../../rows/paired.js';
+import { readBaseline } from '../../app/baseline.js';
+import { checkDestination, writeAtomic } from '../../output/write-atomic.js';
 import { renderCheckText } from '../../render/check-text.js';
 import { renderJunit } from '../../render/junit.js';
 import { renderJson } from '../../render/json.js';
 import { mcnemarTest } from '../../stats/index.js';
 import { checkLimits, checkResult, compareReports, comparePaired, LIMIT_NAMES, type Comparison, type Limits } from '../../triage/check.js';
-import { error } from '../../util/error.js';
-import { analysisReads, analyzeWith, withDuck } from '../analyze.js';
+import { error } from '../../core/errors.js';
+import { analysisReads, analyzeWith, withDuck } from '../../app/analysis.js';
 import type { CliIO } from '../io.js';
 import { useColor, writeOut } from '../io.js';
-import { analysisOptions, toLoadOptions, type AnalysisArgs } from '../options.js';
+import { analysisHooks, analysisOptions, analysisRequest, toLoadOptions, type AnalysisArgs } from '../options.js';
 
 export interface CheckArgs extends AnalysisArgs {
   'max-bias'?: number;
@@ -61,8 +61,9 @@ export async function runCheck(args: CheckArgs, io: CliIO): Promise<number> {
   // engine may read the baseline only then
   const saved = args.baseline ? await readBaseline(args.baseline) : null;
   const baselineTable = args.baseline && saved?.kind === 'table' ? [args.baseline] : [];
-  const result = await withDuck(args, { read: [...analysisReads(args), ...baselineTable], write: [] }, async (duck) => {
-    const { report, loaded } = await analyzeWith(duck, args, io);
+  const request = analysisRequest(args, io);
+  const result = await withDuck(request.engine, { read: [...analysisReads(request), ...baselineTable], write: [] }, async (duck) => {
+    const { report, loaded } = await analyzeWith(duck, request, analysisHooks(args, io));
     const warnings = [...report.warnings];
     let comparisons: Comparison[] = [];
     let baseline: { path: string; kind: 'report' | 'paired' } | null = null;

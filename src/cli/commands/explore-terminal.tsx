@@ -1,15 +1,15 @@
 import { existsSync } from 'node:fs';
 import { render } from 'ink';
-import type { Duck } from '../../engine/duck.js';
-import { watchProgress, type ScanProgress } from '../../engine/progress.js';
+import type { Duck } from '../../sql/duck.js';
+import { watchProgress, type ScanProgress } from '../../sql/progress.js';
 import { App } from '../../tui/App.js';
-import { explorerData, type Exporter } from '../../tui/session.js';
+import { explorerData, type Exporter } from '../../app/explorer-data.js';
 import type { SliceReport } from '../../triage/types.js';
-import { FloorgapError, INTERNAL_EXIT } from '../../util/error.js';
-import { analysisReads, analyzeWith, openEngine } from '../analyze.js';
+import { FloorgapError, INTERNAL_EXIT } from '../../core/errors.js';
+import { analysisReads, analyzeWith, openEngine } from '../../app/analysis.js';
 import type { CliIO } from '../io.js';
 import { useColor } from '../io.js';
-import { toTriageOptions } from '../options.js';
+import { analysisRequest } from '../options.js';
 import { runExport, type ExportArgs } from './export.js';
 import { claimSignals } from '../signals.js';
 import { reportFailure } from '../failure.js';
@@ -57,7 +57,7 @@ export function withoutScrollbackClear(stdout: NodeJS.WriteStream): NodeJS.Write
  * runs, so other commands never pay for the UI libraries at start-up.
  */
 export async function runExplorer(args: ExploreArgs, io: CliIO, argv: readonly string[], stdin: NodeJS.ReadStream): Promise<number> {
-  toTriageOptions(args); // bad options fail before the screen changes
+  const request = analysisRequest(args, io); // bad options fail before the screen changes
 
   let duck: Duck | null = null;
   let stopped = false;
@@ -135,11 +135,11 @@ export async function runExplorer(args: ExploreArgs, io: CliIO, argv: readonly s
         ascii={args.ascii}
         progress={() => (latest ? { percent: latest.percentage, rows: latest.rowsProcessed } : null)}
         load={async () => {
-          duck = await openEngine(args, { read: analysisReads(args), write: [] });
+          duck = await openEngine(request.engine, { read: analysisReads(request), write: [] });
           if (stopped) throw new Error('stopped'); // quit while the engine was starting: no scan
           const stop = watchProgress(duck, (p) => (latest = p), 200);
           try {
-            const analysis = await analyzeWith(duck, args);
+            const analysis = await analyzeWith(duck, request);
             return explorerData(duck, analysis, exporter);
           } finally {
             stop();

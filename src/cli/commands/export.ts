@@ -1,18 +1,18 @@
 import type { Argv } from 'yargs';
-import { EXPORT_COLUMNS, exportCountSql, exportSql, type ExportQuery } from '../../engine/export-sql.js';
-import { openSource } from '../../engine/source.js';
-import { normalizeSplit } from '../../engine/roles.js';
-import { SPLITS, type Split } from '../../engine/types.js';
-import { exportFormatFor, checkOutput, fingerprint, manifestPathFor, writeExport, type ExportHooks } from '../../io/export-rows.js';
-import { tempPathFor } from '../../io/write-atomic.js';
+import { EXPORT_COLUMNS, exportCountSql, exportSql, type ExportQuery } from '../../rows/export-sql.js';
+import { openSource } from '../../read/source.js';
+import { normalizeSplit } from '../../read/roles.js';
+import { SPLITS, type Split } from '../../core/cell.js';
+import { exportFormatFor, checkOutput, fingerprint, manifestPathFor, writeExport, type ExportHooks } from '../../output/export-file.js';
+import { tempPathFor } from '../../output/write-atomic.js';
 import { sanitize } from '../../render/index.js';
 import { namedGrouping, parseSliceKey, selectSlices, type ChosenSlice, type NamedSlice, type Selection } from '../../triage/select-slices.js';
-import { VERSION } from '../../version.js';
-import { error } from '../../util/error.js';
-import { analysisReads, analyzeWith, withDuck } from '../analyze.js';
+import { VERSION } from '../../core/version.js';
+import { error } from '../../core/errors.js';
+import { analysisReads, analyzeWith, withDuck } from '../../app/analysis.js';
 import type { CliIO } from '../io.js';
 import { writeOut } from '../io.js';
-import { analysisOptions, toLoadOptions, toTriageOptions, type AnalysisArgs } from '../options.js';
+import { analysisHooks, analysisOptions, analysisRequest, toLoadOptions, type AnalysisArgs } from '../options.js';
 
 /** The manifest's schema name; it changes when a field is removed or changes meaning. */
 export const EXPORT_SCHEMA = 'floorgap.export/1';
@@ -110,13 +110,13 @@ export async function runExport(args: ExportArgs, io: CliIO, argv: readonly stri
   const limit = args['limit-per-slice'] ?? null;
   const { selection, byColumns, named } = selectionOf(args);
   const analysisArgs: AnalysisArgs = byColumns ? { ...args, byColumns } : args;
-  toTriageOptions(analysisArgs); // bad options fail before the engine starts
+  const request = analysisRequest(analysisArgs, io);
   const loadOptions = toLoadOptions(analysisArgs);
   await checkOutput(out, args.force);
   // the engine writes the rows to this temporary file beside the destination, and nowhere else
   const tempData = tempPathFor(out);
 
-  return withDuck(analysisArgs, { read: analysisReads(analysisArgs), write: [tempData] }, async (duck) => {
+  return withDuck(request.engine, { read: analysisReads(request), write: [tempData] }, async (duck) => {
     const source = await openSource(duck, loadOptions.source);
     if (source.columns.includes('fg_rows') && source.columns.includes('fg_errors')) {
       throw error(`${source.where}: holds ready-made cells (fg_rows, fg_errors, …); export writes rows, so give the prediction table itself`);
@@ -133,7 +133,7 @@ export async function runExport(args: ExportArgs, io: CliIO, argv: readonly stri
         }
       }
     }
-    const { report, loaded } = await analyzeWith(duck, analysisArgs, io);
+    const { report, loaded } = await analyzeWith(duck, request, analysisHooks(analysisArgs, io));
     const resolve = (c: string) => (source.columns.includes(c) ? c : c === 'label' ? loaded.roles.label ?? c : c === 'pred' ? loaded.roles.pred ?? c : c);
     const resolved: Selection =
       selection.kind === 'named'

@@ -1,18 +1,18 @@
 import { promises as fs } from 'node:fs';
 import type { Argv } from 'yargs';
-import { cellQuery } from '../../engine/cell-query.js';
-import { DIALECTS, type DialectName } from '../../engine/dialect.js';
-import { round3 } from '../../engine/profile.js';
-import { ROWS_VIEW } from '../../engine/source.js';
-import { literal } from '../../engine/sql.js';
-import { planWarehouse, warehouseQuery } from '../../engine/warehouse.js';
-import { printableWhere } from '../../engine/where.js';
-import { exportFormatFor } from '../../io/export-rows.js';
-import { checkDestination, moveInto, tempPathFor, writeError } from '../../io/write-atomic.js';
+import { cellQuery } from '../../cells/cell-query.js';
+import { DIALECTS, type DialectName } from '../../sql/dialect.js';
+import { round3 } from '../../cells/profile.js';
+import { ROWS_VIEW } from '../../read/source.js';
+import { literal } from '../../sql/quote.js';
+import { planWarehouse, warehouseQuery } from '../../cells/warehouse.js';
+import { printableWhere } from '../../sql/where.js';
+import { exportFormatFor } from '../../output/export-file.js';
+import { checkDestination, moveInto, tempPathFor, writeError } from '../../output/write-atomic.js';
 import { sanitize } from '../../render/index.js';
-import { VERSION } from '../../version.js';
-import { error } from '../../util/error.js';
-import { analysisReads, withDuck } from '../analyze.js';
+import { VERSION } from '../../core/version.js';
+import { error } from '../../core/errors.js';
+import { withDuck } from '../../app/analysis.js';
 import type { CliIO } from '../io.js';
 import { writeOut } from '../io.js';
 import { list, toLoadOptions, type AnalysisArgs } from '../options.js';
@@ -122,7 +122,9 @@ export async function runSql(args: SqlArgs, io: CliIO): Promise<number> {
   }
   // the engine writes the cells to this temporary file beside --out, and nowhere else
   const tmp = out === null ? null : tempPathFor(out);
-  return withDuck(args, { read: analysisReads(args), write: tmp ? [tmp] : [] }, async (duck) => {
+  const engine = { threads: args.threads, memoryLimit: args['memory-limit'] };
+  const reads = [...loadOptions.source.files, ...Object.values(loadOptions.source.perSplit), loadOptions.floorTable, loadOptions.costTable ?? null].filter((f): f is string => typeof f === 'string');
+  return withDuck(engine, { read: reads, write: tmp ? [tmp] : [] }, async (duck) => {
     const planned = await planWarehouse(duck, loadOptions, { dialect: args.dialect, table: args.table ?? ROWS_VIEW, edges, classes, grouping: args.grouping });
     if (planned.kind === 'needs') {
       const text = planned.queries.map((q) => `-- ${comment(q.what)}\n${q.sql};\n`).join('\n');
