@@ -6,7 +6,8 @@
 import type { Duck } from '../sql/duck.js';
 import type { LoadHooks } from '../cells/load.js';
 import { watchProgress, type ScanProgress } from '../sql/progress.js';
-import { sanitize, truncate } from '../terminal/sanitize.js';
+import { sanitize } from '../terminal/sanitize.js';
+import { truncate } from '../terminal/width.js';
 import type { CliIO } from './io.js';
 
 /** Inputs at least this large (bytes, all files together) show progress under `--progress auto`. */

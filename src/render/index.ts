@@ -52,4 +52,3 @@ export { renderCsv } from './csv.js';
 export { renderJson } from './json.js';
 export { renderMarkdown, escapeMarkdown } from './markdown.js';
 export { renderText } from './text.js';
-export { sanitize, displayWidth, truncate } from '../terminal/sanitize.js';

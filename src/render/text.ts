@@ -17,7 +17,9 @@ import {
   pValue,
   signedPoints,
 } from './format.js';
-import { displayWidth, pad, sanitize, truncate } from '../terminal/sanitize.js';
+import { sanitize } from '../terminal/sanitize.js';
+import { wrap } from '../terminal/wrap.js';
+import { displayWidth, pad, truncate } from '../terminal/width.js';
 import { FDR_METHOD_NAME, FLOOR_SOURCE_NAME } from './words.js';
 
 /** Options of {@link renderText}. */
@@ -127,25 +129,6 @@ function layTable(
 // ---------------------------------------------------------------------------------------------------
 // Text helpers for the header block.
 
-/** Greedy word wrap of sanitized text; the first line starts after `first`, the rest after `indent`. */
-function wrap(text: string, width: number, first: string, indent: string): string[] {
-  const lines: string[] = [];
-  let current = first;
-  let empty = true;
-  for (const word of text.split(' ').filter((w) => w !== '')) {
-    const candidate = empty ? current + word : `${current} ${word}`;
-    if (displayWidth(candidate) <= width || empty) {
-      current = candidate;
-      empty = false;
-    } else {
-      lines.push(current);
-      current = indent + word;
-    }
-  }
-  lines.push(current);
-  return lines.map((l) => truncate(l, width));
-}
-
 /**
  * Items joined by `sep`, wrapped so no item is split across lines unless it is wider than a line on its
  * own; then it is word-wrapped (`wrapLong`) or truncated.
@@ -176,7 +159,7 @@ function flow(
     if (displayWidth(current + item) <= width || !wrapLong) {
       current += item;
     } else {
-      const wrapped = wrap(item, width, current, indent);
+      const wrapped = wrap(item, width, { first: current, indent });
       lines.push(...wrapped.slice(0, -1));
       current = wrapped[wrapped.length - 1];
     }
@@ -315,7 +298,7 @@ function hintLines(report: Report, width: number, color: boolean, limit = 6): Li
   const lines: Line[] = [];
   items.slice(0, limit).forEach((item, i) => {
     const first = i === 0 ? 'notes'.padEnd(KEY_WIDTH) : ' '.repeat(KEY_WIDTH);
-    for (const plain of wrap(`- ${item}`, width, first, ' '.repeat(KEY_WIDTH + 2))) {
+    for (const plain of wrap(`- ${item}`, width, { first, indent: ' '.repeat(KEY_WIDTH + 2) })) {
       const k = plain.slice(0, KEY_WIDTH);
       lines.push({ plain, styled: paint(k, ['dim'], color) + plain.slice(KEY_WIDTH) });
     }
@@ -328,7 +311,7 @@ function warningLines(report: Report, width: number, color: boolean): Line[] {
   const lines: Line[] = [];
   report.warnings.forEach((warning, i) => {
     const first = i === 0 ? 'warnings'.padEnd(KEY_WIDTH) : ' '.repeat(KEY_WIDTH);
-    const wrapped = wrap(`! ${sanitize(warning)}`, width, first, ' '.repeat(KEY_WIDTH + 2));
+    const wrapped = wrap(`! ${sanitize(warning)}`, width, { first, indent: ' '.repeat(KEY_WIDTH + 2) });
     for (const plain of wrapped) {
       const k = plain.slice(0, KEY_WIDTH);
       lines.push({ plain, styled: paint(k, ['dim'], color) + paint(plain.slice(KEY_WIDTH), ['yellow'], color) });
@@ -486,7 +469,7 @@ function legend(report: Report, table: SliceTable, width: number, color: boolean
     return [words.slice(0, 3).join(NBSP), ...words.slice(3)].join(' ');
   };
   const text = items.map(glue).join('; ');
-  return wrap(text, width, '', '').map((plain) => line(plain.replaceAll(NBSP, ' '), ['dim'], color));
+  return wrap(text, width).map((plain) => line(plain.replaceAll(NBSP, ' '), ['dim'], color));
 }
 
 // ---------------------------------------------------------------------------------------------------

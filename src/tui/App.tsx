@@ -2,11 +2,13 @@ import { Box, Text, useInput } from 'ink';
 import { useCallback, useEffect, useMemo, useReducer, useRef, useState } from 'react';
 import type { ErrorExample } from '../rows/examples.js';
 import { failureText } from '../render/failure.js';
-import { sanitize, truncate } from '../terminal/sanitize.js';
+import { sanitize } from '../terminal/sanitize.js';
+import { truncate } from '../terminal/width.js';
 import type { SliceReport } from '../triage/types.js';
 import { exitCodeOf, FloorgapError } from '../core/errors.js';
 import { Line } from './components/Line.js';
 import { SliceTable } from './components/SliceTable.js';
+import { wrap } from '../terminal/wrap.js';
 import { detailLines } from './detail.js';
 import { headerLines } from './header.js';
 import { useTerminalSize } from './hooks/use-terminal-size.js';
@@ -208,7 +210,7 @@ export function App(props: AppProps) {
   const lines: { spans: Span[]; selected?: boolean }[] = [];
   if (!report) {
     if (failure) {
-      const message = wrapText(failureText(failure.error, false).trimEnd(), width);
+      const message = wrap(failureText(failure.error, false).trimEnd(), width, { long: 'break' });
       // the title and a blank line above the message, when they fit with it
       if (message.length + 2 <= height) lines.push({ spans: lineOf('floorgap', { bold: true }) }, { spans: lineOf('') });
       for (const l of message) lines.push({ spans: lineOf(l, { color: 'red' }) });
@@ -305,16 +307,6 @@ function progressBar(percent: number, width: number, ascii: boolean): string {
   return ascii ? `[${'#'.repeat(filled)}${'-'.repeat(width - filled)}]` : `${'█'.repeat(filled)}${'░'.repeat(width - filled)}`;
 }
 
-function wrapText(text: string, width: number): string[] {
-  const out: string[] = [];
-  let rest = text;
-  while (rest.length > width) {
-    out.push(rest.slice(0, width));
-    rest = rest.slice(width);
-  }
-  out.push(rest);
-  return out;
-}
 
 /** Props of {@link Frame}. */
 interface FrameProps {

@@ -4,7 +4,9 @@
  */
 import type { ErrorExample } from '../rows/examples.js';
 import { count, levelPercent, NULL_MARK, points, pointsInterval, pValue, signedPoints } from '../render/format.js';
-import { sanitize, truncate } from '../terminal/sanitize.js';
+import { sanitize } from '../terminal/sanitize.js';
+import { truncate } from '../terminal/width.js';
+import { wrap } from '../terminal/wrap.js';
 import type { Gap, Report, SliceReport } from '../triage/types.js';
 import { LEVER } from './model.js';
 import { FOCUS_COLOR, type Span } from './theme.js';
@@ -46,8 +48,8 @@ export function detailLines(s: SliceReport, report: Report, extras: DetailExtras
       { text: s.rank > 0 ? `  rank ${s.rank}` : '' },
     ),
   );
-  for (const l of wrapWords(`what to do: ${LEVER[s.focus]}`, width - 2)) out.push(line({ text: `  ${l}` }));
-  for (const h of s.hints) for (const l of wrapWords(`note: ${sanitize(h)}`, width - 2)) out.push(line({ text: `  ${l}`, color: 'yellow' }));
+  for (const l of wrap(`what to do: ${LEVER[s.focus]}`, width - 2)) out.push(line({ text: `  ${l}` }));
+  for (const h of s.hints) for (const l of wrap(`note: ${sanitize(h)}`, width - 2)) out.push(line({ text: `  ${l}`, color: 'yellow' }));
   out.push([]);
   out.push(
     line({
@@ -123,16 +125,3 @@ function pointsIntervalPlain(lo: number | null, hi: number | null): string {
   return lo === null || hi === null ? 'no interval' : `[${lo.toFixed(2)}, ${hi.toFixed(2)}]`;
 }
 
-/** Splits text into lines of at most `width` characters at spaces. */
-export function wrapWords(text: string, width: number): string[] {
-  const out: string[] = [];
-  let lineText = '';
-  for (const word of text.split(' ')) {
-    if (lineText && lineText.length + 1 + word.length > width) {
-      out.push(lineText);
-      lineText = word;
-    } else lineText = lineText ? `${lineText} ${word}` : word;
-  }
-  if (lineText) out.push(lineText);
-  return out.map((l) => truncate(l, width));
-}

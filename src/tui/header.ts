@@ -1,5 +1,6 @@
 import { count, NULL_MARK, points, signedPoints } from '../render/format.js';
-import { sanitize, truncate } from '../terminal/sanitize.js';
+import { sanitize } from '../terminal/sanitize.js';
+import { truncate } from '../terminal/width.js';
 import type { Report } from '../triage/types.js';
 import type { Span } from './theme.js';
 

@@ -4,7 +4,8 @@
  * every rule is testable on its own.
  */
 import { count, NULL_MARK, points, signedPoints } from '../render/format.js';
-import { displayWidth, pad, sanitize, truncate } from '../terminal/sanitize.js';
+import { sanitize } from '../terminal/sanitize.js';
+import { displayWidth, pad, truncate } from '../terminal/width.js';
 import type { Focus, SliceReport } from '../triage/types.js';
 
 /** Sort columns, in the order the sort key cycles through them. */

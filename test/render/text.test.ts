@@ -1,6 +1,6 @@
 import { describe, expect, it } from 'vitest';
 import { stripAnsi } from '../../src/terminal/ansi.js';
-import { displayWidth } from '../../src/terminal/sanitize.js';
+import { displayWidth } from '../../src/terminal/width.js';
 import { renderText } from '../../src/render/text.js';
 import type { Report } from '../../src/triage/types.js';
 import { reportFixture, withLabel } from '../helpers/report-fixture.js';

@@ -1,5 +1,6 @@
 import { describe, expect, it } from 'vitest';
-import { displayWidth, pad, sanitize, truncate } from '../../src/terminal/sanitize.js';
+import { sanitize } from '../../src/terminal/sanitize.js';
+import { displayWidth, pad, truncate } from '../../src/terminal/width.js';
 
 describe('sanitize', () => {
   it('turns a clear-screen CSI sequence into a visible escape', () => {

@@ -2,7 +2,7 @@
 import { restoreColorEnv } from '../helpers/force-color.js';
 import { afterEach, describe, expect, it } from 'vitest';
 import { stripAnsi } from '../../src/terminal/ansi.js';
-import { displayWidth } from '../../src/terminal/sanitize.js';
+import { displayWidth } from '../../src/terminal/width.js';
 import type { Report } from '../../src/triage/types.js';
 import { HINT } from '../../src/tui/keys.js';
 import type { ExplorerData } from '../../src/tui/data.js';

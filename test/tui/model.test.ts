@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { displayWidth } from '../../src/terminal/sanitize.js';
+import { displayWidth } from '../../src/terminal/width.js';
 import { FOCI, type SliceReport } from '../../src/triage/types.js';
 import {
   BAR_PARTS,

@@ -1,7 +1,7 @@
 import type { Argv } from 'yargs';
 import { DEMO_DEFAULTS } from '../../demo/generate.js';
 import { writeDemo } from '../../demo/write-demo.js';
-import { sanitize } from '../../render/index.js';
+import { sanitize } from '../../terminal/sanitize.js';
 import type { CliIO } from '../io.js';
 import { writeOut } from '../io.js';
 

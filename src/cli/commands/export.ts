@@ -5,7 +5,7 @@ import { normalizeSplit } from '../../read/roles.js';
 import { SPLITS, type Split } from '../../core/cell.js';
 import { exportFormatFor, checkOutput, fingerprint, manifestPathFor, writeExport, type ExportHooks } from '../../output/export-file.js';
 import { tempPathFor } from '../../output/write-atomic.js';
-import { sanitize } from '../../render/index.js';
+import { sanitize } from '../../terminal/sanitize.js';
 import { namedGrouping, parseSliceKey, selectSlices, type ChosenSlice, type NamedSlice, type Selection } from '../../triage/select-slices.js';
 import { VERSION } from '../../core/version.js';
 import { error } from '../../core/errors.js';

@@ -9,7 +9,7 @@ import { planWarehouse, warehouseQuery } from '../../cells/warehouse.js';
 import { printableWhere } from '../../sql/where.js';
 import { exportFormatFor } from '../../output/export-file.js';
 import { checkDestination, moveInto, tempPathFor, writeError } from '../../output/write-atomic.js';
-import { sanitize } from '../../render/index.js';
+import { sanitize } from '../../terminal/sanitize.js';
 import { VERSION } from '../../core/version.js';
 import { error } from '../../core/errors.js';
 import { withDuck } from '../../app/analysis.js';
