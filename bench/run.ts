@@ -22,7 +22,7 @@ import { loadCells, type LoadOptions, type Loaded } from '../src/cells/load.js';
 import { cacheKey, readCache } from '../src/cells/cache.js';
 import { rollupSlices } from '../src/slices/rollup.js';
 import { literal } from '../src/sql/quote.js';
-import { SPLITS, type Split } from '../src/core/cell.js';
+import { SPLITS, type Split } from '../src/core/split.js';
 import { renderJson } from '../src/render/json.js';
 import { buildReport, type ReportContext } from '../src/triage/report.js';
 import { DEFAULT_TRIAGE_OPTIONS, type Report } from '../src/triage/types.js';

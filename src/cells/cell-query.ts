@@ -11,50 +11,12 @@
  * Both levels only add, so the result is exactly what trimming every row first would give.
  */
 import { MISSING, type CellPlan, type Grouping } from './plan.js';
+import { badScoreSql, badWeightSql, entrySql, errorRule, ROW_STATUS, splitSql, statusSql, STATUS_SPLITS, trimmedSql, type RowProblem } from './row-status.js';
 import { dialect as dialectOf, type Dialect } from '../sql/dialect.js';
 import { binLabel } from './profile.js';
 import { ROWS_VIEW, type ColumnKind } from '../read/source.js';
-import type { SliceColumn, Split } from '../core/cell.js';
+import type { SliceColumn } from '../core/cell.js';
 import type { FloorEntry } from '../read/keyed-table.js';
-
-/** Pseudo-split values that mark rows the scan could not use; never valid split spellings. */
-export const STATUS_SPLITS = { 2: '!unlabelled', 3: '!score', 4: '!weight', 5: '!error' } as const;
-
-/**
- * The domain of a row's weight: 0, or a finite number from `min` to `max`. Over up to 1e12 rows every
- * sum stays finite (Σw ≤ 1e112, Σw² ≤ 1e212, (Σw)² ≤ 1e224) and every non-zero sum stays a normal number
- * (w² ≥ 1e-200); docs/method.md, "Weights".
- */
-export const WEIGHT_RANGE = { min: 1e-100, max: 1e100 } as const;
-
-/** What a valid weight is, in words, for messages. */
-export const WEIGHT_EXPECTED = 'a weight of 0 or between 1e-100 and 1e100';
-
-/**
- * SQL condition true when `w` (a double; NULL for a value that is not a number) is not a valid weight
- * ({@link WEIGHT_RANGE}). The one definition of a valid weight: the cell query's row status and the
- * query that locates the first bad row (load.ts) both use it.
- * @example
- * badWeightSql(dialect('duckdb'), 'w'); // => "(w IS NULL OR NOT (isfinite(w)) OR w < 0 OR w > 1e+100 OR (w > 0 AND w < 1e-100))"
- */
-export function badWeightSql(d: Dialect, w: string): string {
-  return `(${w} IS NULL OR NOT (${d.isFinite(w)}) OR ${w} < 0 OR ${w} > ${d.num(WEIGHT_RANGE.max)} OR (${w} > 0 AND ${w} < ${d.num(WEIGHT_RANGE.min)}))`;
-}
-
-const TRUE_WORDS = ['1', '1.0', 'true', 't', 'yes', 'y'];
-const FALSE_WORDS = ['0', '0.0', 'false', 'f', 'no', 'n'];
-/** Split spellings (trimmed, lower case) and the split each names. */
-export const SPLIT_SPELLINGS: readonly (readonly [string, Split])[] = [
-  ['train', 'train'],
-  ['train_dev', 'train_dev'],
-  ['train-dev', 'train_dev'],
-  ['traindev', 'train_dev'],
-  ['dev', 'dev'],
-  ['val', 'dev'],
-  ['valid', 'dev'],
-  ['validation', 'dev'],
-  ['test', 'test'],
-];
 
 /** How the query is written. */
 export interface CellQueryOptions {
@@ -133,7 +95,6 @@ export function cellQuery(plan: CellPlan, grouping: Grouping, options: CellQuery
   // a column's value as text, and as a number (NULL when it is not one)
   const raw = (col: string) => (kindOf(col) === 'text' ? id(col) : `CAST(${id(col)} AS ${T.text})`);
   const num = (col: string) => (kindOf(col) === 'number' ? `CAST(${id(col)} AS ${T.double})` : d.toNumber(raw(col)));
-  const trimmed = (expr: string) => `NULLIF(TRIM(${expr}), '')`;
   const { roles } = plan;
 
   // ---- level 1: per row ----
@@ -154,45 +115,19 @@ export function cellQuery(plan: CellPlan, grouping: Grouping, options: CellQuery
       row.push(`${id(c.name)} AS fg_r${i}`);
     }
   });
-  // status: 0 usable, 2 unlabelled, 3 bad score, 4 bad weight, 5 bad error value
-  const status: string[] = [];
+  // the row's status (row-status.ts: the one definition of a usable row) and its error
   const weighted = roles.weight !== null;
-  if (weighted) {
-    const w = num(roles.weight!);
-    status.push(`WHEN ${badWeightSql(d, w)} THEN 4`);
-    row.push(`${w} AS fg_w`);
-  }
-  // blank: empty after trimming; DuckDB first tests whether the value starts below '!' (cheap), so the
-  // trim runs on almost no rows
-  const blank = (x: string) => (d.name === 'duckdb' ? `(${x} < '!' AND TRIM(${x}) = '')` : `TRIM(${x}) = ''`);
-  if (roles.score) {
-    // a score is a finite number, or blank
-    const s = raw(roles.score);
-    status.push(
-      kindOf(roles.score) === 'number'
-        ? `WHEN NOT (${d.isFinite(num(roles.score))}) THEN 3`
-        : `WHEN NOT COALESCE(${d.isFinite(d.toNumber(s))}, ${s} IS NULL OR ${blank(s)}) THEN 3`,
-    );
-  }
-  let errorExpr: string;
-  if (roles.error) {
-    const e = `LOWER(${trimmed(raw(roles.error))})`;
-    const one = roles.errorIsCorrect ? FALSE_WORDS : TRUE_WORDS;
-    status.push(`WHEN ${e} IS NOT NULL AND ${e} NOT IN (${[...TRUE_WORDS, ...FALSE_WORDS].map(d.str).join(', ')}) THEN 5`);
-    status.push(`WHEN ${e} IS NULL THEN 2`);
-    errorExpr = `CASE WHEN ${e} IN (${one.map(d.str).join(', ')}) THEN 1 ELSE 0 END`;
-  } else {
-    const l = raw(roles.label!);
-    const p = raw(roles.pred!);
-    status.push(`WHEN ${l} IS NULL OR ${p} IS NULL OR ${blank(l)} OR ${blank(p)} THEN 2`);
-    // trimmed comparison only where the raw values differ; two numbers compare as numbers (1 = 1.0),
-    // except in ANSI SQL, which has no cast that returns NULL for text that is not a number
-    const sameNumber = d.name === 'ansi' ? '' : `WHEN ${d.toNumber(`TRIM(${l})`)} = ${d.toNumber(`TRIM(${p})`)} THEN 0 `;
-    errorExpr = `CASE WHEN ${l} = ${p} THEN 0 WHEN TRIM(${l}) = TRIM(${p}) THEN 0 ${sameNumber}ELSE 1 END`;
-  }
-  row.push(`CASE ${status.join(' ')} ELSE 0 END AS fg_st`);
+  if (weighted) row.push(`${num(roles.weight!)} AS fg_w`);
+  const rule = errorRule(d, roles, raw);
+  const status = statusSql({
+    badWeight: weighted ? badWeightSql(d, num(roles.weight!)) : undefined,
+    badScore: roles.score ? badScoreSql(d, raw(roles.score), kindOf(roles.score) === 'number' ? num(roles.score) : null) : undefined,
+    badError: rule.badError,
+    unlabelled: rule.unlabelled,
+  });
+  row.push(`${status} AS fg_st`);
   groupKeys.push('fg_st');
-  row.push(`${errorExpr} AS fg_e`);
+  row.push(`${rule.error} AS fg_e`);
 
   // floor- and cost-table entries: from the keys after the first GROUP BY when every key column is a
   // category column of a full cross; per row otherwise
@@ -203,29 +138,21 @@ export function cellQuery(plan: CellPlan, grouping: Grouping, options: CellQuery
   const costEntries = plan.costEntries ?? [];
   const floorLate = entriesLate(floorEntries);
   const costLate = entriesLate(costEntries);
-  const entryCase = (entries: readonly FloorEntry[], value: (col: string) => string) => {
-    if (entries.length === 0) return '-1';
-    const order = entries.map((e, i) => ({ e, i })).sort((a, b) => Object.keys(b.e.keys).length - Object.keys(a.e.keys).length || a.i - b.i);
-    const whens = order.map(({ e, i }) => {
-      const conds = Object.entries(e.keys).map(([col, v]) => (v === MISSING ? `${value(col)} IS NULL` : `${value(col)} = ${d.str(v)}`));
-      return `WHEN ${conds.length ? conds.join(' AND ') : '1 = 1'} THEN ${i}`;
-    });
-    return `CASE ${whens.join(' ')} ELSE -1 END`;
-  };
-  const rowValue = (col: string) => trimmed(raw(col));
+  const rowValue = (col: string) => trimmedSql(raw(col));
+  const rowEntry = (entries: readonly FloorEntry[]) => entrySql(d, entries, rowValue, (col) => `${rowValue(col)} IS NULL`);
   if (!floorLate) {
-    row.push(`${entryCase(floorEntries, rowValue)} AS fg_fe`);
+    row.push(`${rowEntry(floorEntries)} AS fg_fe`);
     groupKeys.push('fg_fe');
   }
   if (costEntries.length > 0 && !costLate) {
-    row.push(`${entryCase(costEntries, rowValue)} AS fg_ce`);
+    row.push(`${rowEntry(costEntries)} AS fg_ce`);
     groupKeys.push('fg_ce');
   }
 
   // annotator audit, per row (unweighted)
   const anns = plan.annotators ?? [];
   const classes = plan.classes ?? [];
-  const audit = anns.length > 0 ? auditParts(d, anns, classes, trimmed(raw(roles.label!)), (c) => trimmed(raw(c))) : null;
+  const audit = anns.length > 0 ? auditParts(d, anns, classes, trimmedSql(raw(roles.label!)), (c) => trimmedSql(raw(c))) : null;
   if (audit) row.push(...audit.level1);
 
   // ---- level 1 → first GROUP BY ----
@@ -260,18 +187,21 @@ export function cellQuery(plan: CellPlan, grouping: Grouping, options: CellQuery
   // ---- level 2: per first-level group ----
   // the first level keeps each key in its column's type; text from here on
   const text2 = (alias: string, col: string) => (kindOf(col) === 'text' ? alias : `CAST(${alias} AS ${T.text})`);
-  const splitText = `TRIM(${text2('fg_rs', plan.splitColumn)})`;
-  const normSplit = `CASE LOWER(${splitText}) ${SPLIT_SPELLINGS.map(([from, to]) => `WHEN ${d.str(from)} THEN ${d.str(to)}`).join(' ')} ELSE COALESCE(${splitText}, '') END`;
-  const statusSplit = `CASE fg_st ${Object.entries(STATUS_SPLITS).map(([k, v]) => `WHEN ${k} THEN ${d.str(v)}`).join(' ')} ELSE ${normSplit} END`;
+  // the split by its canonical name; rows left out carry their status as a pseudo-split, and a value
+  // that is no split is kept as written (for the error that lists them)
+  const splitText = text2('fg_rs', plan.splitColumn);
+  const normSplit = splitSql(d, splitText, `COALESCE(TRIM(${splitText}), '')`);
+  const problems = Object.entries(STATUS_SPLITS) as [RowProblem, string][];
+  const statusSplit = `CASE fg_st ${problems.map(([p, v]) => `WHEN ${ROW_STATUS[p]} THEN ${d.str(v)}`).join(' ')} ELSE ${normSplit} END`;
   const norm: string[] = [`${statusSplit} AS fg_split`];
-  norm.push(plan.runColumn ? `COALESCE(${trimmed(text2('fg_rr', plan.runColumn))}, ${d.str(MISSING)}) AS fg_run` : `CAST(NULL AS ${T.text}) AS fg_run`);
+  norm.push(plan.runColumn ? `COALESCE(${trimmedSql(text2('fg_rr', plan.runColumn))}, ${d.str(MISSING)}) AS fg_run` : `CAST(NULL AS ${T.text}) AS fg_run`);
   const keyValue = (i: number) => {
     const c = plan.columns[i];
     if (isBinned(c)) {
       const labels = Array.from({ length: c.edges!.length + 1 }, (_, b) => `WHEN ${b + 1} THEN ${d.str(binLabel(c.edges!, b))}`);
       return `CASE fg_r${i} ${labels.join(' ')} ELSE ${d.str(MISSING)} END`;
     }
-    return `COALESCE(${trimmed(text2(`fg_r${i}`, c.name))}, ${d.str(MISSING)})`;
+    return `COALESCE(${trimmedSql(text2(`fg_r${i}`, c.name))}, ${d.str(MISSING)})`;
   };
   plan.columns.forEach((_, i) => {
     const v = keyValue(i);
@@ -279,18 +209,8 @@ export function cellQuery(plan: CellPlan, grouping: Grouping, options: CellQuery
   });
   // entries from the trimmed keys: a missing value is `(missing)` there
   const lateValue = (col: string) => keyValue(keyIndex(col));
-  const lateCase = (entries: readonly FloorEntry[]) => {
-    if (entries.length === 0) return '-1';
-    // a missing value is `(missing)` among the trimmed keys, so an entry for it compares equal
-    const order = entries
-      .map((e, i) => ({ e, i }))
-      .sort((a, b) => Object.keys(b.e.keys).length - Object.keys(a.e.keys).length || a.i - b.i);
-    const whens = order.map(({ e, i }) => {
-      const conds = Object.entries(e.keys).map(([col, v]) => `${lateValue(col)} = ${d.str(v)}`);
-      return `WHEN ${conds.length ? conds.join(' AND ') : '1 = 1'} THEN ${i}`;
-    });
-    return `CASE ${whens.join(' ')} ELSE -1 END`;
-  };
+  // a missing value is `(missing)` among the trimmed keys, so an entry for it compares equal
+  const lateCase = (entries: readonly FloorEntry[]) => entrySql(d, entries, lateValue, (col) => `${lateValue(col)} = ${d.str(MISSING)}`);
   norm.push(`${floorLate ? lateCase(floorEntries) : 'fg_fe'} AS fg_floor_entry`);
   if (costEntries.length > 0) norm.push(`${costLate ? lateCase(costEntries) : 'fg_ce'} AS fg_cost_entry`);
   const w1 = weighted ? 'fg_sw' : `CAST(fg_n AS ${T.double})`;

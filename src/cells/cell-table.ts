@@ -3,7 +3,8 @@
  * every sufficient statistic in a typed array. Rolling cells up into slices is then a loop over
  * integer keys (see rollup.ts), and the cells cost a few dozen bytes each however many there are.
  */
-import { SPLITS, type AuditSums, type Cell, type Split } from '../core/cell.js';
+import { type AuditSums, type Cell } from '../core/cell.js';
+import { SPLITS, type Split } from '../core/split.js';
 
 /** Audit sums in columns: `fields[f][i]` is field f of cell i (see {@link auditFieldCount} for the order). */
 export interface AuditColumns {

@@ -4,15 +4,17 @@
  * are summed. The cells enter the flow where the scan's cells would: the result is a `Loaded`.
  * Format: docs/formats.md, "Cells".
  */
-import { AUDIT_COLUMNS, WEIGHT_EXPECTED, WEIGHT_RANGE } from './cell-query.js';
-import type { CellPlan, Grouping } from './scan.js';
+import { AUDIT_COLUMNS } from './cell-query.js';
+import { ERROR_WORDS_EXPECTED, problemOfSplit, STATUS_SPLITS, WEIGHT_EXPECTED, WEIGHT_RANGE } from './row-status.js';
+import type { CellPlan, Grouping } from './plan.js';
 import { unknownSplitError } from './scan.js';
 import type { Duck } from '../sql/duck.js';
 import { checkSplitWeights, splitTotals, withCells, type Loaded } from './load.js';
 import { readCells } from './read-cells.js';
 import { runsOf } from './cell-table.js';
 import { ident } from '../sql/quote.js';
-import { SPLITS, type SliceColumn, type Split } from '../core/cell.js';
+import type { SliceColumn } from '../core/cell.js';
+import { SPLITS, type Split } from '../core/split.js';
 import { describeColumns, detectTable, readError, tableSql, type TableInput } from '../read/table.js';
 import { COST_RANGE } from '../read/keyed-table.js';
 import { error } from '../core/errors.js';
@@ -359,10 +361,11 @@ export async function loadCellFiles(duck: Duck, paths: readonly string[], by: re
   const warnings: string[] = [];
   const unknown = new Map<string, number>();
   for (const [raw, n] of other) {
-    if (raw === '!unlabelled') warnings.push(`${n} rows with an empty label or prediction were left out`);
-    else if (raw === '!weight') throw error(`${where}: ${n} rows have a bad weight (fg_split "!weight"), expected ${WEIGHT_EXPECTED}; fix them in the table the cells came from`);
-    else if (raw === '!score') throw error(`${where}: ${n} rows have a score that is not a number (fg_split "!score"); fix them in the table the cells came from`);
-    else if (raw === '!error') throw error(`${where}: ${n} rows have an error value that is not 0 or 1 (fg_split "!error"); fix them in the table the cells came from`);
+    const problem = problemOfSplit(raw);
+    if (problem === 'unlabelled') warnings.push(`${n} rows with an empty label or prediction were left out`);
+    else if (problem === 'badWeight') throw error(`${where}: ${n} rows have a bad weight (fg_split "${raw}"), expected ${WEIGHT_EXPECTED}; fix them in the table the cells came from`);
+    else if (problem === 'badScore') throw error(`${where}: ${n} rows have a score that is not a number (fg_split "${raw}"); fix them in the table the cells came from`);
+    else if (problem === 'badError') throw error(`${where}: ${n} rows have an error value that is not ${ERROR_WORDS_EXPECTED} (fg_split "${raw}"); fix them in the table the cells came from`);
     else unknown.set(raw, n);
   }
   if (unknown.size > 0) throw unknownSplitError(where, 'fg_split', unknown);
@@ -377,9 +380,9 @@ export async function loadCellFiles(duck: Duck, paths: readonly string[], by: re
   if (grouping.kind === 'sets') grouping = { kind: 'sets', sets: [...sets.values()] };
   const totals = splitTotals(table);
   const counts = totals.rows;
-  const leftOut = other.get('!unlabelled') ?? 0;
+  const leftOut = other.get(STATUS_SPLITS.unlabelled) ?? 0;
   if (leftOut > 0 && SPLITS.every((s) => counts[s] === 0)) {
-    throw error(`${where}: every row was left out: ${leftOut} rows have an empty label or prediction (fg_split "!unlabelled"); expected class labels in both columns`);
+    throw error(`${where}: every row was left out: ${leftOut} rows have an empty label or prediction (fg_split "${STATUS_SPLITS.unlabelled}"); expected class labels in both columns`);
   }
   for (const required of ['train', 'dev'] as const) {
     if (counts[required] === 0) {

@@ -1,5 +1,8 @@
-import { errorSql, keySql, readCellResult, scanCells, unknownSplitError, type CellPlan, type Grouping, type ScanIssues } from './scan.js';
-import { badWeightSql, cellQuery, SPLIT_SPELLINGS, WEIGHT_EXPECTED } from './cell-query.js';
+import { readCellResult, scanCells, unknownSplitError, type ScanIssues } from './scan.js';
+import type { CellPlan, Grouping } from './plan.js';
+import { cellQuery } from './cell-query.js';
+import { badScoreSql, badWeightSql, ERROR_WORDS_EXPECTED, WEIGHT_EXPECTED } from './row-status.js';
+import { keySql, rowError, rowWeight } from './row-sql.js';
 import { dialect } from '../sql/dialect.js';
 import { concatTables, tableCells, type CellTable } from './cell-table.js';
 import type { Duck } from '../sql/duck.js';
@@ -9,7 +12,8 @@ import { resolveRoles, roleColumns, type RoleOptions, type Roles } from '../read
 import { checkWhere, openSource, ROWS_VIEW, type Source, type SourceSpec } from '../read/source.js';
 import { safeWhere } from '../sql/where.js';
 import { ident } from '../sql/quote.js';
-import { SPLITS, type Cell, type SliceColumn, type Split } from '../core/cell.js';
+import type { Cell, SliceColumn } from '../core/cell.js';
+import { normalizeSplit, SPLITS, type Split } from '../core/split.js';
 import { cellIndicesFor, runsOf } from './cell-table.js';
 import { textSql } from './profile.js';
 import { cacheKey, readCache, writeCache } from './cache.js';
@@ -458,17 +462,16 @@ export function pairSets(names: readonly string[], by: readonly string[] | null)
 
 async function checkIssues(duck: Duck, source: Source, roles: Roles, plan: CellPlan, issues: ScanIssues, warnings: string[]): Promise<void> {
   if (issues.badWeight > 0) {
-    const at = await firstBadRow(duck, source, badWeightSql(dialect('duckdb'), `TRY_CAST(trim("${esc(roles.weight!)}") AS DOUBLE)`), roles.weight!, plan.where);
+    const at = await firstBadRow(duck, source, badWeightSql(dialect('duckdb'), rowWeight(roles)), roles.weight!, plan.where);
     throw error(`${at}column "${roles.weight}": expected ${WEIGHT_EXPECTED}, got "${at.value}" (${plural(issues.badWeight, "row")} like it)`);
   }
   if (issues.badScore > 0) {
-    const at = await firstBadRow(duck, source, `NULLIF(trim("${esc(roles.score!)}"), '') IS NOT NULL AND (TRY_CAST(trim("${esc(roles.score!)}") AS DOUBLE) IS NULL OR isinf(TRY_CAST(trim("${esc(roles.score!)}") AS DOUBLE)) OR isnan(TRY_CAST(trim("${esc(roles.score!)}") AS DOUBLE)))`, roles.score!, plan.where);
+    const at = await firstBadRow(duck, source, badScoreSql(dialect('duckdb'), ident(roles.score!)), roles.score!, plan.where);
     throw error(`${at}column "${roles.score}": expected a number (model confidence), got "${at.value}" (${plural(issues.badScore, "row")} like it)`);
   }
   if (issues.badError > 0) {
-    const e = `lower(NULLIF(trim("${esc(roles.error!)}"), ''))`;
-    const at = await firstBadRow(duck, source, `${e} IS NOT NULL AND ${e} NOT IN ('1','1.0','true','t','yes','y','0','0.0','false','f','no','n')`, roles.error!, plan.where);
-    throw error(`${at}column "${roles.error}": expected 0 or 1 (or true/false), got "${at.value}" (${plural(issues.badError, "row")} like it)`);
+    const at = await firstBadRow(duck, source, rowError(roles).badError, roles.error!, plan.where);
+    throw error(`${at}column "${roles.error}": expected ${ERROR_WORDS_EXPECTED}, got "${at.value}" (${plural(issues.badError, "row")} like it)`);
   }
   if (issues.unknownSplits.size > 0) throw unknownSplitError(source.where, plan.splitColumn, issues.unknownSplits);
   if (issues.unlabelled > 0) {
@@ -486,19 +489,18 @@ async function checkLeftOut(duck: Duck, where: string, plan: CellPlan, counts: R
   const { roles } = plan;
   const what = roles.error ? `an empty "${roles.error}"` : `an empty "${roles.label}" or "${roles.pred}"`;
   if (SPLITS.every((s) => counts[s] === 0)) {
-    const expected = roles.error ? '0 or 1 (or true/false) in it' : 'class labels in both columns';
+    const expected = roles.error ? `${ERROR_WORDS_EXPECTED} in it` : 'class labels in both columns';
     throw error(`${where}: every row was left out: ${plural(unlabelled, 'row')} ${unlabelled === 1 ? 'has' : 'have'} ${what}; expected ${expected}`);
   }
   const missing = (['train', 'dev'] as const).filter((s) => counts[s] === 0);
   if (missing.length === 0) return;
   const filter = plan.where ? ` AND (${plan.where})` : '';
   const rows = await duck.all(
-    `SELECT lower(trim(${ident(plan.splitColumn)})) AS s, count(*) AS n FROM ${ROWS_VIEW} WHERE ${errorSql(roles).unlabelled}${filter} GROUP BY 1`,
+    `SELECT ${ident(plan.splitColumn)} AS s, count(*) AS n FROM ${ROWS_VIEW} WHERE ${rowError(roles).unlabelled}${filter} GROUP BY 1`,
   );
-  const spelling = new Map<string, Split>(SPLIT_SPELLINGS);
   const left: Record<Split, number> = { train: 0, train_dev: 0, dev: 0, test: 0 };
   for (const r of rows) {
-    const split = spelling.get(String(r.s));
+    const split = r.s === null ? null : normalizeSplit(String(r.s));
     if (split) left[split] += Number(r.n);
   }
   for (const s of missing) {
@@ -509,10 +511,6 @@ async function checkLeftOut(duck: Duck, where: string, plan: CellPlan, counts: R
 /** Names for a message: at most three, quoted, then "…". */
 function someNames(names: readonly string[]): string {
   return names.slice(0, 3).map((c) => JSON.stringify(c)).join(', ') + (names.length > 3 ? ', …' : '');
-}
-
-function esc(name: string): string {
-  return name.replace(/"/g, '""');
 }
 
 export type { FloorEntry };

@@ -6,6 +6,9 @@
 import type { AuditColumns, CellTable } from './cell-table.js';
 import type { Duck } from '../sql/duck.js';
 import { ident, literal } from '../sql/quote.js';
+import { dialect } from '../sql/dialect.js';
+import { SPLITS } from '../core/split.js';
+import { splitSql } from './row-status.js';
 import { error } from '../core/errors.js';
 
 /** Where each part of a cell sits among the columns of the source. */
@@ -23,19 +26,6 @@ export interface CellSourceColumns {
   readonly limit?: number;
 }
 
-/** Split spellings (after trimming and lower-casing) and the split index each stands for. */
-const SPLIT_CODES: readonly (readonly [string, number])[] = [
-  ['train', 0],
-  ['train_dev', 1],
-  ['train-dev', 1],
-  ['traindev', 1],
-  ['dev', 2],
-  ['val', 2],
-  ['valid', 2],
-  ['validation', 2],
-  ['test', 3],
-];
-
 let tempCounter = 0;
 
 /**
@@ -51,7 +41,8 @@ export async function readCells(
   src: CellSourceColumns,
 ): Promise<{ table: CellTable; other: Map<string, number> }> {
   const tmp = `fg_cells_${process.pid}_${tempCounter++}`;
-  const splitCode = `CASE lower(trim(CAST(${ident(src.split)} AS VARCHAR))) ${SPLIT_CODES.map(([s, c]) => `WHEN ${literal(s)} THEN ${c}`).join(' ')} END`;
+  // the split's index in SPLITS, from any accepted spelling (NULL for anything else)
+  const splitCode = `CASE ${splitSql(dialect('duckdb'), `CAST(${ident(src.split)} AS VARCHAR)`)} ${SPLITS.map((s, i) => `WHEN ${literal(s)} THEN ${i}`).join(' ')} END`;
   await duck.run(`CREATE TEMP TABLE ${tmp} AS SELECT *, ${splitCode} AS fg_split_code FROM ${from}`);
   try {
     if (src.limit !== undefined) {

@@ -5,7 +5,7 @@
  * gives when they are not known.
  */
 import { cellQuery } from './cell-query.js';
-import type { CellPlan, Grouping } from './scan.js';
+import type { CellPlan, Grouping } from './plan.js';
 import { dialect as dialectOf, type Dialect, type DialectName } from '../sql/dialect.js';
 import type { Duck } from '../sql/duck.js';
 import { pairSets, planScan, type LoadOptions, type ScanPlan } from './load.js';

@@ -1,6 +1,4 @@
-/** The four evaluation sets a row can belong to (see shared/GLOSSARY.md). */
-export type Split = 'train' | 'train_dev' | 'dev' | 'test';
-export const SPLITS: readonly Split[] = ['train', 'train_dev', 'dev', 'test'];
+import type { Split } from './split.js';
 
 /**
  * One cell: sufficient statistics for the rows sharing one value of every cell column and one split.

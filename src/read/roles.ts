@@ -1,5 +1,4 @@
 import { error } from '../core/errors.js';
-import type { Split } from '../core/cell.js';
 
 /** The role a column can play. Every other column is metadata and may become a slice column. */
 export type Role = 'label' | 'pred' | 'error' | 'split' | 'id' | 'score' | 'weight' | 'run';
@@ -129,27 +128,3 @@ export function roleColumns(roles: Roles): string[] {
     (c): c is string => c !== null,
   );
 }
-
-const SPLIT_SPELLINGS: Record<string, Split> = {
-  train: 'train',
-  train_dev: 'train_dev',
-  'train-dev': 'train_dev',
-  traindev: 'train_dev',
-  dev: 'dev',
-  val: 'dev',
-  valid: 'dev',
-  validation: 'dev',
-  test: 'test',
-};
-
-/**
- * Normalises a split value (case and surrounding space ignored); null for an unknown value.
- * @example
- * normalizeSplit(' Validation '); // => 'dev'
- */
-export function normalizeSplit(raw: string): Split | null {
-  return SPLIT_SPELLINGS[raw.trim().toLowerCase()] ?? null;
-}
-
-/** The accepted spellings, for messages. */
-export const SPLIT_HELP = 'train, train_dev (train-dev, traindev), dev (val, valid, validation), test';

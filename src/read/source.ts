@@ -1,7 +1,7 @@
 import { stat } from 'node:fs/promises';
 import type { Duck } from '../sql/duck.js';
 import { ident, literal } from '../sql/quote.js';
-import type { Split } from '../core/cell.js';
+import type { Split } from '../core/split.js';
 import { checkColumnNames, describeColumns, detectTable, headerNames, pinnedCsvSql, tableSql, type TableInput } from './table.js';
 import { withReadErrors } from './read-errors.js';
 import { error } from '../core/errors.js';

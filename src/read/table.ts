@@ -2,7 +2,7 @@ import { open, stat } from 'node:fs/promises';
 import { gunzipSync } from 'node:zlib';
 import type { Duck } from '../sql/duck.js';
 import { ident, literal } from '../sql/quote.js';
-import type { Split } from '../core/cell.js';
+import type { Split } from '../core/split.js';
 import { error } from '../core/errors.js';
 import { badJsonLine, readError } from './read-errors.js';
 

@@ -4,7 +4,7 @@
  * spreadsheet (a leading `=`, `+`, `-`, `@`, tab or CR gets a `'`) and to print in a terminal
  * (controls other than tab, CR and LF become visible escapes; a field holding one of those three is quoted).
  */
-import type { Split } from '../core/cell.js';
+import type { Split } from '../core/split.js';
 import type { Gap, Report, SliceReport } from '../triage/types.js';
 import { plainNumber } from './format.js';
 import { sanitize } from '../terminal/sanitize.js';

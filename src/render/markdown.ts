@@ -3,7 +3,7 @@
  * per slice. Every data string is sanitized (no live controls) and then escaped so it can neither break
  * the table nor turn into markup.
  */
-import type { Split } from '../core/cell.js';
+import type { Split } from '../core/split.js';
 import type { Gap, Report, SliceReport } from '../triage/types.js';
 import { count, levelPercent, NULL_MARK, percent, points, pointsInterval, signedPoints } from './format.js';
 import { sanitize } from '../terminal/sanitize.js';

@@ -3,7 +3,7 @@
  * warnings), the slice table fitted to the terminal width, and a legend. Colour is decoration only:
  * without it the output reads the same (flag mark `*`, focus spelled out).
  */
-import type { Split } from '../core/cell.js';
+import type { Split } from '../core/split.js';
 import type { Focus, Gap, Report, SliceReport } from '../triage/types.js';
 import { paint, type Style } from '../terminal/ansi.js';
 import {

@@ -1,5 +1,6 @@
-import type { CellPlan } from '../cells/scan.js';
-import { errorSql, keySql } from '../cells/scan.js';
+import type { CellPlan } from '../cells/plan.js';
+import { keySql, rowError, rowInSplits, rowStatus } from '../cells/row-sql.js';
+import { ROW_STATUS } from '../cells/row-status.js';
 import type { Duck } from '../sql/duck.js';
 import { textSql } from '../cells/profile.js';
 import { ROWS_VIEW, whereSql } from '../read/source.js';
@@ -12,8 +13,6 @@ export interface ErrorExample {
   readonly pred: string | null;
   readonly score: number | null;
 }
-
-const DEV_SPELLINGS = ['dev', 'val', 'valid', 'validation'];
 
 /**
  * The slice's dev rows the model got wrong with the highest confidence (score descending): the rows
@@ -32,9 +31,9 @@ export async function topErrors(
   const { roles } = plan;
   const conds = [
     whereSql(plan.where),
-    `lower(${textSql(plan.splitColumn)}) IN (${DEV_SPELLINGS.map(literal).join(', ')})`,
-    `(${errorSql(roles).error}) = 1`,
-    `NOT ${errorSql(roles).unlabelled}`,
+    rowInSplits(plan.splitColumn, ['dev']),
+    `${rowStatus(roles)} = ${ROW_STATUS.usable}`,
+    `(${rowError(roles).error}) = 1`,
   ];
   for (const [name, value] of Object.entries(key)) {
     const col = plan.columns.find((c) => c.name === name);

@@ -4,11 +4,13 @@
  * likely label errors come first. DuckDB streams it into a file with `COPY (…) TO`; nothing is loaded
  * into JavaScript. Pure: builds strings only.
  */
-import { keySql, rowSql, MISSING, type CellPlan } from '../cells/scan.js';
+import { MISSING, type CellPlan } from '../cells/plan.js';
+import { keySql, rowError, rowSplit } from '../cells/row-sql.js';
 import { textSql } from '../cells/profile.js';
 import { ROWS_VIEW, whereSql } from '../read/source.js';
 import { ident, literal } from '../sql/quote.js';
-import type { SliceColumn, Split } from '../core/cell.js';
+import type { SliceColumn } from '../core/cell.js';
+import type { Split } from '../core/split.js';
 
 /** The columns export adds to every row, after the original columns. */
 export const EXPORT_COLUMNS = ['fg_slice', 'fg_focus', 'fg_rank', 'fg_split', 'fg_reason'] as const;
@@ -65,18 +67,6 @@ export function neutralizeSql(expr: string): string {
   return `CASE WHEN regexp_matches(${expr}, ${literal(FORMULA_START)}) AND NOT regexp_full_match(${expr}, ${literal(NUMBER_PATTERN)}) THEN '''' || ${expr} ELSE ${expr} END`;
 }
 
-/** SQL for the normalised split of a row from its scan status (NULL for rows the analysis left out, e.g. without a label). */
-function splitSql(status: string): string {
-  const spellings: Record<Split, readonly string[]> = {
-    train: ['train'],
-    train_dev: ['train_dev', 'train-dev', 'traindev'],
-    dev: ['dev', 'val', 'valid', 'validation'],
-    test: ['test'],
-  };
-  const whens = Object.entries(spellings).map(([split, words]) => `WHEN lower(trim(${status})) IN (${words.map(literal).join(', ')}) THEN ${literal(split)}`);
-  return `CASE ${whens.join(' ')} END`;
-}
-
 /**
  * A row's annotator dissent: the share of its annotator labels that differ from its label; NULL
  * when no annotator labelled it.
@@ -117,7 +107,6 @@ function selectedSql(q: ExportQuery): string {
   const keys = keyColumns(q);
   const cols = q.columns.map(ident);
   const score = q.plan.roles.score ? `TRY_CAST(${textSql(q.plan.roles.score)} AS DOUBLE)` : 'NULL::DOUBLE';
-  const row = rowSql({ ...q.plan, columns: [], floorEntries: [], defaultFloor: 0 });
   const run = q.run ? ` AND COALESCE(${textSql(q.run.column)}, ${literal(MISSING)}) = ${literal(q.run.value)}` : '';
   const members = q.slices.map((s, i) => {
     const conds = Object.entries(s.key).map(([c, v]) => `${keys.find((k) => k.name === c)!.alias} = ${literal(v)}`);
@@ -127,10 +116,10 @@ function selectedSql(q: ExportQuery): string {
   const best = flags.length ? `CASE ${flags.map((m, i) => `WHEN ${m} THEN ${i}`).join(' ')} END` : 'NULL::INTEGER';
   const splitList = q.splits.map(literal).join(', ');
   const base = `SELECT
-    ${[...cols, `${row.status} AS __fg_status`, `${row.error} AS __fg_e`, `${score} AS __fg_score`, `${dissentSql(q.plan)} AS __fg_dissent`, ...keys.map((k) => `${k.sql} AS ${k.alias}`)].join(',\n    ')}
+    ${[...cols, `${rowSplit(q.plan.roles, q.plan.splitColumn)} AS __fg_split`, `${rowError(q.plan.roles).error} AS __fg_e`, `${score} AS __fg_score`, `${dissentSql(q.plan)} AS __fg_dissent`, ...keys.map((k) => `${k.sql} AS ${k.alias}`)].join(',\n    ')}
   FROM ${ROWS_VIEW}
   WHERE ${whereSql(q.plan.where)}${run}`;
-  const member = `SELECT *, ${splitSql('__fg_status')} AS __fg_split, ${members.length ? members.join(', ') : 'FALSE AS __fg_none'} FROM (${base})`;
+  const member = `SELECT *, ${members.length ? members.join(', ') : 'FALSE AS __fg_none'} FROM (${base})`;
   const chosen = `SELECT *,
     row_number() OVER () AS __fg_i,
     ${best} AS __fg_best,

@@ -1,5 +1,8 @@
 import type { Duck } from '../sql/duck.js';
-import { errorSql, keySql } from '../cells/scan.js';
+import { keySql, rowError, rowInSplits } from '../cells/row-sql.js';
+import { errorRule, inSplitsSql } from '../cells/row-status.js';
+import { dialect } from '../sql/dialect.js';
+import { ident } from '../sql/quote.js';
 import type { Loaded } from '../cells/load.js';
 import { textSql } from '../cells/profile.js';
 import { resolveRoles, type RoleOptions } from '../read/roles.js';
@@ -17,8 +20,6 @@ export interface PairedSums {
   readonly worse: number;
   readonly better: number;
 }
-
-const DEV_SPELLINGS = ['dev', 'val', 'valid', 'validation'];
 
 /**
  * Fails when an id appears more than once among the dev rows of one side (`from`: a relation with an
@@ -56,8 +57,8 @@ export async function pairedCounts(
   }
   const splitCol = baseCols.includes(loaded.roles.split ?? '') ? loaded.roles.split : baseCols.find((c) => c.toLowerCase() === 'split') ?? null;
   // a row the report leaves out (an empty label or prediction, or an empty error value) pairs with nothing
-  const base = errorSql(baseRoles);
-  const baseDev = splitCol ? `lower(${textSql(splitCol)}) IN (${DEV_SPELLINGS.map(literal).join(', ')})` : 'TRUE';
+  const base = errorRule(dialect('duckdb'), baseRoles, ident);
+  const baseDev = splitCol ? inSplitsSql(dialect('duckdb'), ident(splitCol), ['dev']) : 'TRUE';
   try {
     await duck.run(
       `CREATE OR REPLACE TEMP VIEW fg_base AS SELECT ${textSql(baseId)} AS fg_id, CASE WHEN ${base.unlabelled} THEN NULL ELSE ${base.error} END AS fg_eb, 1 AS fg_in FROM ${expr} WHERE ${baseDev} AND ${textSql(baseId)} IS NOT NULL`,
@@ -73,11 +74,10 @@ export async function pairedCounts(
     if (!col) throw new Error(`paired: unknown slice column ${name}`);
     return col;
   });
-  const splitExpr = `lower(${textSql(loaded.roles.split ?? '__fg_split')})`;
   const runFilter = run !== null && loaded.roles.run ? ` AND ${textSql(loaded.roles.run)} = ${literal(run)}` : '';
-  const now = errorSql(loaded.roles);
+  const now = rowError(loaded.roles);
   const keys = columns.map((c, i) => `${keySql(c)} AS k${i}`);
-  const devRows = `${ROWS_VIEW} WHERE ${whereSql(where)} AND ${splitExpr} IN (${DEV_SPELLINGS.map(literal).join(', ')})${runFilter}`;
+  const devRows = `${ROWS_VIEW} WHERE ${whereSql(where)} AND ${rowInSplits(loaded.roles.split ?? '__fg_split', ['dev'])}${runFilter}`;
   await uniqueIds(duck, `(SELECT ${textSql(idCol)} AS fg_id FROM ${devRows}) cur WHERE fg_id IS NOT NULL`, loaded.source.where);
   const current = `SELECT ${textSql(idCol)} AS fg_id, ${now.error} AS fg_en${keys.length ? ', ' + keys.join(', ') : ''} FROM ${devRows} AND NOT ${now.unlabelled}`;
   const sets = ['()', ...groupings.map((g) => `(${g.map((name) => `k${columns.findIndex((c) => c.name === name)}`).join(', ')})`)];

@@ -1,5 +1,6 @@
 import { auditFromFields, cellIndicesFor, selectCells, type CellTable } from '../cells/cell-table.js';
-import { SPLITS, type AuditSums, type Cell, type Split } from '../core/cell.js';
+import { type AuditSums, type Cell } from '../core/cell.js';
+import { SPLITS, type Split } from '../core/split.js';
 
 /** Sums of one split of one slice. */
 export interface SplitSums {

@@ -1,6 +1,6 @@
 import type { SliceStats, SplitSums } from '../slices/rollup.js';
-import type { Split } from '../core/cell.js';
-import { SPLITS } from '../core/cell.js';
+import type { Split } from '../core/split.js';
+import { SPLITS } from '../core/split.js';
 import {
   benjaminiHochberg,
   benjaminiYekutieli,

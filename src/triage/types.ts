@@ -1,4 +1,4 @@
-import type { Split } from '../core/cell.js';
+import type { Split } from '../core/split.js';
 
 /** A rate with its confidence interval; `n` is the effective number of rows (Kish) behind it. */
 export interface Rate {

@@ -3,7 +3,8 @@
  * rows sharing one slice key, one split and one floor entry; these builders write them from counts so
  * that a test can state "450 errors in 5,000 train rows at floor 2 %" and nothing else.
  */
-import type { Cell, Split } from '../../src/core/cell.js';
+import type { Cell } from '../../src/core/cell.js';
+import type { Split } from '../../src/core/split.js';
 import type { ReportContext } from '../../src/triage/report.js';
 import { DEFAULT_TRIAGE_OPTIONS, type TriageOptions } from '../../src/triage/types.js';
 

@@ -4,7 +4,7 @@
  * by hand. Slices cover every focus, a slice without train_dev (mismatch null, variance = dev − train),
  * a slice without test rows (dev overfit null) and a thin slice with null gaps, headroom and yield.
  */
-import type { Split } from '../../src/core/cell.js';
+import type { Split } from '../../src/core/split.js';
 import type { Focus, Gap, Rate, Report, SliceReport } from '../../src/triage/types.js';
 
 function rate(value: number, lo: number, hi: number, n: number): Rate {

@@ -1,6 +1,7 @@
 /** Roles. Expected values are hand-counted from the fixture: the column lists given to resolveRoles. */
 import { describe, expect, it } from 'vitest';
-import { normalizeSplit, resolveRoles, roleColumns, SPLIT_HELP, type Roles } from '../../src/read/roles.js';
+import { resolveRoles, roleColumns, type Roles } from '../../src/read/roles.js';
+import { normalizeSplit, SPLIT_HELP } from '../../src/core/split.js';
 import { FloorgapError } from '../../src/core/errors.js';
 
 function thrown(f: () => unknown): FloorgapError {

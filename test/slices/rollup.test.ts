@@ -5,7 +5,8 @@
 import { describe, expect, it } from 'vitest';
 import { cellsToTable, tableCells } from '../../src/cells/cell-table.js';
 import { cellsFor, rollupSlices } from '../../src/slices/rollup.js';
-import { SPLITS, type Cell } from '../../src/core/cell.js';
+import { type Cell } from '../../src/core/cell.js';
+import { SPLITS } from '../../src/core/split.js';
 import { prng } from '../helpers/engine-fixture.js';
 
 const COLUMNS = ['a', 'b', 'c'];

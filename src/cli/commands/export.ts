@@ -1,8 +1,7 @@
 import type { Argv } from 'yargs';
 import { EXPORT_COLUMNS, exportCountSql, exportSql, type ExportQuery } from '../../rows/export-sql.js';
 import { openSource } from '../../read/source.js';
-import { normalizeSplit } from '../../read/roles.js';
-import { SPLITS, type Split } from '../../core/cell.js';
+import { normalizeSplit, SPLITS, type Split } from '../../core/split.js';
 import { exportFormatFor, checkOutput, fingerprint, manifestPathFor, writeExport, type ExportHooks } from '../../output/export-file.js';
 import { tempPathFor } from '../../output/write-atomic.js';
 import { sanitize } from '../../terminal/sanitize.js';
