@@ -1,4 +1,6 @@
 import { describe, expect, it } from 'vitest';
+import { csvField, demoFloorCsvLines, demoRowsToCsvLines } from '../../src/demo/csv.js';
+import { generateDemoRows } from '../../src/demo/draws.js';
 import {
   DEMO_AUDIT,
   DEMO_CLASSES,
@@ -10,15 +12,11 @@ import {
   DEMO_MAX_RUNS,
   DEMO_PACKAGES,
   DEMO_PLANTS,
-  csvField,
   demoColumns,
   demoErrorProbability,
-  demoFloorCsvLines,
   demoFloorTable,
   demoInspectorErrorProbability,
-  demoRowsToCsvLines,
   demoRunTrainRows,
-  generateDemoRows,
   type DemoClass,
   type DemoInspector,
   type DemoLighting,
@@ -26,7 +24,7 @@ import {
   type DemoRow,
   type DemoSplit,
   type DemoStation,
-} from '../../src/demo/generate.js';
+} from '../../src/demo/scenario.js';
 import { Random, deriveSeed } from '../../src/demo/random.js';
 
 const take = (rows: number, seed: number): DemoRow[] => [...generateDemoRows({ rows, seed })];

@@ -3,7 +3,9 @@ import { mkdtemp, readFile, readdir, rm, writeFile } from 'node:fs/promises';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { afterAll, describe, expect, it } from 'vitest';
-import { DEMO_DEFAULTS, demoFloorCsvLines, demoRowsToCsvLines, generateDemoRows } from '../../src/demo/generate.js';
+import { demoFloorCsvLines, demoRowsToCsvLines } from '../../src/demo/csv.js';
+import { generateDemoRows } from '../../src/demo/draws.js';
+import { DEMO_DEFAULTS } from '../../src/demo/scenario.js';
 import { writeDemo } from '../../src/demo/write-demo.js';
 
 const root = await mkdtemp(join(tmpdir(), 'floorgap-demo-'));

@@ -1,0 +1,65 @@
+/**
+ * The demo files as CSV lines: the prediction table (`solder-joints.csv`) and the inspector floors
+ * (`inspector-floors.csv`).
+ */
+import { DEMO_COLUMNS, demoColumns, demoFloorTable, type DemoRow } from './scenario.js';
+
+/**
+ * One CSV field: quoted (with inner quotes doubled) when it holds a comma, quote, line break, or
+ * leading/trailing space; otherwise as is.
+ */
+export function csvField(value: string | number): string {
+  const s = String(value);
+  return /[",\r\n]|^\s|\s$/.test(s) ? `"${s.replace(/"/g, '""')}"` : s;
+}
+
+/**
+ * One demo row as a CSV line (no line terminator); sharpness and score with 3 decimals, a missing
+ * inspector label as an empty field, the `run` field after `split` when the row has one.
+ */
+export function demoRowToCsvLine(row: DemoRow): string {
+  return [
+    csvField(row.id),
+    csvField(row.split),
+    ...(row.run === undefined ? [] : [csvField(row.run)]),
+    csvField(row.station),
+    csvField(row.lighting),
+    csvField(row.package),
+    csvField(row.finish),
+    csvField(row.shift),
+    row.sharpness.toFixed(3),
+    csvField(row.label),
+    csvField(row.pred),
+    row.score.toFixed(3),
+    csvField(row.insp_a ?? ''),
+    csvField(row.insp_b ?? ''),
+    csvField(row.insp_c ?? ''),
+  ].join(',');
+}
+
+/**
+ * CSV lines (no line terminators) for `rows`, starting with the header unless `header` is false. The
+ * header has the `run` column when the first row has a run; every row must then have one (and none
+ * must have one otherwise), else a RangeError.
+ * @example [...demoRowsToCsvLines(generateDemoRows({ rows: 2, seed: 7 }))].join('\n')
+ */
+export function* demoRowsToCsvLines(rows: Iterable<DemoRow>, { header = true } = {}): Generator<string> {
+  let withRun: boolean | null = null;
+  for (const row of rows) {
+    const hasRun = row.run !== undefined;
+    if (withRun === null) {
+      withRun = hasRun;
+      if (header) yield demoColumns(withRun ? 2 : 1).map(csvField).join(',');
+    } else if (hasRun !== withRun) {
+      throw new RangeError(`row ${row.id}: ${withRun ? 'no run' : 'a run'}, unlike the first row`);
+    }
+    yield demoRowToCsvLine(row);
+  }
+  if (withRun === null && header) yield DEMO_COLUMNS.map(csvField).join(',');
+}
+
+/** `inspector-floors.csv` lines (no line terminators), header first. */
+export function* demoFloorCsvLines(): Generator<string> {
+  yield 'package,floor,n';
+  for (const f of demoFloorTable()) yield [csvField(f.package), String(f.floor), String(f.n)].join(',');
+}
