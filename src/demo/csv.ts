@@ -1,17 +1,10 @@
 /**
  * The demo files as CSV lines: the prediction table (`solder-joints.csv`) and the inspector floors
- * (`inspector-floors.csv`).
+ * (`inspector-floors.csv`). Fields are quoted by the report's one CSV rule ({@link quoteField}); no value
+ * the scenario draws needs quoting, so every line is its values joined by commas.
  */
+import { quoteField } from '../render/csv.js';
 import { DEMO_COLUMNS, demoColumns, demoFloorTable, type DemoRow } from './scenario.js';
-
-/**
- * One CSV field: quoted (with inner quotes doubled) when it holds a comma, quote, line break, or
- * leading/trailing space; otherwise as is.
- */
-export function csvField(value: string | number): string {
-  const s = String(value);
-  return /[",\r\n]|^\s|\s$/.test(s) ? `"${s.replace(/"/g, '""')}"` : s;
-}
 
 /**
  * One demo row as a CSV line (no line terminator); sharpness and score with 3 decimals, a missing
@@ -19,21 +12,21 @@ export function csvField(value: string | number): string {
  */
 export function demoRowToCsvLine(row: DemoRow): string {
   return [
-    csvField(row.id),
-    csvField(row.split),
-    ...(row.run === undefined ? [] : [csvField(row.run)]),
-    csvField(row.station),
-    csvField(row.lighting),
-    csvField(row.package),
-    csvField(row.finish),
-    csvField(row.shift),
+    quoteField(row.id),
+    quoteField(row.split),
+    ...(row.run === undefined ? [] : [quoteField(row.run)]),
+    quoteField(row.station),
+    quoteField(row.lighting),
+    quoteField(row.package),
+    quoteField(row.finish),
+    quoteField(row.shift),
     row.sharpness.toFixed(3),
-    csvField(row.label),
-    csvField(row.pred),
+    quoteField(row.label),
+    quoteField(row.pred),
     row.score.toFixed(3),
-    csvField(row.insp_a ?? ''),
-    csvField(row.insp_b ?? ''),
-    csvField(row.insp_c ?? ''),
+    quoteField(row.insp_a ?? ''),
+    quoteField(row.insp_b ?? ''),
+    quoteField(row.insp_c ?? ''),
   ].join(',');
 }
 
@@ -49,17 +42,17 @@ export function* demoRowsToCsvLines(rows: Iterable<DemoRow>, { header = true } =
     const hasRun = row.run !== undefined;
     if (withRun === null) {
       withRun = hasRun;
-      if (header) yield demoColumns(withRun ? 2 : 1).map(csvField).join(',');
+      if (header) yield demoColumns(withRun ? 2 : 1).map(quoteField).join(',');
     } else if (hasRun !== withRun) {
       throw new RangeError(`row ${row.id}: ${withRun ? 'no run' : 'a run'}, unlike the first row`);
     }
     yield demoRowToCsvLine(row);
   }
-  if (withRun === null && header) yield DEMO_COLUMNS.map(csvField).join(',');
+  if (withRun === null && header) yield DEMO_COLUMNS.map(quoteField).join(',');
 }
 
 /** `inspector-floors.csv` lines (no line terminators), header first. */
 export function* demoFloorCsvLines(): Generator<string> {
   yield 'package,floor,n';
-  for (const f of demoFloorTable()) yield [csvField(f.package), String(f.floor), String(f.n)].join(',');
+  for (const f of demoFloorTable()) yield [quoteField(f.package), String(f.floor), String(f.n)].join(',');
 }
