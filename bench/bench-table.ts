@@ -19,7 +19,9 @@
 import { createWriteStream } from 'node:fs';
 import { writeFile } from 'node:fs/promises';
 import { join } from 'node:path';
-import { DEMO_PACKAGES, demoFloorCsvLines, generateDemoRows } from '../src/demo/generate.js';
+import { demoFloorCsvLines } from '../src/demo/csv.js';
+import { generateDemoRows } from '../src/demo/draws.js';
+import { DEMO_PACKAGES } from '../src/demo/scenario.js';
 import { Random } from '../src/demo/random.js';
 import { openDuck } from '../src/sql/duck.js';
 import { literal } from '../src/sql/quote.js';

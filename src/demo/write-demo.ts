@@ -2,7 +2,9 @@ import { promises as fs } from 'node:fs';
 import { join } from 'node:path';
 import { checkDestination, writeAtomic, writeReason } from '../output/write-atomic.js';
 import { error } from '../core/errors.js';
-import { checkDemoOptions, demoFloorCsvLines, demoRowsToCsvLines, generateDemoRows, type DemoOptions } from './generate.js';
+import { demoFloorCsvLines, demoRowsToCsvLines } from './csv.js';
+import { generateDemoRows } from './draws.js';
+import { checkDemoOptions, type DemoOptions } from './scenario.js';
 
 /** File names {@link writeDemo} writes inside its folder. */
 export const DEMO_TABLE_FILE = 'solder-joints.csv';

@@ -6,7 +6,7 @@ import { error } from '../core/errors.js';
 import { renderCsv } from './csv.js';
 import { renderJson } from './json.js';
 import { renderMarkdown } from './markdown.js';
-import { renderText } from './text.js';
+import { renderText } from './text/report.js';
 
 /** Output formats of `floorgap report`. */
 export type Format = 'text' | 'md' | 'csv' | 'json';
@@ -51,4 +51,4 @@ export function render(report: Report, format: Format, options: RenderOptions): 
 export { renderCsv } from './csv.js';
 export { renderJson } from './json.js';
 export { renderMarkdown, escapeMarkdown } from './markdown.js';
-export { renderText } from './text.js';
+export { renderText } from './text/report.js';

@@ -1,4 +1,6 @@
 import { describe, expect, it } from 'vitest';
+import { demoFloorCsvLines, demoRowToCsvLine, demoRowsToCsvLines } from '../../src/demo/csv.js';
+import { generateDemoRows } from '../../src/demo/draws.js';
 import {
   DEMO_AUDIT,
   DEMO_CLASSES,
@@ -10,15 +12,11 @@ import {
   DEMO_MAX_RUNS,
   DEMO_PACKAGES,
   DEMO_PLANTS,
-  csvField,
   demoColumns,
   demoErrorProbability,
-  demoFloorCsvLines,
   demoFloorTable,
   demoInspectorErrorProbability,
-  demoRowsToCsvLines,
   demoRunTrainRows,
-  generateDemoRows,
   type DemoClass,
   type DemoInspector,
   type DemoLighting,
@@ -26,8 +24,9 @@ import {
   type DemoRow,
   type DemoSplit,
   type DemoStation,
-} from '../../src/demo/generate.js';
+} from '../../src/demo/scenario.js';
 import { Random, deriveSeed } from '../../src/demo/random.js';
+import { quoteField } from '../../src/render/csv.js';
 
 const take = (rows: number, seed: number): DemoRow[] => [...generateDemoRows({ rows, seed })];
 
@@ -262,13 +261,26 @@ describe('generateDemoRows: shape', () => {
     expect(() => [...demoRowsToCsvLines([plain, { ...plain, run: 'r1' }])]).toThrow(/run/);
   });
 
-  it('quotes CSV fields only when needed', () => {
-    expect(csvField('QFN')).toBe('QFN');
-    expect(csvField(0.5)).toBe('0.5');
-    expect(csvField('a,b')).toBe('"a,b"');
-    expect(csvField('say "hi"')).toBe('"say ""hi"""');
-    expect(csvField('two\nlines')).toBe('"two\nlines"');
-    expect(csvField(' padded')).toBe('" padded"');
+  it("quotes CSV fields by the report's one rule (quoteField), which leaves every value of the scenario as is", () => {
+    const { finish, shift } = DEMO_DISTRIBUTIONS;
+    const values = [
+      ...demoColumns(2),
+      ...SPLITS,
+      ...STATIONS,
+      ...LIGHTINGS,
+      ...DEMO_PACKAGES,
+      ...Object.keys(finish),
+      ...Object.keys(shift),
+      ...DEMO_CLASSES,
+      'J0000001',
+      `r${DEMO_MAX_RUNS}`,
+      '',
+    ];
+    for (const value of values) expect(quoteField(value), value).toBe(value);
+    // values the scenario never draws: a TAB is quoted as in the report's CSV, and quotes are doubled
+    const row: DemoRow = { ...SHIPPED[0], station: 'S\t1' as DemoStation, lighting: 'dome, "soft"' as DemoLighting };
+    const start = `${row.id},${row.split},"S\t1","dome, ""soft""",${row.package},`;
+    expect(demoRowToCsvLine(row).slice(0, start.length)).toBe(start);
   });
 
   it('lists the inspector floors', () => {

@@ -7,7 +7,7 @@ import { mkdtempSync, rmSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { DEMO_FLOORS, DEMO_PLANTS } from '../../src/demo/generate.js';
+import { DEMO_FLOORS, DEMO_PLANTS } from '../../src/demo/scenario.js';
 import type { Report, SliceReport } from '../../src/triage/types.js';
 import { runCli } from '../helpers/run-cli.js';
 

@@ -1,6 +1,6 @@
 /**
  * Planted-structure recovery: the demo generator plants known truths (our own scenario, see
- * DEMO_PLANTS in src/demo/generate.ts) and the report, run through the built CLI, must find them.
+ * DEMO_PLANTS in src/demo/scenario.ts) and the report, run through the built CLI, must find them.
  * Expected foci are the planted truths, not values read off a previous run.
  */
 import { mkdtempSync, rmSync } from 'node:fs';

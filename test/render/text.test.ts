@@ -1,7 +1,7 @@
 import { describe, expect, it } from 'vitest';
 import { stripAnsi } from '../../src/terminal/ansi.js';
 import { displayWidth } from '../../src/terminal/width.js';
-import { renderText } from '../../src/render/text.js';
+import { renderText } from '../../src/render/text/report.js';
 import type { Report } from '../../src/triage/types.js';
 import { reportFixture, withLabel } from '../helpers/report-fixture.js';
 

@@ -1,5 +1,5 @@
 import type { Argv } from 'yargs';
-import { DEMO_DEFAULTS } from '../../demo/generate.js';
+import { DEMO_DEFAULTS } from '../../demo/scenario.js';
 import { writeDemo } from '../../demo/write-demo.js';
 import { sanitize } from '../../terminal/sanitize.js';
 import type { CliIO } from '../io.js';

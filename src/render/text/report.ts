@@ -3,24 +3,16 @@
  * warnings), the slice table fitted to the terminal width, and a legend. Colour is decoration only:
  * without it the output reads the same (flag mark `*`, focus spelled out).
  */
-import type { Split } from '../core/split.js';
-import type { Focus, Gap, Report, SliceReport } from '../triage/types.js';
-import { paint, type Style } from '../terminal/ansi.js';
-import {
-  bytes,
-  count,
-  levelPercent,
-  NULL_MARK,
-  percent,
-  points,
-  pointsInterval,
-  pValue,
-  signedPoints,
-} from './format.js';
-import { sanitize } from '../terminal/sanitize.js';
-import { wrap } from '../terminal/wrap.js';
-import { displayWidth, pad, truncate } from '../terminal/width.js';
-import { FDR_METHOD_NAME, FLOOR_SOURCE_NAME } from './words.js';
+import type { Split } from '../../core/split.js';
+import type { Focus, Gap, Report, SliceReport } from '../../triage/types.js';
+import { paint, type Style } from '../../terminal/ansi.js';
+import { bytes, count, levelPercent, NULL_MARK, points, pointsInterval, pValue, signedPoints } from '../format.js';
+import { sanitize } from '../../terminal/sanitize.js';
+import { wrap } from '../../terminal/wrap.js';
+import { displayWidth, truncate } from '../../terminal/width.js';
+import { FDR_METHOD_NAME, FLOOR_SOURCE_NAME } from '../words.js';
+import { FLAG_MARK, fitColumns, sliceColumns } from './columns.js';
+import { KEY_WIDTH, keyedLines, layTable, line, naturalWidth, type Column, type Line, type TableRow } from './layout.js';
 
 /** Options of {@link renderText}. */
 export interface TextOptions {
@@ -33,9 +25,6 @@ export interface TextOptions {
 /** Default terminal width when none is given. */
 export const DEFAULT_WIDTH = 100;
 
-/** The flag mark of a flagged slice. */
-export const FLAG_MARK = '*';
-
 const FOCUS_STYLE: Readonly<Record<Focus, readonly Style[]>> = {
   bias: ['red'],
   variance: ['yellow'],
@@ -47,139 +36,6 @@ const FOCUS_STYLE: Readonly<Record<Focus, readonly Style[]>> = {
 };
 
 const NBSP = '\u00a0';
-
-/** Width of the key column of the header block ("inputs", "grouping", …). */
-const KEY_WIDTH = 10;
-
-/** One output line: plain text (already sanitized and fitted) plus how to colour it. */
-interface Line {
-  readonly plain: string;
-  /** the coloured line; equals `plain` once SGR codes are stripped */
-  readonly styled: string;
-}
-
-function line(plain: string, styles: readonly Style[], color: boolean): Line {
-  return { plain, styled: paint(plain, styles, color) };
-}
-
-// ---------------------------------------------------------------------------------------------------
-// Tables: columns with content-derived widths, padded cells, per-cell and per-row styles.
-
-interface Column {
-  readonly id: string;
-  readonly header: string;
-  readonly align: 'left' | 'right';
-  /** one cell per row, sanitized */
-  readonly cells: readonly string[];
-  /** separator before this column (spaces); the first column has none */
-  readonly gapBefore?: number;
-}
-
-interface TableRow {
-  readonly styles: readonly Style[];
-  /** column id → styles of that cell */
-  readonly cellStyles?: Readonly<Record<string, readonly Style[]>>;
-}
-
-function naturalWidth(column: Column): number {
-  let w = displayWidth(column.header);
-  for (const cell of column.cells) w = Math.max(w, displayWidth(cell));
-  return w;
-}
-
-/**
- * Lays out a table: `widths` gives each column's width, `gap` the default separator.
- * Returns the header line, a rule, and one line per row.
- */
-function layTable(
-  columns: readonly Column[],
-  widths: readonly number[],
-  gap: number,
-  rows: readonly TableRow[],
-  color: boolean,
-  headerStyles: readonly Style[],
-): { header: Line; rule: Line; body: Line[] } {
-  const sep = (i: number): string => (i === 0 ? '' : ' '.repeat(columns[i].gapBefore ?? gap));
-  const headerPlain = columns.map((c, i) => sep(i) + pad(c.header, widths[i], c.align)).join('').trimEnd();
-  const total = columns.reduce((sum, c, i) => sum + sep(i).length + widths[i], 0);
-  const body = rows.map((row, r) => {
-    let plain = '';
-    let styled = '';
-    columns.forEach((c, i) => {
-      const cell = pad(c.cells[r], widths[i], c.align);
-      const core = cell.trim();
-      const lead = cell.length - cell.trimStart().length;
-      plain += sep(i) + cell;
-      styled +=
-        sep(i) +
-        (core === ''
-          ? cell
-          : cell.slice(0, lead) + paint(core, row.cellStyles?.[c.id] ?? [], color) + cell.slice(lead + core.length));
-    });
-    // trailing padding sits outside every SGR span, so both strings lose the same spaces
-    return { plain: plain.trimEnd(), styled: paint(styled.replace(/ +$/, ''), row.styles, color) };
-  });
-  return {
-    header: line(headerPlain, headerStyles, color),
-    rule: line('─'.repeat(total), ['dim'], color),
-    body,
-  };
-}
-
-// ---------------------------------------------------------------------------------------------------
-// Text helpers for the header block.
-
-/**
- * Items joined by `sep`, wrapped so no item is split across lines unless it is wider than a line on its
- * own; then it is word-wrapped (`wrapLong`) or truncated.
- */
-function flow(
-  items: readonly string[],
-  width: number,
-  first: string,
-  indent: string,
-  sep: string,
-  wrapLong: boolean,
-): string[] {
-  const lines: string[] = [];
-  let current = first;
-  let empty = true;
-  for (const item of items) {
-    const candidate = empty ? current + item : current + sep + item;
-    // room for the separator's mark should the next item move to a new line
-    if (displayWidth(candidate) + sep.trimEnd().length <= width) {
-      current = candidate;
-      empty = false;
-      continue;
-    }
-    if (!empty) {
-      lines.push(current + sep.trimEnd());
-      current = indent;
-    }
-    if (displayWidth(current + item) <= width || !wrapLong) {
-      current += item;
-    } else {
-      const wrapped = wrap(item, width, { first: current, indent });
-      lines.push(...wrapped.slice(0, -1));
-      current = wrapped[wrapped.length - 1];
-    }
-    empty = false;
-  }
-  lines.push(current);
-  return lines.map((l) => truncate(l, width));
-}
-
-/** Items joined by ` · `, wrapped after a key column; an item too long for a line is truncated. */
-function keyed(key: string, items: readonly string[], width: number): string[] {
-  return flow(items, width, key.padEnd(KEY_WIDTH), ' '.repeat(KEY_WIDTH), ' · ', false);
-}
-
-function keyedLines(key: string, items: readonly string[], width: number, color: boolean): Line[] {
-  return keyed(key, items, width).map((plain) => {
-    const k = plain.slice(0, KEY_WIDTH);
-    return { plain, styled: paint(k, ['dim'], color) + plain.slice(KEY_WIDTH) };
-  });
-}
 
 function timestamp(modified: string): string {
   const m = /^(\d{4}-\d\d-\d\d)T(\d\d:\d\d)(?::\d\d(?:\.\d+)?)?Z$/.exec(modified);
@@ -321,102 +177,7 @@ function warningLines(report: Report, width: number, color: boolean): Line[] {
 }
 
 // ---------------------------------------------------------------------------------------------------
-// The slice table.
-
-/** Optional columns, dropped in this order when the width is too small for a readable slice label. */
-const DROP_ORDER = ['share', 'train', 'rows', 'yield'] as const;
-
-/** Slice labels longer than this are truncated even on a wide terminal. */
-const MAX_LABEL = 48;
-
-/**
- * How slices are named in the table. With a `by` grouping where every slice carries exactly those
- * columns, the header names the columns and each cell holds only the values (`S5 · dome` under
- * `station · lighting`); otherwise (overview, or keys that differ) each cell holds the full label.
- */
-function sliceLabels(report: Report): { header: string; cell: (s: SliceReport) => string } {
-  const by = report.by;
-  const byValues =
-    by !== null &&
-    by.length > 0 &&
-    report.slices.every((s) => {
-      const keys = Object.keys(s.key);
-      return keys.length === by.length && by.every((c) => Object.prototype.hasOwnProperty.call(s.key, c));
-    });
-  if (!byValues) return { header: 'slice', cell: (s) => sanitize(s.label) };
-  return {
-    header: by.map((c) => sanitize(c)).join(' · '),
-    cell: (s) => by.map((c) => sanitize(s.key[c])).join(' · '),
-  };
-}
-
-function sliceColumns(report: Report, rows: readonly SliceReport[]): Column[] {
-  const overall = report.overall;
-  const labels = sliceLabels(report);
-  const anyMismatch = rows.some((s) => s.gaps.mismatch !== null);
-  const columns: Column[] = [
-    { id: 'rank', header: '#', align: 'right', cells: rows.map((s) => (s === overall ? '' : String(s.rank))) },
-    { id: 'flag', header: '', align: 'left', cells: rows.map((s) => (s.flagged ? FLAG_MARK : '')), gapBefore: 1 },
-    {
-      id: 'slice',
-      header: labels.header,
-      align: 'left',
-      cells: rows.map((s) => (s === overall ? 'overall' : labels.cell(s))),
-      gapBefore: 1,
-    },
-    { id: 'rows', header: 'rows', align: 'right', cells: rows.map((s) => count(s.rows.dev)) },
-    { id: 'share', header: 'share', align: 'right', cells: rows.map((s) => (s === overall ? '' : percent(s.share))) },
-    { id: 'floor', header: 'floor', align: 'right', cells: rows.map((s) => points(s.floor.value)) },
-    { id: 'train', header: 'train', align: 'right', cells: rows.map((s) => points(s.error.train?.value)) },
-    { id: 'dev', header: 'dev', align: 'right', cells: rows.map((s) => points(s.error.dev?.value)) },
-    { id: 'bias', header: 'bias', align: 'right', cells: rows.map((s) => signedPoints(s.gaps.avoidable_bias?.value)) },
-    { id: 'var', header: 'var', align: 'right', cells: rows.map((s) => signedPoints(s.gaps.variance?.value)) },
-  ];
-  if (anyMismatch) {
-    const cells = rows.map((s) => signedPoints(s.gaps.mismatch?.value));
-    columns.push({ id: 'mism', header: 'mism', align: 'right', cells });
-  }
-  columns.push(
-    { id: 'headroom', header: 'headroom', align: 'right', cells: rows.map((s) => points(s.headroom?.total, 2)) },
-    { id: 'yield', header: 'yield', align: 'right', cells: rows.map((s) => points(s.yield, 2)) },
-    { id: 'focus', header: 'focus', align: 'left', cells: rows.map((s) => sanitize(s.focus)) },
-  );
-  return columns;
-}
-
-interface Fit {
-  readonly columns: Column[];
-  readonly widths: number[];
-  readonly gap: number;
-  readonly dropped: string[];
-}
-
-/** Chooses separators, dropped columns and the label width so the table fits `width` columns. */
-function fitColumns(all: readonly Column[], width: number): Fit {
-  const slice = all.find((c) => c.id === 'slice') as Column;
-  const labelNatural = Math.min(MAX_LABEL, naturalWidth(slice));
-  // drop columns only while three labels in four would be cut (and never for more than 20 columns)
-  const sorted = slice.cells.map(displayWidth).sort((a, b) => a - b);
-  const typical = sorted[Math.min(sorted.length - 1, Math.floor(sorted.length * 0.75))] ?? 0;
-  const minLabel = Math.min(labelNatural, 20, Math.max(typical, 7));
-  const attempts: { gap: number; drop: number; minLabel: number }[] = [
-    { gap: 2, drop: 0, minLabel: labelNatural },
-    ...[0, 1, 2, 3, 4].map((drop) => ({ gap: 1, drop, minLabel })),
-  ];
-  let last: Fit | null = null;
-  for (const { gap, drop, minLabel } of attempts) {
-    const dropped: string[] = DROP_ORDER.slice(0, drop).filter((id) => all.some((c) => c.id === id));
-    const columns = all.filter((c) => !dropped.includes(c.id));
-    const widths = columns.map((c) => (c.id === 'slice' ? 0 : naturalWidth(c)));
-    const fixed = columns.reduce((sum, c, i) => sum + widths[i] + (i === 0 ? 0 : c.gapBefore ?? gap), 0);
-    const available = width - fixed;
-    const labelWidth = Math.max(1, Math.min(labelNatural, available));
-    const fit = { columns, widths: columns.map((c, i) => (c.id === 'slice' ? labelWidth : widths[i])), gap, dropped };
-    if (available >= minLabel) return fit;
-    last = fit;
-  }
-  return last as Fit;
-}
+// The slice table (its columns: columns.ts) and its legend.
 
 interface SliceTable {
   readonly lines: Line[];
