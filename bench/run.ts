@@ -16,7 +16,7 @@ import { cpus, loadavg, tmpdir, totalmem } from 'node:os';
 import { join } from 'node:path';
 import { op, table as aqTable } from 'arquero';
 import { writeBenchTable } from './bench-table.js';
-import { CellTableBuilder, tableCells, type CellTable } from '../src/cells/cell-table.js';
+import { cellColumns, cellTable, SUM_COLUMNS, type CellTable, type SumColumn } from '../src/cells/cell-table.js';
 import { openDuck, type Duck } from '../src/sql/duck.js';
 import { loadCells, type LoadOptions, type Loaded } from '../src/cells/load.js';
 import { cacheKey, readCache } from '../src/cells/cache.js';
@@ -175,7 +175,8 @@ function reportProcess(path: string, floors: string, extra: string[] = [], env: 
 
 /** floorgap's cells equal the bare GROUP BY's: counts exactly, weighted sums to 1e-9 relative. */
 function checkCells(loaded: Loaded, bareRows: readonly Record<string, unknown>[], floorOf: (pkg: string) => number): { cells: number; bare: number; equal: boolean; problems: string[] } {
-  const t = loaded.table;
+  const t = cellColumns(loaded.table);
+  const size = loaded.table.size;
   const names = loaded.columns.map((c) => c.name);
   const label = (c: number, v: unknown) => {
     const col = loaded.columns[c];
@@ -193,26 +194,26 @@ function checkCells(loaded: Loaded, bareRows: readonly Record<string, unknown>[]
   }
   const problems: string[] = [];
   const pkg = names.indexOf('package');
-  for (let i = 0; i < t.size; i++) {
+  for (let i = 0; i < size; i++) {
     const key = JSON.stringify([SPLITS[t.split[i]], ...names.map((_, c) => (t.codes[c][i] < 0 ? null : t.dicts[c][t.codes[c][i]]))]);
     const b = bareMap.get(key);
     const rel = (x: number, y: number) => Math.abs(x - y) <= 1e-9 * Math.max(1, Math.abs(y));
     if (!b) problems.push(`no bare group for ${key}`);
     else {
-      if (t.rows[i] !== b.n || t.errors[i] !== b.e) problems.push(`${key}: rows ${t.rows[i]}/${b.n}, errors ${t.errors[i]}/${b.e}`);
-      if (!rel(t.weight[i], b.n)) problems.push(`${key}: weight ${t.weight[i]} vs ${b.n}`);
-      if (pkg >= 0 && t.codes[pkg][i] >= 0 && !rel(t.floorSum[i], b.n * floorOf(t.dicts[pkg][t.codes[pkg][i]]))) problems.push(`${key}: floor sum ${t.floorSum[i]}`);
+      const { rows, errors, weight, floorSum } = t.sums;
+      if (rows[i] !== b.n || errors[i] !== b.e) problems.push(`${key}: rows ${rows[i]}/${b.n}, errors ${errors[i]}/${b.e}`);
+      if (!rel(weight[i], b.n)) problems.push(`${key}: weight ${weight[i]} vs ${b.n}`);
+      if (pkg >= 0 && t.codes[pkg][i] >= 0 && !rel(floorSum[i], b.n * floorOf(t.dicts[pkg][t.codes[pkg][i]]))) problems.push(`${key}: floor sum ${floorSum[i]}`);
     }
     if (problems.length > 5) break;
   }
-  return { cells: t.size, bare: bareRows.length, equal: problems.length === 0 && t.size === bareRows.length, problems };
+  return { cells: size, bare: bareRows.length, equal: problems.length === 0 && size === bareRows.length, problems };
 }
 
 /** A synthetic cell table of `n` cells over 7 columns, for the rollup micro-benchmark. */
 function syntheticCells(n: number): { table: CellTable; cols: Record<string, unknown[] | Int32Array | Float64Array> } {
   const sizes = [6, 6, 48, 6, 5, 20, 5];
   const names = sizes.map((_, i) => `c${i}`);
-  const b = new CellTableBuilder(names);
   let seed = 12345;
   const rnd = () => ((seed = (seed * 1103515245 + 12345) >>> 0) / 2 ** 32);
   const cols: Record<string, Int32Array | Float64Array> = {};
@@ -231,9 +232,23 @@ function syntheticCells(n: number): { table: CellTable; cols: Record<string, unk
     const rows = 1 + Math.floor(rnd() * 40);
     (cols.rows as Float64Array)[i] = rows;
     (cols.errors as Float64Array)[i] = Math.floor(rows * rnd() * 0.2);
-    b.add({ key, split, run: null, rows, weight: rows, weightSq: rows, errors: (cols.errors as Float64Array)[i], floorSum: rows * 0.05, floorEntry: -1, floorN: null, costSum: 0, costWeight: 0, audit: null });
+    void key;
   }
-  return { table: b.build(), cols };
+  const rows = cols.rows as Float64Array;
+  const sums = Object.fromEntries(SUM_COLUMNS.map((s) => [s, s === 'errors' ? cols.errors : s === 'floorSum' ? rows.map((r) => r * 0.05) : s.startsWith('cost') ? new Float64Array(n) : rows])) as Record<SumColumn, Float64Array>;
+  const table = cellTable({
+    columns: names,
+    dicts: sizes.map((s) => Array.from({ length: s }, (_, k) => `v${k}`)),
+    codes: names.map((nm) => cols[nm] as Int32Array),
+    split: cols.split as Int32Array,
+    runs: [],
+    run: new Int32Array(n).fill(-1),
+    sums,
+    floorEntry: new Int32Array(n).fill(-1),
+    floorN: new Float64Array(n),
+    audit: null,
+  });
+  return { table, cols };
 }
 
 function timeMs(fn: () => unknown): number {
@@ -373,17 +388,14 @@ for (const rows of sizes) {
       if (format === formats[0]) {
         // interactive costs on this table's cells
         const regroup: number[] = [];
-        const regroupObjects: number[] = [];
         const resort: number[] = [];
         const frames: number[] = [];
-        const cells = tableCells(loaded!.table);
         const by = ['board', 'operator'];
         const big = buildReport(loaded!.table, ['board', 'operator', 'sharpness'], [], CONTEXT, DEFAULT_TRIAGE_OPTIONS);
         const report2000: Report = { ...big, slices: big.slices.slice(0, 2000) };
         let state: unknown;
         for (let r = 0; r < reps; r++) {
           regroup.push(timeMs(() => buildReport(loaded!.table, by, [], CONTEXT, DEFAULT_TRIAGE_OPTIONS)));
-          regroupObjects.push(timeMs(() => buildReport(cells, by, [], CONTEXT, DEFAULT_TRIAGE_OPTIONS)));
           resort.push(timeMs(() => sortSlices(report2000.slices, r % 2 ? 'headroom' : 'dev', true)));
           if (renderFrame) {
             const keys = ['s', 'j', 'h', 'j', 's'];
@@ -437,7 +449,6 @@ for (const rows of sizes) {
           format,
           cells: loaded!.table.size,
           regroup_ms: median(regroup),
-          regroup_objects_ms: median(regroupObjects),
           regroup_slices: buildReport(loaded!.table, by, [], CONTEXT, DEFAULT_TRIAGE_OPTIONS).slices.length,
           resort_2000_ms: median(resort),
           frame_2000_ms: frames.length ? median(frames) : null,

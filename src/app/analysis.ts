@@ -10,7 +10,7 @@ import { loadCellFiles } from '../cells/cells-file.js';
 import { openDuck, type Duck } from '../sql/duck.js';
 import { needsOneThreadFor } from '../read/table.js';
 import { releaseTemp, trackScratch } from '../output/temp-files.js';
-import { cellLimit, loadCells, withCells, type LoadHooks, type Loaded, type LoadOptions } from '../cells/load.js';
+import { cellLimit, loadCells, type LoadHooks, type Loaded, type LoadOptions } from '../cells/load.js';
 import { cacheKey, readCache } from '../cells/cache.js';
 import { buildReport, type ReportContext } from '../triage/report.js';
 import type { Report, TriageOptions } from '../triage/types.js';
@@ -164,7 +164,7 @@ export async function analyze(request: AnalysisRequest, hooks: AnalysisHooks = {
     const cache = loadHooks(request, hooks).cache;
     const key = cache ? await cacheKey(input.load, cache.version, cache.cwd) : null;
     const hit = cache && key ? await readCache(cache.dir, key) : null;
-    if (hit) return reportOf(withCells(hit), request.triage, input.load.where);
+    if (hit) return reportOf(hit, request.triage, input.load.where);
   }
   return withDuck(request.engine, { read: analysisReads(request), write: [] }, (duck) => analyzeWith(duck, request, hooks));
 }

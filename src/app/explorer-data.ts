@@ -8,18 +8,12 @@ import type { Duck } from '../sql/duck.js';
 import { topErrors } from '../rows/examples.js';
 import type { Exporter, ExplorerData } from '../tui/data.js';
 import { groupingCovers, scanGrouping } from '../cells/load.js';
-import { cellsFor } from '../slices/rollup.js';
-import type { Cell } from '../core/cell.js';
+import { cellsWithin, mergeCells, type CellTable } from '../cells/cell-table.js';
 import { buildReport } from '../triage/report.js';
 import { withReadErrors } from '../read/read-errors.js';
 import { error } from '../core/errors.js';
 
 export type { Exporter, ExplorerData };
-
-function matches(cell: Cell, key: Readonly<Record<string, string>>): boolean {
-  for (const [k, v] of Object.entries(key)) if (cell.key[k] !== v) return false;
-  return true;
-}
 
 /**
  * Wraps an analysis for the explorer. `duck` stays open on the rows until `close`.
@@ -29,15 +23,16 @@ function matches(cell: Cell, key: Readonly<Record<string, string>>): boolean {
  */
 export function explorerData(duck: Duck | null, analysis: Analysis, exporter: Exporter | null): ExplorerData {
   const { loaded, context, options } = analysis;
-  let cells: Cell[] = [...loaded.cells];
+  let cells: CellTable = loaded.table;
   const scanned = new Set<string>();
 
-  async function cellsCovering(by: readonly string[]): Promise<readonly Cell[]> {
+  /** The cells, with those of the grouping `by` scanned in when the grouping sets do not hold it. */
+  async function cellsCovering(by: readonly string[]): Promise<CellTable> {
     const id = [...by].sort().join('\u0000');
     if (groupingCovers(loaded.grouping, by) || scanned.has(id)) return cells;
     if (!duck) throw error('this grouping needs the rows, and only cells were loaded');
     const open = duck;
-    cells = [...cells, ...(await withReadErrors(loaded.source.inputs, loaded.source.where, () => scanGrouping(open, loaded.plan, by)))];
+    cells = mergeCells(cells, await withReadErrors(loaded.source.inputs, loaded.source.where, () => scanGrouping(open, loaded.plan, by)));
     scanned.add(id);
     return cells;
   }
@@ -54,8 +49,9 @@ export function explorerData(duck: Duck | null, analysis: Analysis, exporter: Ex
       const keyCols = Object.keys(slice.key);
       if (keyCols.includes(column)) return [];
       const by = [...keyCols, column];
-      const use = cellsFor(await cellsCovering(by), by).filter((c) => matches(c, slice.key));
-      return buildReport(use, [column], [], context, options).slices;
+      // the cells of the slice, by the slice's columns and the breakdown column; their report by that column
+      const within = cellsWithin(await cellsCovering(by), slice.key, by);
+      return buildReport(within, [column], [], context, options).slices;
     },
     async examples(slice) {
       if (!duck) return 'examples need the rows (the input is ready-made cells)';

@@ -5,7 +5,7 @@
  * shapes the cells (column roles, --where, --by, slice columns, bins, --max-cells, floors, annotators,
  * the floor and cost tables' whole content). A changed file changes its key; nothing is reused then.
  *
- * Entry format: `FGCELLS2\n`, the SHA-256 of everything after it (32 bytes), a 4-byte little-endian
+ * Entry format: `FGCELLS3\n`, the SHA-256 of everything after it (32 bytes), a 4-byte little-endian
  * header length, the header (JSON: what was loaded besides the cells, and where each array sits), then
  * the cells' typed arrays, 8-byte aligned. An entry whose checksum does not match (a disk error, a copy
  * cut short, an edit) is removed and the rows are scanned again.
@@ -15,16 +15,16 @@ import { promises as fs, statSync } from 'node:fs';
 import { homedir } from 'node:os';
 import { isAbsolute, join, resolve } from 'node:path';
 import { fileURLToPath } from 'node:url';
-import type { AuditColumns, CellTable } from './cell-table.js';
+import { auditFieldCount, cellColumns, cellTable, SUM_COLUMNS, type AuditShape, type SumColumn } from './cell-table.js';
 import type { LoadOptions, Loaded } from './load.js';
 import { releaseTemp, trackTemp } from '../output/temp-files.js';
 import { checkDestination, moveInto } from '../output/write-atomic.js';
 
-const MAGIC = 'FGCELLS2\n';
+const MAGIC = 'FGCELLS3\n';
 /** SHA-256 of everything after it, right after the magic: a damaged or cut entry is never trusted. */
 const SUM = 32;
 /** Change when the entry layout or the meaning of a cached field changes. */
-const FORMAT = 2;
+const FORMAT = 3;
 /** Entries kept; the least recently used beyond this are removed. */
 const MAX_ENTRIES = 32;
 /** Total size kept (bytes). */
@@ -136,53 +136,54 @@ function buildStamp(): number {
   }
 }
 
-type ArrayName = 'split' | 'run' | 'rows' | 'weight' | 'weightSq' | 'errors' | 'floorSum' | 'floorEntry' | 'floorN' | 'costSum' | 'costWeight';
-const ARRAYS: readonly ArrayName[] = ['split', 'run', 'rows', 'weight', 'weightSq', 'errors', 'floorSum', 'floorEntry', 'floorN', 'costSum', 'costWeight'];
-type Typed = Uint8Array | Int32Array | Float64Array;
+type Typed = Int32Array | Float64Array;
 
 interface Header {
   readonly format: number;
   readonly key: string;
-  readonly meta: Omit<Loaded, 'table' | 'cells'>;
-  readonly table: { size: number; columns: string[]; dicts: string[][]; runs: string[]; audit: { annotators: number; classes: number } | null };
-  readonly arrays: { name: string; kind: 'u8' | 'i32' | 'f64'; offset: number; length: number }[];
+  readonly meta: Omit<Loaded, 'table'>;
+  readonly table: { size: number; columns: string[]; dicts: string[][]; runs: string[]; audit: AuditShape | null };
+  readonly arrays: { name: string; kind: 'i32' | 'f64'; offset: number; length: number }[];
 }
 
-function kindOf(a: Typed): 'u8' | 'i32' | 'f64' {
-  return a instanceof Uint8Array ? 'u8' : a instanceof Int32Array ? 'i32' : 'f64';
+/** JSON keeps a Map (the column kinds of a Parquet source) as a Map, not as `{}`. */
+function replacer(_key: string, value: unknown): unknown {
+  return value instanceof Map ? { __map: [...value.entries()] } : value;
+}
+
+function reviver(_key: string, value: unknown): unknown {
+  return value && typeof value === 'object' && '__map' in value && Array.isArray((value as { __map: unknown }).__map)
+    ? new Map((value as { __map: [unknown, unknown][] }).__map)
+    : value;
 }
 
 /** Serialises a load (its metadata and its cell table). */
 export function encodeEntry(key: string, loaded: Loaded): Buffer {
-  const { table } = loaded;
+  const c = cellColumns(loaded.table);
   const named: [string, Typed][] = [
-    ...ARRAYS.map((n) => [n, table[n]] as [string, Typed]),
-    ...table.codes.map((c, i) => [`code${i}`, c] as [string, Typed]),
-    ...(table.audit?.fields ?? []).map((f, i) => [`audit${i}`, f] as [string, Typed]),
+    ['split', c.split],
+    ['run', c.run],
+    ...SUM_COLUMNS.map((n) => [n, c.sums[n]] as [string, Typed]),
+    ['floorEntry', c.floorEntry],
+    ['floorN', c.floorN],
+    ...c.codes.map((a, i) => [`code${i}`, a] as [string, Typed]),
+    ...(c.audit?.fields ?? []).map((f, i) => [`audit${i}`, f] as [string, Typed]),
   ];
   const arrays: Header['arrays'] = [];
   let offset = 0;
   for (const [name, a] of named) {
-    arrays.push({ name, kind: kindOf(a), offset, length: a.length });
+    arrays.push({ name, kind: a instanceof Int32Array ? 'i32' : 'f64', offset, length: a.length });
     offset += Math.ceil(a.byteLength / 8) * 8;
   }
-  const { table: _t, cells: _c, ...meta } = loaded as Loaded & { cells?: unknown };
-  void _t;
-  void _c;
+  const { table, ...meta } = loaded;
   const header: Header = {
     format: FORMAT,
     key,
     meta,
-    table: {
-      size: table.size,
-      columns: [...table.columns],
-      dicts: table.dicts.map((d) => [...d]),
-      runs: [...table.runs],
-      audit: table.audit ? { annotators: table.audit.annotators, classes: table.audit.classes } : null,
-    },
+    table: { size: table.size, columns: [...table.columns], dicts: table.dicts.map((d) => [...d]), runs: [...table.runs], audit: table.audit },
     arrays,
   };
-  const json = Buffer.from(JSON.stringify(header), 'utf8');
+  const json = Buffer.from(JSON.stringify(header, replacer), 'utf8');
   const body = MAGIC.length + SUM;
   const start = Math.ceil((body + 4 + json.length) / 8) * 8;
   const out = Buffer.alloc(start + offset);
@@ -201,54 +202,44 @@ export function encodeEntry(key: string, loaded: Loaded): Buffer {
  * The inverse of {@link encodeEntry}; null when the bytes are not an entry for `key`.
  * @throws when the checksum does not match or the entry is cut short
  */
-export function decodeEntry(buf: Buffer, key: string): Omit<Loaded, 'cells'> | null {
+export function decodeEntry(buf: Buffer, key: string): Loaded | null {
   const body = MAGIC.length + SUM;
   if (buf.length < body + 4 || buf.toString('latin1', 0, MAGIC.length) !== MAGIC) return null;
   const sum = createHash('sha256').update(buf.subarray(body)).digest();
   if (!sum.equals(buf.subarray(MAGIC.length, body))) throw new Error('cache entry is damaged (checksum)');
   const len = buf.readUInt32LE(body);
-  const header = JSON.parse(buf.toString('utf8', body + 4, body + 4 + len)) as Header;
+  const header = JSON.parse(buf.toString('utf8', body + 4, body + 4 + len), reviver) as Header;
   if (header.format !== FORMAT || header.key !== key) return null;
   const start = Math.ceil((body + 4 + len) / 8) * 8;
-  const get = (name: string): Typed => {
+  const get = <T extends Typed>(name: string): T => {
     const spec = header.arrays.find((a) => a.name === name);
     if (!spec) throw new Error(`cache entry lacks ${name}`);
-    const bytes = spec.length * (spec.kind === 'u8' ? 1 : spec.kind === 'i32' ? 4 : 8);
+    const bytes = spec.length * (spec.kind === 'i32' ? 4 : 8);
     const from = start + spec.offset;
     if (from + bytes > buf.length) throw new Error('cache entry is truncated');
     // copy into a fresh, aligned buffer
     const copy = new Uint8Array(bytes);
     copy.set(buf.subarray(from, from + bytes));
-    return spec.kind === 'u8' ? copy : spec.kind === 'i32' ? new Int32Array(copy.buffer) : new Float64Array(copy.buffer);
+    return (spec.kind === 'i32' ? new Int32Array(copy.buffer) : new Float64Array(copy.buffer)) as T;
   };
   const t = header.table;
-  const audit: AuditColumns | null = t.audit
-    ? { ...t.audit, fields: Array.from({ length: 4 + t.audit.annotators * (2 + t.audit.classes) }, (_, i) => get(`audit${i}`) as Float64Array) }
-    : null;
-  const table: CellTable = {
-    size: t.size,
+  const table = cellTable({
     columns: t.columns,
     dicts: t.dicts,
     runs: t.runs,
-    codes: t.columns.map((_, i) => get(`code${i}`) as Int32Array),
-    split: get('split') as Uint8Array,
-    run: get('run') as Int32Array,
-    rows: get('rows') as Float64Array,
-    weight: get('weight') as Float64Array,
-    weightSq: get('weightSq') as Float64Array,
-    errors: get('errors') as Float64Array,
-    floorSum: get('floorSum') as Float64Array,
-    floorEntry: get('floorEntry') as Int32Array,
-    floorN: get('floorN') as Float64Array,
-    costSum: get('costSum') as Float64Array,
-    costWeight: get('costWeight') as Float64Array,
-    audit,
-  };
+    codes: t.columns.map((_, i) => get<Int32Array>(`code${i}`)),
+    split: get<Int32Array>('split'),
+    run: get<Int32Array>('run'),
+    sums: Object.fromEntries(SUM_COLUMNS.map((n) => [n, get<Float64Array>(n)])) as Record<SumColumn, Float64Array>,
+    floorEntry: get<Int32Array>('floorEntry'),
+    floorN: get<Float64Array>('floorN'),
+    audit: t.audit ? { ...t.audit, fields: Array.from({ length: auditFieldCount(t.audit.annotators, t.audit.classes) }, (_, i) => get<Float64Array>(`audit${i}`)) } : null,
+  });
   return { ...header.meta, table };
 }
 
 /** The cached load for `key`, or null (a damaged entry is removed). */
-export async function readCache(dir: string, key: string): Promise<Omit<Loaded, 'cells'> | null> {
+export async function readCache(dir: string, key: string): Promise<Loaded | null> {
   const path = join(dir, `${key}.fgcells`);
   let buf: Buffer;
   try {

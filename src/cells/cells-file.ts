@@ -9,9 +9,9 @@ import { ERROR_WORDS_EXPECTED, problemOfSplit, STATUS_SPLITS, WEIGHT_EXPECTED, W
 import type { CellPlan, Grouping } from './plan.js';
 import { unknownSplitError } from './scan.js';
 import type { Duck } from '../sql/duck.js';
-import { checkSplitWeights, splitTotals, withCells, type Loaded } from './load.js';
+import { checkSplitWeights, type Loaded } from './load.js';
 import { readCells } from './read-cells.js';
-import { runsOf } from './cell-table.js';
+import { hasAudit, runsOf, splitTotals, total, usedFloorEntries } from './cell-table.js';
 import { ident } from '../sql/quote.js';
 import type { SliceColumn } from '../core/cell.js';
 import { SPLITS, type Split } from '../core/split.js';
@@ -370,14 +370,7 @@ export async function loadCellFiles(duck: Duck, paths: readonly string[], by: re
   }
   if (unknown.size > 0) throw unknownSplitError(where, 'fg_split', unknown);
   // grouping: the full cross when no cell leaves a column out; else the sets the cells hold
-  let grouping: Grouping = { kind: 'cross' };
-  const sets = new Map<string, string[]>();
-  for (let i = 0; i < table.size; i++) {
-    const set = table.columns.filter((_, c) => table.codes[c][i] >= 0);
-    if (set.length < table.columns.length) grouping = { kind: 'sets', sets: [] };
-    sets.set(set.join('\u0000'), set);
-  }
-  if (grouping.kind === 'sets') grouping = { kind: 'sets', sets: [...sets.values()] };
+  const grouping: Grouping = table.cross ? { kind: 'cross' } : { kind: 'sets', sets: table.sets.map((set) => set.map((c) => table.columns[c])) };
   const totals = splitTotals(table);
   const counts = totals.rows;
   const leftOut = other.get(STATUS_SPLITS.unlabelled) ?? 0;
@@ -407,13 +400,13 @@ export async function loadCellFiles(duck: Duck, paths: readonly string[], by: re
       );
     }
   }
-  const floorUsed = table.floorEntry.some((e) => e >= 0);
-  const floorless = !floorUsed && table.floorSum.every((v) => v === 0);
+  const floorUsed = [...usedFloorEntries(table)].some((e) => e >= 0);
+  const floorless = !floorUsed && total(table, 'floorSum') === 0;
   if (floorless && lay.annotators.length === 0) {
     // the rows' wording: the fix is the same options, given to floorgap sql
     warnings.push('no floor given (--floor or --floor-table): avoidable bias is measured against perfection (floor 0)');
   }
-  if (lay.annotators.length > 0 && !(table.audit?.fields[0].some((v) => v > 0) ?? false)) {
+  if (lay.annotators.length > 0 && !hasAudit(table)) {
     warnings.push(`no row has a label in the annotator columns ${lay.annotators.join(', ')}: floors fall back to --floor`);
   }
   const sliceColumns: SliceColumn[] = lay.keys.map((name) => ({ name, kind: 'category' }));
@@ -430,7 +423,7 @@ export async function loadCellFiles(duck: Duck, paths: readonly string[], by: re
     classes: lay.classes,
     costEntries: [],
   };
-  return withCells({
+  return {
     origin: 'cells',
     source: { inputs, columns, splitColumn: null, where },
     roles,
@@ -447,5 +440,5 @@ export async function loadCellFiles(duck: Duck, paths: readonly string[], by: re
     classes: lay.classes,
     runs: runsOf(table),
     plan,
-  });
+  };
 }

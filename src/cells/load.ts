@@ -4,7 +4,8 @@ import { cellQuery } from './cell-query.js';
 import { badScoreSql, badWeightSql, ERROR_WORDS_EXPECTED, WEIGHT_EXPECTED } from './row-status.js';
 import { keySql, rowError, rowWeight } from './row-sql.js';
 import { dialect } from '../sql/dialect.js';
-import { concatTables, tableCells, type CellTable } from './cell-table.js';
+import * as aq from 'arquero';
+import { hasAudit, keyColumn, mergeCells, runsOf, splitTotals, usedFloorEntries, type CellTable } from './cell-table.js';
 import type { Duck } from '../sql/duck.js';
 import { chooseSliceColumns, createSample, MAX_AUTO_COLUMNS, MAX_CATEGORIES, profileColumns, SAMPLE_ROWS, sampleTupleCount, sampleTupleStats, sliceColumns, type Profile } from './profile.js';
 import { chao1 } from '../stats/chao1.js';
@@ -12,9 +13,8 @@ import { resolveRoles, roleColumns, type RoleOptions, type Roles } from '../read
 import { checkWhere, openSource, ROWS_VIEW, type Source, type SourceSpec } from '../read/source.js';
 import { safeWhere } from '../sql/where.js';
 import { ident } from '../sql/quote.js';
-import type { Cell, SliceColumn } from '../core/cell.js';
+import type { SliceColumn } from '../core/cell.js';
 import { normalizeSplit, SPLITS, type Split } from '../core/split.js';
-import { cellIndicesFor, runsOf } from './cell-table.js';
 import { textSql } from './profile.js';
 import { cacheKey, readCache, writeCache } from './cache.js';
 import { describeKey, readFloorTable, type FloorEntry, type FloorTable } from '../read/keyed-table.js';
@@ -52,10 +52,8 @@ export interface Loaded {
   /** candidate columns for the overview (not label/pred unless asked) */
   readonly overviewColumns: readonly string[];
   readonly by: readonly string[] | null;
-  /** the cells in columns: what the report reads */
+  /** the cells: what every roll-up reads */
   readonly table: CellTable;
-  /** the cells as objects (made from `table` when first read) */
-  readonly cells: readonly Cell[];
   readonly grouping: Grouping;
   readonly floorTable: FloorTable | null;
   readonly costTable: FloorTable | null;
@@ -91,7 +89,7 @@ export async function loadCells(duck: Duck, options: LoadOptions, hooks: LoadHoo
   const key = cache ? await cacheKey(options, cache.version, cache.cwd) : null;
   if (cache && key) {
     const hit = await readCache(cache.dir, key);
-    if (hit) return withCells({ ...hit, source });
+    if (hit) return { ...hit, source };
   }
   const bytes = source.inputs.reduce((a, i) => a + i.bytes, 0);
   const stop = hooks.onScan?.(duck, { where: source.where, bytes }) ?? (() => undefined);
@@ -351,7 +349,7 @@ async function scanPlanned(duck: Duck, planned: ScanPlan): Promise<Loaded> {
   await checkIssues(duck, source, roles, plan, issues, warnings);
   if (grouping.kind === 'sets' && by && by.length > 2) {
     // a by of three or more columns: one more GROUP BY for exactly those columns
-    table = concatTables(table, await scanGroupingTable(duck, plan, by));
+    table = mergeCells(table, await scanGrouping(duck, plan, by));
   }
   const totals = splitTotals(table);
   const counts = totals.rows;
@@ -366,46 +364,22 @@ async function scanPlanned(duck: Duck, planned: ScanPlan): Promise<Loaded> {
   }
   checkSplitWeights(source.where, totals);
   if (floorTable) {
-    const used = new Set(table.floorEntry);
+    const used = usedFloorEntries(table);
     for (const [i, e] of floorTable.entries.entries()) {
       if (!used.has(i)) warnings.push(`${floorTable.path}: line ${e.line} (${describeKey(e.keys)}) matches no row`);
     }
   }
   if (costTable) warnings.push(...unmatchedEntries(table, costTable, columns));
-  if (annotators.length > 0 && !(table.audit?.fields[0].some((v) => v > 0) ?? false)) {
+  if (annotators.length > 0 && !hasAudit(table)) {
     warnings.push(`no row has a label in the annotator columns ${annotators.join(', ')}: floors fall back to --floor`);
   }
   const runs = runsOf(table);
   const overviewColumns = planned.overviewColumns;
-  return withCells({ origin: 'rows', source, roles, columns, overviewColumns, by, table, grouping, floorTable, costTable, warnings, profile, annotators, classes: plan.classes ?? [], runs, plan });
-}
-
-/** Adds the `cells` of a Loaded as Cell objects, made from its table when first read. */
-export function withCells(loaded: Omit<Loaded, 'cells'>): Loaded {
-  let cells: Cell[] | null = null;
-  return Object.defineProperty({ ...loaded }, 'cells', {
-    enumerable: true,
-    get: () => (cells ??= tableCells(loaded.table)),
-  }) as Loaded;
+  return { origin: 'rows', source, roles, columns, overviewColumns, by, table, grouping, floorTable, costTable, warnings, profile, annotators, classes: plan.classes ?? [], runs, plan };
 }
 
 /** Rows and Σw of each split, over the cells serving the overall slice. */
-export interface SplitTotals {
-  readonly rows: Record<Split, number>;
-  readonly weight: Record<Split, number>;
-}
-
-/** Rows and Σw per split (in grouping-sets mode one set only: the cells serving the overall slice). */
-export function splitTotals(table: CellTable): SplitTotals {
-  const rows: Record<Split, number> = { train: 0, train_dev: 0, dev: 0, test: 0 };
-  const weight: Record<Split, number> = { train: 0, train_dev: 0, dev: 0, test: 0 };
-  const use = cellIndicesFor({ table, index: null }, []);
-  for (const i of use) {
-    rows[SPLITS[table.split[i]]] += table.rows[i];
-    weight[SPLITS[table.split[i]]] += table.weight[i];
-  }
-  return { rows, weight };
-}
+export type SplitTotals = ReturnType<typeof splitTotals>;
 
 /**
  * Every split that has rows needs some weight: a split whose rows all weigh 0 has no error rate, and
@@ -547,13 +521,12 @@ function unmatchedEntries(table: CellTable, costTable: FloorTable, columns: read
     const idx = keys.map(([k]) => table.columns.indexOf(k));
     if (idx.some((c) => c < 0)) return [];
     const want = keys.map(([, v], j) => table.dicts[idx[j]].indexOf(v));
-    let judged = false;
-    for (let i = 0; i < table.size; i++) {
-      if (!idx.every((c) => table.codes[c][i] >= 0)) continue;
-      judged = true;
-      if (idx.every((c, j) => table.codes[c][i] === want[j])) return [];
-    }
-    return judged ? [`${costTable.path}: line ${e.line} (${describeKey(e.keys)}) matches no row`] : [];
+    const cols = idx.map(keyColumn);
+    // the cells that hold every key column of the entry (grouping sets may leave some out)
+    const holding = table.table.filter(aq.escape((d: Record<string, number>) => cols.every((k) => d[k] >= 0)));
+    if (holding.numRows() === 0) return [];
+    const matching = holding.filter(aq.escape((d: Record<string, number>) => cols.every((k, j) => d[k] === want[j])));
+    return matching.numRows() > 0 ? [] : [`${costTable.path}: line ${e.line} (${describeKey(e.keys)}) matches no row`];
   });
 }
 
@@ -568,12 +541,7 @@ export function groupingCovers(grouping: Grouping, by: readonly string[]): boole
  * One more GROUP BY for exactly the `by` columns (when grouping sets do not hold that grouping); the
  * cells keep every slice column in their key, null for the columns not grouped.
  */
-export async function scanGrouping(duck: Duck, plan: CellPlan, by: readonly string[]): Promise<Cell[]> {
-  return tableCells(await scanGroupingTable(duck, plan, by));
-}
-
-/** {@link scanGrouping} as a cell table (columns: every slice column of the plan). */
-export async function scanGroupingTable(duck: Duck, plan: CellPlan, by: readonly string[]): Promise<CellTable> {
+export async function scanGrouping(duck: Duck, plan: CellPlan, by: readonly string[]): Promise<CellTable> {
   const exact: CellPlan = { ...plan, columns: plan.columns.filter((c) => by.includes(c.name)) };
   const { table } = await readCellResult(duck, cellQuery(exact, { kind: 'cross' }), exact, 1, plan.columns.map((c) => c.name));
   return table;

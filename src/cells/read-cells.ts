@@ -3,7 +3,7 @@
  * DuckDB numbers each key column's distinct values (a small dictionary per column, joined back to the
  * cells), floorgap reads the dictionaries once and the codes and sums as typed arrays.
  */
-import type { AuditColumns, CellTable } from './cell-table.js';
+import { cellTable, type CellTable } from './cell-table.js';
 import type { Duck } from '../sql/duck.js';
 import { ident, literal } from '../sql/quote.js';
 import { dialect } from '../sql/dialect.js';
@@ -68,8 +68,8 @@ export async function readCells(
       joins.push(`LEFT JOIN (${dictSql(col)}) AS ${alias} ON CAST(t.${ident(col)} AS VARCHAR) = ${alias}.v`);
       return `COALESCE(${alias}.code, -1)`;
     };
-    // every column NOT NULL (a missing n is NaN, a missing entry -1), for the fast copy below
-    const statNull = (i: number) => (i === 6 ? `'NaN'::DOUBLE` : i === 5 ? '-1' : '0');
+    // every column NOT NULL (a missing n is 0, a missing entry -1), for the fast copy below
+    const statNull = (i: number) => (i === 5 ? '-1' : '0');
     const select = [
       'CAST(t.fg_split_code AS INTEGER) AS s',
       src.run === null ? 'CAST(-1 AS INTEGER) AS r' : `${codeOf(src.run, 'fg_dr')} AS r`,
@@ -106,28 +106,18 @@ export async function readCells(
       audit.forEach((a, i) => fill(2 + codes.length + stats.length + i, a));
       at += m;
     }
-    const floorEntry = Int32Array.from(stats[5]);
-    const split = Uint8Array.from(split32);
-    const auditColumns: AuditColumns | null = src.audit ? { annotators: src.audit.annotators, classes: src.audit.classes, fields: audit } : null;
-    const table: CellTable = {
-      size: n,
-      columns: [...columns],
+    const table: CellTable = cellTable({
+      columns,
       dicts,
       codes,
-      split,
+      split: split32,
       runs,
       run,
-      rows: stats[0],
-      weight: stats[1],
-      weightSq: stats[2],
-      errors: stats[3],
-      floorSum: stats[4],
-      floorEntry,
+      sums: { rows: stats[0], weight: stats[1], weightSq: stats[2], errors: stats[3], floorSum: stats[4], costSum: stats[7], costWeight: stats[8] },
+      floorEntry: Int32Array.from(stats[5]),
       floorN: stats[6],
-      costSum: stats[7],
-      costWeight: stats[8],
-      audit: auditColumns,
-    };
+      audit: src.audit ? { annotators: src.audit.annotators, classes: src.audit.classes, fields: audit } : null,
+    });
     return { table, other };
   } finally {
     await duck.run(`DROP TABLE IF EXISTS ${tmp}`);

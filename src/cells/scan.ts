@@ -1,10 +1,9 @@
 import type { Duck } from '../sql/duck.js';
-import { SPLIT_HELP, type Split } from '../core/split.js';
+import { SPLIT_HELP } from '../core/split.js';
 import { AUDIT_COLUMNS, cellColumnNames, cellQuery } from './cell-query.js';
 import type { ColumnKind } from '../read/source.js';
 import type { CellTable } from './cell-table.js';
 import { readCells } from './read-cells.js';
-import type { Cell } from '../core/cell.js';
 import { error } from '../core/errors.js';
 import type { CellPlan, Grouping } from './plan.js';
 import { problemOfSplit } from './row-status.js';
@@ -92,11 +91,4 @@ export function unknownSplitError(where: string, column: string, unknown: Readon
     .map(([v, n]) => `"${v === '' ? '(empty)' : v}" (${n} rows)`)
     .join(', ');
   return error(`${where}: column "${column}" has unknown split values ${list}; expected ${SPLIT_HELP}`);
-}
-
-/** Splits present in a set of cells, with their row counts. */
-export function splitRows(cells: readonly Cell[]): Record<Split, number> {
-  const out: Record<Split, number> = { train: 0, train_dev: 0, dev: 0, test: 0 };
-  for (const c of cells) out[c.split] += c.rows;
-  return out;
 }

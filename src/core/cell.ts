@@ -1,36 +1,4 @@
-import type { Split } from './split.js';
-
-/**
- * One cell: sufficient statistics for the rows sharing one value of every cell column and one split.
- * Every number in the report derives from these; sums are additive across cells and across shards.
- */
-export interface Cell {
-  /** slice column values, `(missing)` for a missing value; a column absent from a grouping set is `null` */
-  readonly key: Readonly<Record<string, string | null>>;
-  readonly split: Split;
-  /** the training run the rows belong to, when the input has a run column; else null */
-  readonly run: string | null;
-  /** unweighted row count (exact integer) */
-  readonly rows: number;
-  /** Σ w */
-  readonly weight: number;
-  /** Σ w² (for Kish's effective n) */
-  readonly weightSq: number;
-  /** Σ w · error (error is 0 or 1) */
-  readonly errors: number;
-  /** Σ w · floor of the row */
-  readonly floorSum: number;
-  /** which floor-table entry the rows took (-1: the default `--floor`) */
-  readonly floorEntry: number;
-  /** rows the human estimate of that entry came from; null when the entry gave none (treated as exact) */
-  readonly floorN: number | null;
-  /** Σ w · labelling cost, over the rows a cost-table entry matched */
-  readonly costSum: number;
-  /** Σ w over the rows a cost-table entry matched (the others cost --label-cost) */
-  readonly costWeight: number;
-  /** annotator audit sums (unweighted), when annotator columns are given; else null */
-  readonly audit: AuditSums | null;
-}
+/** Types the layers share about cells: a slice column, and the sums of an annotator audit. */
 
 /**
  * Sufficient statistics of an annotator audit over some rows. Counts are unweighted: an audit is a
@@ -51,21 +19,6 @@ export interface AuditSums {
   readonly annErrors: readonly number[];
   /** per annotator, per class (last index: any other class): labels given on panel rows */
   readonly classCounts: readonly (readonly number[])[];
-}
-
-/** Adds two audit sums of the same shape. */
-export function addAudit(a: AuditSums | null, b: AuditSums | null): AuditSums | null {
-  if (!a) return b;
-  if (!b) return a;
-  return {
-    audited: a.audited + b.audited,
-    panelRows: a.panelRows + b.panelRows,
-    panelErrors: a.panelErrors + b.panelErrors,
-    agreeSum: a.agreeSum + b.agreeSum,
-    annRows: a.annRows.map((v, j) => v + b.annRows[j]),
-    annErrors: a.annErrors.map((v, j) => v + b.annErrors[j]),
-    classCounts: a.classCounts.map((row, j) => row.map((v, c) => v + b.classCounts[j][c])),
-  };
 }
 
 /** A slice column: categorical, or numeric cut into bins labelled by their ranges. */

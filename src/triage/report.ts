@@ -1,6 +1,6 @@
-import { selectCells } from '../cells/cell-table.js';
-import { runsOf } from '../cells/cell-table.js';
-import { rollupSlices, type Cells, type SliceStats } from '../slices/rollup.js';
+import * as aq from 'arquero';
+import { runsOf, type CellTable } from '../cells/cell-table.js';
+import { rollupByRun, rollupSlices, type SliceStats } from '../slices/rollup.js';
 import { fitBetaPrior, type BetaPrior } from '../stats/index.js';
 import { annotatorFloor, ruleCounts } from './annotator-floor.js';
 import { sliceCurve } from './curve.js';
@@ -27,18 +27,18 @@ function sliceId(key: Readonly<Record<string, string>>): string {
  * The run whose numbers are reported: the one named, else the run with the most training rows
  * (ties: the later name). Null when the cells carry no run.
  */
-export function chooseRun(cells: Cells, wanted: string | null): string | null {
+export function chooseRun(cells: CellTable, wanted: string | null): string | null {
   const runs = runsOf(cells);
   if (runs.length === 0) return null;
   if (wanted !== null) return runs.includes(wanted) ? wanted : null;
-  const { table, index } = selectCells(cells);
-  const train = new Float64Array(table.runs.length);
-  const n = index ? index.length : table.size;
-  for (let j = 0; j < n; j++) {
-    const i = index ? index[j] : j;
-    if (table.run[i] >= 0 && table.split[i] === 0) train[table.run[i]] += table.rows[i];
-  }
-  const rowsOf = (r: string) => train[table.runs.indexOf(r)];
+  const train = new Map<number, number>();
+  const sums = cells.table
+    .filter((d: { split: number; run: number }) => d.split === 0 && d.run >= 0)
+    .groupby('run')
+    .rollup({ rows: aq.op.sum('rows') })
+    .objects() as { run: number; rows: number }[];
+  for (const r of sums) train.set(r.run, r.rows);
+  const rowsOf = (r: string) => train.get(cells.runs.indexOf(r)) ?? 0;
   return runs.reduce((best, r) => (rowsOf(r) >= rowsOf(best) ? r : best), runs[0]);
 }
 
@@ -51,7 +51,7 @@ export function chooseRun(cells: Cells, wanted: string | null): string | null {
  * buildReport(cells, ['station'], [], ctx, DEFAULT_TRIAGE_OPTIONS).slices[0].label; // => 'station=S5'
  */
 export function buildReport(
-  cells: Cells,
+  cells: CellTable,
   by: readonly string[] | null,
   overviewColumns: readonly string[],
   context: ReportContext,
@@ -66,9 +66,11 @@ export function buildReport(
   // learning curves: the same slices in every run
   const perRun = new Map<string, SliceStats[]>();
   if (runs.length > 1) {
+    // one roll-up per grouping with the run in its key
+    const byRun = [{ by: [] as string[] }, ...groups].map((g) => rollupByRun(cells, g.by));
     for (const r of runs) {
-      for (const g of [{ by: [] as string[] }, ...groups]) {
-        for (const s of rollupSlices(cells, g.by, r)) {
+      for (const slices of byRun) {
+        for (const s of slices.get(r) ?? []) {
           const id = sliceId(s.key);
           const list = perRun.get(id) ?? [];
           list.push(s);

@@ -11,10 +11,12 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { openDuck, type Duck } from '../../src/sql/duck.js';
 import { loadCells, MAX_CLASSES, type LoadOptions, type Loaded } from '../../src/cells/load.js';
 import { rollupSlices } from '../../src/slices/rollup.js';
-import type { AuditSums, Cell } from '../../src/core/cell.js';
+import type { AuditSums } from '../../src/core/cell.js';
+import type { CellRecord as Cell } from '../helpers/cell-records.js';
 import { addInto, csvText, distinctValues, expectAudits, generateAuditTable, zeroAudit, type ExpectedAudit } from '../helpers/audit-fixture.js';
 import { parseCsv, records, toCsv, type TextRow } from '../helpers/engine-fixture.js';
 import { makeTempDir, removeTempDir } from '../helpers/table-variants.js';
+import { recordsOf } from '../helpers/cell-records.js';
 
 let duck: Duck;
 let dir: string;
@@ -152,8 +154,8 @@ describe('audit sums: hand-written fixture', () => {
   });
 
   it('every cell carries the hand-counted audit sums', () => {
-    expect(loaded.cells.map((c) => `${c.split}|${c.key.station}`).sort()).toEqual(Object.keys(CELLS).sort());
-    for (const c of loaded.cells) {
+    expect(recordsOf(loaded.table).map((c) => `${c.split}|${c.key.station}`).sort()).toEqual(Object.keys(CELLS).sort());
+    for (const c of recordsOf(loaded.table)) {
       const id = `${c.split}|${c.key.station}`;
       expectAudit(c.audit, CELLS[id], id);
       expect(c.audit!.classCounts.every((row) => row.length === CLASSES.length + 1), `${id} class count length`).toBe(true);
@@ -161,20 +163,20 @@ describe('audit sums: hand-written fixture', () => {
   });
 
   it('row counts of the cells are untouched by the audit (hand-counted: S1 2 + 2, S2 3 + 2, S3 24 + 23)', () => {
-    const rows = Object.fromEntries(loaded.cells.map((c) => [`${c.split}|${c.key.station}`, c.rows]));
+    const rows = Object.fromEntries(recordsOf(loaded.table).map((c) => [`${c.split}|${c.key.station}`, c.rows]));
     expect(rows).toEqual({ 'train|S1': 2, 'dev|S1': 2, 'train|S2': 3, 'dev|S2': 2, 'train|S3': 24, 'dev|S3': 23 });
     // errors: row 2 (a→b), row 5 (a→c); row 8 is not an error after trimming
-    expect(loaded.cells.reduce((s, c) => s + c.errors, 0)).toBe(2);
+    expect(recordsOf(loaded.table).reduce((s, c) => s + c.errors, 0)).toBe(2);
   });
 
   it('rollupSlices by station adds the audit sums over the splits', () => {
-    const slices = rollupSlices(loaded.cells, ['station']);
+    const slices = rollupSlices(loaded.table, ['station']);
     expect(slices.map((s) => s.key.station).sort()).toEqual(['S1', 'S2', 'S3']);
     for (const s of slices) expectAudit(s.audit, STATIONS[s.key.station], `station=${s.key.station}`);
   });
 
   it('the overall slice holds every audited row (hand arithmetic: S1 + S2 + S3)', () => {
-    const [overall] = rollupSlices(loaded.cells, []);
+    const [overall] = rollupSlices(loaded.table, []);
     const expected = addInto(addInto(addInto(zeroAudit(3, CLASSES.length), STATIONS.S1), STATIONS.S2), STATIONS.S3);
     // 8 audited rows (all but row 7 and the fillers), 7 panel rows (all but 6 and 7), errors 13/6, agreement 3
     expect(expected.audited).toBe(8);
@@ -187,11 +189,11 @@ describe('audit sums: hand-written fixture', () => {
   it('without annotators the cells carry no audit', async () => {
     const path = join(dir, 'hand.csv');
     const plain = await loadCells(duck, options({ source: { files: [path], perSplit: {} } }));
-    expect(plain.cells.every((c) => c.audit === null)).toBe(true);
+    expect(recordsOf(plain.table).every((c) => c.audit === null)).toBe(true);
     expect(plain.classes).toEqual([]);
     // without annotators the annotator columns are ordinary columns (ann1 … ann3 have 2–50 values)
     expect(plain.columns.map((c) => c.name)).toEqual(['station', 'ann1', 'ann2', 'ann3']);
-    expect(rollupSlices(plain.cells, []).every((s) => s.audit === null)).toBe(true);
+    expect(rollupSlices(plain.table, []).every((s) => s.audit === null)).toBe(true);
   });
 });
 
@@ -238,7 +240,7 @@ describe('audit sums: generated fixture against a plain loop', () => {
     expect(by).toEqual(['station', 'shift']);
     const expected = expectAudits(rows, ANNOTATORS, classes, keyOfRow(by));
     const seen = new Set<string>();
-    for (const c of cross.cells) {
+    for (const c of recordsOf(cross.table)) {
       const id = keyOfCell(by)(c);
       seen.add(id);
       const e = expected.get(id);
@@ -247,7 +249,7 @@ describe('audit sums: generated fixture against a plain loop', () => {
     }
     expect([...expected.keys()].filter((k) => !seen.has(k))).toEqual([]);
     // the fixture is not trivial: most cells have panel rows
-    expect(cross.cells.filter((c) => (c.audit?.panelRows ?? 0) > 0).length).toBeGreaterThan(20);
+    expect(recordsOf(cross.table).filter((c) => (c.audit?.panelRows ?? 0) > 0).length).toBeGreaterThan(20);
   });
 
   for (const by of [['station'], ['shift'], ['station', 'shift'], []] as const) {
@@ -258,7 +260,7 @@ describe('audit sums: generated fixture against a plain loop', () => {
         expected.set(slice, addInto(expected.get(slice) ?? zeroAudit(3, classes.length), a));
       }
       for (const loaded of [cross, sets]) {
-        const slices = rollupSlices(loaded.cells, by);
+        const slices = rollupSlices(loaded.table, by);
         expect(slices.map((s) => JSON.stringify(by.map((b) => s.key[b]))).sort()).toEqual([...expected.keys()].sort());
         for (const s of slices) {
           const id = JSON.stringify(by.map((b) => s.key[b]));
@@ -273,7 +275,7 @@ describe('audit sums: generated fixture against a plain loop', () => {
     const expected = [...expectAudits(rows, ANNOTATORS, classes, () => 'all').values()][0];
     if (sets.grouping.kind !== 'sets') return;
     for (const set of sets.grouping.sets) {
-      const mine = sets.cells.filter((c) => Object.keys(c.key).filter((k) => c.key[k] !== null).join('+') === set.join('+'));
+      const mine = recordsOf(sets.table).filter((c) => Object.keys(c.key).filter((k) => c.key[k] !== null).join('+') === set.join('+'));
       const sum = mine.reduce((acc, c) => addInto(acc, { ...c.audit!, annRows: [...c.audit!.annRows], annErrors: [...c.audit!.annErrors], classCounts: c.audit!.classCounts.map((r) => [...r]) }), zeroAudit(3, classes.length));
       expectAudit(sum, expected, `set ${set.join('+')}`);
     }
@@ -299,13 +301,13 @@ describe('audit sums with an error column: rows without a true class are not aud
 
   it('keeps the unlabelled row as a row (error column mode)', () => {
     expect(loaded.roles).toMatchObject({ label: 'label', pred: null, error: 'error' });
-    const train = loaded.cells.find((c) => c.split === 'train')!;
+    const train = recordsOf(loaded.table).find((c) => c.split === 'train')!;
     expect([train.rows, train.errors]).toEqual([2, 1]);
   });
 
   it('hand-counted audit sums: row 2 counts nowhere (not audited, no annotator error, no class count)', () => {
     expect(loaded.classes).toEqual(['a', 'b']);
-    const byCell = Object.fromEntries(loaded.cells.map((c) => [`${c.split}|${c.key.station}`, c.audit]));
+    const byCell = Object.fromEntries(recordsOf(loaded.table).map((c) => [`${c.split}|${c.key.station}`, c.audit]));
     expect(byCell['train|S1']).toEqual({ audited: 1, panelRows: 1, panelErrors: 0.5, agreeSum: 0, annRows: [1, 1], annErrors: [0, 1], classCounts: [[1, 0, 0], [0, 1, 0]] });
     expect(byCell['dev|S2']).toEqual({ audited: 2, panelRows: 2, panelErrors: 0, agreeSum: 2, annRows: [2, 2], annErrors: [0, 0], classCounts: [[1, 1, 0], [1, 1, 0]] });
   });

@@ -13,6 +13,7 @@ import { agreementOf } from '../../src/triage/agreement.js';
 import { csvText } from '../helpers/audit-fixture.js';
 import { makeTempDir, removeTempDir } from '../helpers/table-variants.js';
 import { expectClose } from '../stats/expect-close.js';
+import { recordsOf } from '../helpers/cell-records.js';
 
 const LIBRARY = 1e-12; // same formula as statsmodels: agreement to rounding
 
@@ -74,7 +75,7 @@ describe("Cohen's kappa: two annotators, the 2×2 table [[20, 5], [10, 15]]", ()
   });
 
   it('the overall audit realises the table (hand-counted: 35 agreeing rows of 50, marginals A 25/25, B 30/20)', () => {
-    const [overall] = rollupSlices(loaded.cells, []);
+    const [overall] = rollupSlices(loaded.table, []);
     expect(loaded.classes).toEqual(['x', 'y']);
     const a = overall.audit!;
     expect(a.audited).toBe(52); // 50 panel rows + 2 rows with one label
@@ -92,7 +93,7 @@ describe("Cohen's kappa: two annotators, the 2×2 table [[20, 5], [10, 15]]", ()
     //   >>> cohens_kappa(np.array([[20, 5], [10, 15]])).kappa
     //   0.3999999999999999
     // hand arithmetic: p_o = 35/50 = 0.7, p_e = (25·30 + 25·20)/50² = 0.5, κ = 0.2/0.5 = 0.4
-    const agreement = agreementOf(rollupSlices(loaded.cells, [])[0].audit);
+    const agreement = agreementOf(rollupSlices(loaded.table, [])[0].audit);
     expect(agreement).not.toBeNull();
     expect(agreement!.method).toBe('cohen');
     expect(agreement!.audited).toBe(50);
@@ -100,7 +101,7 @@ describe("Cohen's kappa: two annotators, the 2×2 table [[20, 5], [10, 15]]", ()
   });
 
   it('the station slices partition the 50 panel rows (audit sums are additive)', () => {
-    const stations = rollupSlices(loaded.cells, ['station']);
+    const stations = rollupSlices(loaded.table, ['station']);
     expect(stations).toHaveLength(2);
     const panel = stations.reduce((s, x) => s + x.audit!.panelRows, 0);
     expect(panel).toBe(50);
@@ -139,7 +140,7 @@ describe("Fleiss' kappa: three annotators, 10 items × 3 categories, 3 labels pe
   });
 
   it('the overall audit holds the table’s sufficient statistics (hand-counted)', () => {
-    const a = rollupSlices(loaded.cells, [])[0].audit!;
+    const a = rollupSlices(loaded.table, [])[0].audit!;
     expect(a.audited).toBe(11);
     expect(a.panelRows).toBe(10);
     // Σ P_i: four unanimous items (1 each), five 2-1 items (1/3 each), one 1-1-1 item (0) → 4 + 5/3
@@ -158,7 +159,7 @@ describe("Fleiss' kappa: three annotators, 10 items × 3 categories, 3 labels pe
     //   >>> fleiss_kappa(t, method='fleiss')
     //   0.3412162162162161
     // hand arithmetic: P̄ = 17/30, P_e = (12² + 10² + 8²)/30² = 308/900, κ = (510 − 308)/(900 − 308) = 202/592
-    const agreement = agreementOf(rollupSlices(loaded.cells, [])[0].audit);
+    const agreement = agreementOf(rollupSlices(loaded.table, [])[0].audit);
     expect(agreement!.method).toBe('fleiss');
     expect(agreement!.audited).toBe(10);
     expectClose(agreement!.kappa, 0.3412162162162161, LIBRARY);

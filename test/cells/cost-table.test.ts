@@ -15,6 +15,7 @@ import { CONTEXT, options as triageOptions } from '../helpers/cells.js';
 import { csvText } from '../helpers/audit-fixture.js';
 import { makeTempDir, removeTempDir } from '../helpers/table-variants.js';
 import { expectClose } from '../stats/expect-close.js';
+import { recordsOf } from '../helpers/cell-records.js';
 
 const EXACT = 1e-12; // hand arithmetic on invented numbers
 
@@ -98,11 +99,11 @@ describe('cost table: per-cell Σ w·cost and Σ w over matched rows', () => {
       [5, 7],
     ]);
     expect(loaded.floorTable).toBeNull();
-    expect(loaded.cells.every((c) => c.floorEntry === -1 && c.floorN === null)).toBe(true);
+    expect(recordsOf(loaded.table).every((c) => c.floorEntry === -1 && c.floorN === null)).toBe(true);
   });
 
   it('every cell: costSum and costWeight hand-counted; unmatched rows have costWeight 0', () => {
-    const got = Object.fromEntries(loaded.cells.map((c) => [`${c.split}|${c.key.station}|${c.key.shift}`, [c.costSum, c.costWeight, c.weight]]));
+    const got = Object.fromEntries(recordsOf(loaded.table).map((c) => [`${c.split}|${c.key.station}|${c.key.shift}`, [c.costSum, c.costWeight, c.weight]]));
     expect(Object.keys(got).sort()).toEqual(Object.keys(CELLS).sort());
     for (const [id, [sum, weight, all]] of Object.entries(CELLS)) {
       expectClose(got[id][0], sum, EXACT);
@@ -112,7 +113,7 @@ describe('cost table: per-cell Σ w·cost and Σ w over matched rows', () => {
   });
 
   it('rollupSlices by station adds them per split (hand arithmetic from the cells)', () => {
-    const slices = Object.fromEntries(rollupSlices(loaded.cells, ['station']).map((s) => [s.key.station, s.splits]));
+    const slices = Object.fromEntries(rollupSlices(loaded.table, ['station']).map((s) => [s.key.station, s.splits]));
     // S1 train: 6 + 5 = 11 over weight 3 + 1 = 4; S1 dev: 2.5 + 2 = 4.5 over 0.5 + 1 = 1.5
     expect([slices.S1.train!.costSum, slices.S1.train!.costWeight, slices.S1.train!.weight]).toEqual([11, 4, 4]);
     expect([slices.S1.dev!.costSum, slices.S1.dev!.costWeight]).toEqual([4.5, 1.5]);
@@ -128,7 +129,7 @@ describe('cost table: per-cell Σ w·cost and Σ w over matched rows', () => {
   });
 
   it('triage: the mean train cost mixes table costs with --label-cost for unmatched rows', () => {
-    const report = buildReport(loaded.cells, ['station'], [], CONTEXT, triageOptions({ labelCost: 1.5 }));
+    const report = buildReport(loaded.table, ['station'], [], CONTEXT, triageOptions({ labelCost: 1.5 }));
     const cost = Object.fromEntries(report.slices.map((s) => [s.key.station, s.cost]));
     // (Σ w·cost + (Σ w − Σ w matched) · 1.5) / Σ w over train rows:
     // S1 (11 + 0)/4 = 2.75; S2 (2 + 0)/4 = 0.5; S3 (0 + 1 · 1.5)/1 = 1.5

@@ -11,6 +11,7 @@ import { loadCells, type LoadOptions, type Loaded } from '../../src/cells/load.j
 import { FloorgapError } from '../../src/core/errors.js';
 import { csvToParquet, makeTempDir, removeTempDir, writeGzip } from '../helpers/table-variants.js';
 import { failure } from '../helpers/failure.js';
+import { recordsOf } from '../helpers/cell-records.js';
 
 // fixture (hand-written): 8 rows, lines 2–9; row id k sits on CSV line k + 1
 const HEADER = 'id,split,label,pred,station,weight,score';
@@ -141,10 +142,11 @@ describe('weights', () => {
     const loaded = await loadCells(duck, options({ source: files(path) }));
     // hand arithmetic on the fixture: train rows ids 1–3 weigh 1e100 + 1e-100 + 0 = 1e100 (the small weight
     // is lost in rounding), Σw² = 1e200; dev rows ids 4–6 weigh 1 each
-    const sum = (split: number, values: Float64Array) => loaded.table.split.reduce((a, s, i) => (s === split ? a + values[i] : a), 0);
-    expect(sum(0, loaded.table.weight)).toBe(1e100);
-    expect(sum(0, loaded.table.weightSq)).toBe(1e200);
-    expect(sum(2, loaded.table.weight)).toBe(3);
+    const records = recordsOf(loaded.table);
+    const sum = (split: string, field: 'weight' | 'weightSq') => records.reduce((a, c) => (c.split === split ? a + c[field] : a), 0);
+    expect(sum('train', 'weight')).toBe(1e100);
+    expect(sum('train', 'weightSq')).toBe(1e200);
+    expect(sum('dev', 'weight')).toBe(3);
   });
 
   it('a bad weight outside --where is not reported; the one inside is', async () => {
@@ -216,7 +218,7 @@ describe('scores and error columns', () => {
     const path = csvFile({ 2: { score: '' } });
     const loaded = await loadCells(duck, options({ source: files(path) }));
     // hand-counted: 8 rows, none left out
-    expect(loaded.cells.reduce((s, c) => s + c.rows, 0)).toBe(8);
+    expect(recordsOf(loaded.table).reduce((s, c) => s + c.rows, 0)).toBe(8);
   });
 
   it('an error column with a value that is not 0/1', async () => {
@@ -249,10 +251,10 @@ describe('floor tables', () => {
       `${floors}: line 4 (station=S2 · label=zz) matches no row`,
     ]);
     // hand-counted: the 4 S1 rows take entry 0 (floor 0.1), the 4 S2 rows the default floor 0.01
-    const s1 = loaded.cells.filter((c) => c.key.station === 'S1');
+    const s1 = recordsOf(loaded.table).filter((c) => c.key.station === 'S1');
     expect(s1.reduce((s, c) => s + c.rows, 0)).toBe(4);
     expect(s1.every((c) => c.floorEntry === 0 && c.floorSum === c.weight * 0.1)).toBe(true);
-    const s2 = loaded.cells.filter((c) => c.key.station === 'S2');
+    const s2 = recordsOf(loaded.table).filter((c) => c.key.station === 'S2');
     expect(s2.every((c) => c.floorEntry === -1 && Math.abs(c.floorSum - c.rows * 0.01) < 1e-12)).toBe(true);
   });
 
@@ -341,7 +343,7 @@ describe('splits', () => {
     const path = csvFile({ 4: { split: 'VAL' }, 5: { split: ' validation ' }, 6: { split: 'Dev' } });
     const loaded = await loadCells(duck, options({ source: files(path) }));
     // hand-counted: dev holds ids 4 (S2), 5 (S1, error), 6 (S2) → one S1 cell and one S2 cell
-    const dev = loaded.cells.filter((c) => c.split === 'dev');
+    const dev = recordsOf(loaded.table).filter((c) => c.split === 'dev');
     expect(dev.map((c) => [c.key.station, c.rows, c.errors]).sort()).toEqual([
       ['S1', 1, 1],
       ['S2', 2, 0],
@@ -403,8 +405,8 @@ describe('inputs, --where and column names', () => {
     const loaded = await loadCells(duck, options({ source: files(csvFile()), by: ['label', 'station'] }));
     expect(loaded.by).toEqual(['label', 'station']);
     // hand-counted: labels a (5 rows) and b (3 rows)
-    const a = loaded.cells.filter((c) => c.key.label === 'a').reduce((s, c) => s + c.rows, 0);
-    const b = loaded.cells.filter((c) => c.key.label === 'b').reduce((s, c) => s + c.rows, 0);
+    const a = recordsOf(loaded.table).filter((c) => c.key.label === 'a').reduce((s, c) => s + c.rows, 0);
+    const b = recordsOf(loaded.table).filter((c) => c.key.label === 'b').reduce((s, c) => s + c.rows, 0);
     expect([a, b]).toEqual([5, 3]);
   });
 });

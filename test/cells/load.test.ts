@@ -10,7 +10,7 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { openDuck, type Duck } from '../../src/sql/duck.js';
 import { loadCells, type LoadOptions, type Loaded } from '../../src/cells/load.js';
 import { rollupSlices, type SliceStats } from '../../src/slices/rollup.js';
-import type { Cell } from '../../src/core/cell.js';
+import type { CellRecord as Cell } from '../helpers/cell-records.js';
 import {
   cellId,
   expectCells,
@@ -27,6 +27,7 @@ import {
   type TextTable,
 } from '../helpers/engine-fixture.js';
 import { csvToParquet, makeTempDir, removeTempDir, writeGzip } from '../helpers/table-variants.js';
+import { recordsOf } from '../helpers/cell-records.js';
 
 const BINS = 5;
 
@@ -176,11 +177,11 @@ describe('loadCells: unweighted, default floor, full cross', () => {
     const columns = loaded.columns.map((c) => ({ name: c.name, edges: c.kind === 'binned' ? expectedEdges(TEMP_VALUES(rows), BINS) : undefined }));
     const expected = expectCells(rows, { columns, defaultFloor: 0.03 });
     expect(expected.cells.size).toBeGreaterThan(50);
-    expectSameCells(loaded.cells, expected, columns.map((c) => c.name));
+    expectSameCells(recordsOf(loaded.table), expected, columns.map((c) => c.name));
     // trimming: ' S2 ' and 'S2' are one station, and no key keeps stray spaces
-    expect(new Set(loaded.cells.map((c) => c.key.station))).toEqual(new Set(['S1', 'S2', 'S3', 'S4', '(missing)']));
-    expect(new Set(loaded.cells.map((c) => c.key.lighting))).toEqual(new Set(['dome', 'ring', 'coax', '(missing)']));
-    expect(loaded.cells.some((c) => c.key.temp === '(missing)')).toBe(true);
+    expect(new Set(recordsOf(loaded.table).map((c) => c.key.station))).toEqual(new Set(['S1', 'S2', 'S3', 'S4', '(missing)']));
+    expect(new Set(recordsOf(loaded.table).map((c) => c.key.lighting))).toEqual(new Set(['dome', 'ring', 'coax', '(missing)']));
+    expect(recordsOf(loaded.table).some((c) => c.key.temp === '(missing)')).toBe(true);
   });
 
   it('warns about unlabelled rows with their exact count, and about the missing floor only without one', () => {
@@ -193,7 +194,7 @@ describe('loadCells: unweighted, default floor, full cross', () => {
     // hand-counted property of the fixture: some rows differ from their label only by spaces
     const spacedOnly = rows.filter((r) => r.label !== '' && r.label !== r.pred && r.label.trim() === r.pred.trim());
     expect(spacedOnly.length).toBeGreaterThan(10);
-    const total = loaded.cells.reduce((s, c) => s + c.errors, 0);
+    const total = recordsOf(loaded.table).reduce((s, c) => s + c.errors, 0);
     const plain = rows.filter((r) => r.label.trim() !== '' && r.pred.trim() !== '' && r.label.trim() !== r.pred.trim()).length;
     expect(total).toBe(plain);
   });
@@ -236,9 +237,9 @@ describe('loadCells: weights and a floor table with n and keys of different spec
 
   it('every cell matches the plain-loop recomputation (weights, floors, entries, n)', () => {
     const expected = expectCells(rows, { columns, weight: 'weight', floors: FLOORS, defaultFloor: 0.01 });
-    expectSameCells(cross.cells, expected, columns.map((c) => c.name));
+    expectSameCells(recordsOf(cross.table), expected, columns.map((c) => c.name));
     // every entry but S9 is used, and the default floor too (hand-derived from the fixture's stations)
-    expect(new Set(cross.cells.map((c) => c.floorEntry))).toEqual(new Set([-1, 0, 1, 2, 3]));
+    expect(new Set(recordsOf(cross.table).map((c) => c.floorEntry))).toEqual(new Set([-1, 0, 1, 2, 3]));
   });
 
   it('warns about the floor-table entry that matches no row', () => {
@@ -268,13 +269,13 @@ describe('loadCells: weights and a floor table with n and keys of different spec
     const names = columns.map((c) => c.name);
     const patternOf = (c: Cell) => names.filter((n) => c.key[n] !== null).join('+');
     for (const set of sets.grouping.sets) {
-      const mine = sets.cells.filter((c) => patternOf(c) === set.join('+'));
+      const mine = recordsOf(sets.table).filter((c) => patternOf(c) === set.join('+'));
       const expected = expectCells(rows, { columns, grouped: set, weight: 'weight', floors: FLOORS, defaultFloor: 0.01 });
       expectSameCells(mine, expected, names);
     }
     // no cell belongs to a pattern outside the sets
     const patterns = new Set(sets.grouping.sets.map((s) => s.join('+')));
-    expect(sets.cells.every((c) => patterns.has(patternOf(c)))).toBe(true);
+    expect(recordsOf(sets.table).every((c) => patterns.has(patternOf(c)))).toBe(true);
   });
 
   it('grouping sets: the same warnings as the full cross (counts not multiplied by the number of sets)', () => {
@@ -283,13 +284,13 @@ describe('loadCells: weights and a floor table with n and keys of different spec
 
   it('grouping sets: rollups by one and two columns equal those of the full cross', () => {
     for (const by of [['station'], ['lighting'], ['temp'], ['station', 'lighting'], ['lighting', 'station'], ['temp', 'batch'], []]) {
-      expectSameSlices(rollupSlices(sets.cells, by), rollupSlices(cross.cells, by));
+      expectSameSlices(rollupSlices(sets.table, by), rollupSlices(cross.table, by));
     }
   });
 
   it('rollup by station matches the plain loop', () => {
     const expected = expectedSlices(expectCells(rows, { columns, weight: 'weight', floors: FLOORS, defaultFloor: 0.01 }), ['station']);
-    const got = rollupSlices(cross.cells, ['station']);
+    const got = rollupSlices(cross.table, ['station']);
     expect(got.length).toBe(expected.size);
     for (const s of got) {
       const e = expected.get(JSON.stringify([s.key.station]))!;
@@ -311,16 +312,16 @@ describe('loadCells: weights and a floor table with n and keys of different spec
     );
     expect(loaded.grouping.kind).toBe('sets');
     expect(loaded.by).toEqual(by);
-    const got = rollupSlices(loaded.cells, by);
+    const got = rollupSlices(loaded.table, by);
     // against the plain loop, cell by cell for the three columns
     const names = columns.map((c) => c.name);
-    const exact = loaded.cells.filter((c) => names.filter((n) => c.key[n] !== null).join('+') === 'station+lighting+batch');
+    const exact = recordsOf(loaded.table).filter((c) => names.filter((n) => c.key[n] !== null).join('+') === 'station+lighting+batch');
     expectSameCells(exact, expectCells(rows, { columns, grouped: by, weight: 'weight', floors: FLOORS, defaultFloor: 0.01 }), names);
     // and the rollup equals the full cross's rollup
-    expectSameSlices(got, rollupSlices(cross.cells, by));
+    expectSameSlices(got, rollupSlices(cross.table, by));
     // one- and two-column rollups still come from their own sets
-    expectSameSlices(rollupSlices(loaded.cells, ['batch']), rollupSlices(cross.cells, ['batch']));
-    expectSameSlices(rollupSlices(loaded.cells, ['station', 'batch']), rollupSlices(cross.cells, ['station', 'batch']));
+    expectSameSlices(rollupSlices(loaded.table, ['batch']), rollupSlices(cross.table, ['batch']));
+    expectSameSlices(rollupSlices(loaded.table, ['station', 'batch']), rollupSlices(cross.table, ['station', 'batch']));
   });
 
   it('the same rows in two files of different formats give the same cells', async () => {
@@ -332,7 +333,7 @@ describe('loadCells: weights and a floor table with n and keys of different spec
     const loaded = await loadCells(duck, options({ source: { files: [first, second], perSplit: {} }, floor: 0.01, floorTable: floorPath }));
     expect(loaded.columns).toEqual(cross.columns);
     const expected = expectCells(rows, { columns, weight: 'weight', floors: FLOORS, defaultFloor: 0.01 });
-    expectSameCells(loaded.cells, expected, columns.map((c) => c.name));
+    expectSameCells(recordsOf(loaded.table), expected, columns.map((c) => c.name));
   });
 
   it('--where filters rows before binning and scanning', async () => {
@@ -348,8 +349,8 @@ describe('loadCells: weights and a floor table with n and keys of different spec
     // B1 and B2 remain, so batch stays a slice column
     expect(cols.map((c) => c.name)).toEqual(['station', 'lighting', 'temp', 'batch']);
     const expected = expectCells(rows, { columns: cols, weight: 'weight', floors: FLOORS, defaultFloor: 0.01, keep });
-    expectSameCells(loaded.cells, expected, cols.map((c) => c.name));
-    expect(new Set(loaded.cells.map((c) => c.key.batch))).toEqual(new Set(['B1', 'B2']));
+    expectSameCells(recordsOf(loaded.table), expected, cols.map((c) => c.name));
+    expect(new Set(recordsOf(loaded.table).map((c) => c.key.batch))).toEqual(new Set(['B1', 'B2']));
     expect(loaded.warnings).toContain(`${expected.unlabelled} rows with an empty "label" or "pred" were left out`);
   });
 });
@@ -411,8 +412,8 @@ describe('loadCells: one file per split, in four formats', () => {
     expect(loaded.columns[2].edges).toEqual(edges);
     const columns = loaded.columns.map((c) => ({ name: c.name, edges: c.kind === 'binned' ? edges : undefined }));
     const expected = expectCells(rows, { columns, weight: 'weight', defaultFloor: 0.04, split: (r) => fileSplit.get(r.id)! });
-    expectSameCells(loaded.cells, expected, columns.map((c) => c.name));
-    expect(new Set(loaded.cells.map((c) => c.split))).toEqual(new Set(['train', 'train_dev', 'dev', 'test']));
+    expectSameCells(recordsOf(loaded.table), expected, columns.map((c) => c.name));
+    expect(new Set(recordsOf(loaded.table).map((c) => c.split))).toEqual(new Set(['train', 'train_dev', 'dev', 'test']));
   });
 });
 
@@ -436,14 +437,14 @@ describe('loadCells: error and correct columns', () => {
     const loaded = await loadCells(duck, options({ source: { files: [path], perSplit: {} } }));
     expect(loaded.roles.error).toBe('correct');
     expect(loaded.roles.errorIsCorrect).toBe(true);
-    const pick = (split: string, station: string) => loaded.cells.find((c) => c.split === split && c.key.station === station);
+    const pick = (split: string, station: string) => recordsOf(loaded.table).find((c) => c.split === split && c.key.station === station);
     // hand-counted: train A has 1 error of 2 rows, train B 1 of 2 (the empty row is left out),
     // dev A 1 of 2, dev B 0 of 1
     expect([pick('train', 'A')?.rows, pick('train', 'A')?.errors]).toEqual([2, 1]);
     expect([pick('train', 'B')?.rows, pick('train', 'B')?.errors]).toEqual([2, 1]);
     expect([pick('dev', 'A')?.rows, pick('dev', 'A')?.errors]).toEqual([2, 1]);
     expect([pick('dev', 'B')?.rows, pick('dev', 'B')?.errors]).toEqual([1, 0]);
-    expect(loaded.cells).toHaveLength(4);
+    expect(recordsOf(loaded.table)).toHaveLength(4);
     expect(loaded.warnings).toContain('1 row with an empty "correct" was left out');
   });
 });

@@ -3,7 +3,8 @@
  * unweighted sums of the audited rows of a slice (every split together), so a slice's audit is put on
  * its first cell and the other cells carry zero sums of the same shape, as the cell scan would give.
  */
-import type { AuditSums, Cell } from '../../src/core/cell.js';
+import type { AuditSums } from '../../src/core/cell.js';
+import type { CellRecord as Cell } from './cell-records.js';
 import { sliceCells, type SliceSpec } from './cells.js';
 
 /** Zero audit sums: `annotators` annotators, `classes` listed classes (+ one "other" class). */

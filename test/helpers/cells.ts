@@ -3,7 +3,7 @@
  * rows sharing one slice key, one split and one floor entry; these builders write them from counts so
  * that a test can state "450 errors in 5,000 train rows at floor 2 %" and nothing else.
  */
-import type { Cell } from '../../src/core/cell.js';
+import type { CellRecord as Cell } from './cell-records.js';
 import type { Split } from '../../src/core/split.js';
 import type { ReportContext } from '../../src/triage/report.js';
 import { DEFAULT_TRIAGE_OPTIONS, type TriageOptions } from '../../src/triage/types.js';

@@ -1,13 +1,14 @@
 /**
- * The typed-array rollup of encoded cells (src/engine/slices.ts) against a plain loop over Cell
- * objects, on random cells: the same slices with the same sums. Expected values: the plain loop.
+ * The arquero roll-up of the cell table (src/slices/rollup.ts) against a plain loop over cell records,
+ * on random cells: the same slices with the same sums. Expected values: the plain loop.
  */
 import { describe, expect, it } from 'vitest';
-import { cellsToTable, tableCells } from '../../src/cells/cell-table.js';
-import { cellsFor, rollupSlices } from '../../src/slices/rollup.js';
-import { type Cell } from '../../src/core/cell.js';
+import { cellsWithin, mergeCells } from '../../src/cells/cell-table.js';
+import { rollupByRun, rollupSlices } from '../../src/slices/rollup.js';
+import type { CellRecord as Cell } from '../helpers/cell-records.js';
 import { SPLITS } from '../../src/core/split.js';
 import { prng } from '../helpers/engine-fixture.js';
+import { cellsOf } from '../helpers/cell-records.js';
 
 const COLUMNS = ['a', 'b', 'c'];
 const VALUES = [['a0', 'a1', 'a2'], ['b0', 'b1', 'b2', 'b3', 'b4'], ['c0', 'c1']];
@@ -81,29 +82,38 @@ function expectSame(actual: ReturnType<typeof rollupSlices>, expected: ReturnTyp
   }
 }
 
-describe('rollupSlices on encoded cells', () => {
+describe('rollupSlices on the cell table', () => {
   const cells = randomCells(3000, 7);
-  const table = cellsToTable(cells);
+  const table = cellsOf(cells);
 
   for (const by of [[], ['a'], ['b', 'c'], ['c', 'a', 'b']]) {
-    it(`by [${by.join(', ')}]: the plain loop's sums, from the table and from Cell objects`, () => {
-      const expected = plainRollup(cells, by, null);
-      expectSame(rollupSlices(table, by), expected, by);
-      expectSame(rollupSlices(cells, by), expected, by);
-      // cells made from the table (as Loaded.cells are) select the table's rows without re-encoding
-      expectSame(rollupSlices(tableCells(table), by), expected, by);
+    it(`by [${by.join(', ')}]: the plain loop's sums`, () => {
+      expectSame(rollupSlices(table, by), plainRollup(cells, by, null), by);
     });
   }
 
-  it('one run only', () => {
+  it('one run only, and every run from one roll-up with the run in its key', () => {
     expectSame(rollupSlices(table, ['b'], 'r2'), plainRollup(cells, ['b'], 'r2'), ['b']);
     expect(rollupSlices(table, ['b'], 'r9')).toEqual([]);
+    const byRun = rollupByRun(table, ['b', 'c']);
+    expect([...byRun.keys()].sort()).toEqual(['r1', 'r2']);
+    for (const run of ['r1', 'r2']) expectSame(byRun.get(run)!, plainRollup(cells, ['b', 'c'], run), ['b', 'c']);
   });
 
-  it('a subset of the cells (a drill-down) rolls up only that subset', () => {
-    const objects = tableCells(table);
-    const subset = objects.filter((c) => c.key.a === 'a1');
-    expectSame(rollupSlices(subset, ['b']), plainRollup(subset, ['b'], null), ['b']);
+  it('the cells of one slice (a drill-down) roll up as that slice alone', () => {
+    const within = cellsWithin(table, { a: 'a1' }, ['a', 'b']);
+    const subset = cells.filter((c) => c.key.a === 'a1');
+    expect(within.size).toBe(subset.length);
+    expectSame(rollupSlices(within, ['b']), plainRollup(subset, ['b'], null), ['b']);
+    expect(cellsWithin(table, { a: 'no such value' }, ['a', 'b']).size).toBe(0);
+  });
+
+  it('merged tables re-code the second table\'s values into the first\'s dictionaries', () => {
+    const first = randomCells(500, 11);
+    const second = randomCells(400, 12).map((c) => ({ ...c, key: { ...c.key, a: c.key.a === null ? null : `${c.key.a}-new` } }));
+    const merged = mergeCells(cellsOf(first), cellsOf(second));
+    expect(merged.size).toBe(900);
+    expectSame(rollupSlices(merged, ['a', 'b']), plainRollup([...first, ...second], ['a', 'b'], null), ['a', 'b']);
   });
 });
 
@@ -114,11 +124,10 @@ describe('grouping sets', () => {
     for (const by of [['a'], ['b'], ['a', 'b'], ['b', 'a']]) {
       const want = [...by].sort().join();
       const own = cells.filter((c) => COLUMNS.filter((k) => c.key[k] !== null).sort().join() === want);
-      expect(cellsFor(cells, by)).toEqual(own);
-      expectSame(rollupSlices(cells, by), plainRollup(own, by, null), by);
+      expectSame(rollupSlices(cellsOf(cells), by), plainRollup(own, by, null), by);
     }
     const first = COLUMNS.filter((k) => cells[0].key[k] !== null).join();
     const own = cells.filter((c) => COLUMNS.filter((k) => c.key[k] !== null).join() === first);
-    expectSame(rollupSlices(cells, []), plainRollup(own, [], null), []);
+    expectSame(rollupSlices(cellsOf(cells), []), plainRollup(own, [], null), []);
   });
 });

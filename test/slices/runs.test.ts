@@ -12,6 +12,7 @@ import { runsOf } from '../../src/cells/cell-table.js';
 import { rollupSlices, type SliceStats } from '../../src/slices/rollup.js';
 import { csvText } from '../helpers/audit-fixture.js';
 import { makeTempDir, removeTempDir } from '../helpers/table-variants.js';
+import { recordsOf } from '../helpers/cell-records.js';
 
 let duck: Duck;
 let dir: string;
@@ -63,15 +64,15 @@ describe('runs: a `run` column', () => {
       expect(loaded.runs).toEqual(['r1', 'r2']);
       expect(loaded.columns.map((c) => c.name)).toEqual(['station']);
       expect(loaded.overviewColumns).toEqual(['station']);
-      expect(loaded.cells.every((c) => !('run' in c.key))).toBe(true);
-      expect(new Set(loaded.cells.map((c) => c.run))).toEqual(new Set(['r1', 'r2']));
-      expect(runsOf(loaded.cells)).toEqual(['r1', 'r2']);
+      expect(recordsOf(loaded.table).every((c) => !('run' in c.key))).toBe(true);
+      expect(new Set(recordsOf(loaded.table).map((c) => c.run))).toEqual(new Set(['r1', 'r2']));
+      expect(runsOf(loaded.table)).toEqual(['r1', 'r2']);
     }
   });
 
   it("rollupSlices(cells, [], 'r1') counts only r1 rows (hand-counted: rows 1–6)", () => {
     for (const loaded of [cross, sets]) {
-      const [r1] = rollupSlices(loaded.cells, [], 'r1');
+      const [r1] = rollupSlices(loaded.table, [], 'r1');
       // train rows 1, 2, 3 (error: 2); dev rows 4, 5, 6 (error: 5)
       expect(counts(r1)).toEqual({ train: [3, 1], dev: [3, 1] });
       expect(Object.keys(r1.key)).toEqual([]);
@@ -79,24 +80,24 @@ describe('runs: a `run` column', () => {
   });
 
   it("rollupSlices(cells, [], 'r2') counts only r2 rows, the spaced ' r2 ' included (rows 7–10)", () => {
-    const [r2] = rollupSlices(cross.cells, [], 'r2');
+    const [r2] = rollupSlices(cross.table, [], 'r2');
     expect(counts(r2)).toEqual({ train: [2, 2], dev: [2, 0] });
   });
 
   it('by station within a run (hand-counted)', () => {
     for (const loaded of [cross, sets]) {
-      const r1 = Object.fromEntries(rollupSlices(loaded.cells, ['station'], 'r1').map((s) => [s.key.station, counts(s)]));
+      const r1 = Object.fromEntries(rollupSlices(loaded.table, ['station'], 'r1').map((s) => [s.key.station, counts(s)]));
       // S1: train rows 1, 2 (error 2), dev row 4; S2: train row 3, dev rows 5 (error), 6
       expect(r1).toEqual({ S1: { train: [2, 1], dev: [1, 0] }, S2: { train: [1, 0], dev: [2, 1] } });
-      const r2 = Object.fromEntries(rollupSlices(loaded.cells, ['station'], 'r2').map((s) => [s.key.station, counts(s)]));
+      const r2 = Object.fromEntries(rollupSlices(loaded.table, ['station'], 'r2').map((s) => [s.key.station, counts(s)]));
       // S1: train row 7 (error), dev row 9; S2: train row 8 (error), dev row 10
       expect(r2).toEqual({ S1: { train: [1, 1], dev: [1, 0] }, S2: { train: [1, 1], dev: [1, 0] } });
     }
   });
 
   it('without a run, rollupSlices adds every run; an unknown run gives no slices', () => {
-    const [all] = rollupSlices(cross.cells, []);
+    const [all] = rollupSlices(cross.table, []);
     expect(counts(all)).toEqual({ train: [5, 3], dev: [5, 1] });
-    expect(rollupSlices(cross.cells, [], 'r3')).toEqual([]);
+    expect(rollupSlices(cross.table, [], 'r3')).toEqual([]);
   });
 });

@@ -6,7 +6,8 @@
  * (x, n) pairs; raw rates and rule counts are hand-computed from the invented audits.
  */
 import { describe, expect, it } from 'vitest';
-import type { AuditSums, Cell } from '../../src/core/cell.js';
+import type { AuditSums } from '../../src/core/cell.js';
+import type { CellRecord as Cell } from '../helpers/cell-records.js';
 import { fitBetaPrior } from '../../src/stats/index.js';
 import { ruleCounts } from '../../src/triage/annotator-floor.js';
 import { buildReport } from '../../src/triage/report.js';
@@ -14,6 +15,7 @@ import type { FloorRule, Report, SliceReport } from '../../src/triage/types.js';
 import { auditedSlice, panelAudit, zeroAuditSums } from '../helpers/audit-cells.js';
 import { CONTEXT, options, sliceCells, type SliceSpec } from '../helpers/cells.js';
 import { expectClose } from '../stats/expect-close.js';
+import { cellsOf } from '../helpers/cell-records.js';
 
 const EXACT = 1e-15; // hand arithmetic
 const FORMULA = 1e-14; // the posterior mean recomputed here from α, β
@@ -40,7 +42,7 @@ describe("panel floors: 8 slices of one grouping share a prior; 5 audited rows s
     L8: [400, 60],
   };
   const cells: Cell[] = Object.entries(AUDITS).flatMap(([line, [n, x]]) => auditedSlice({ line }, ROWS, panelAudit(n, x)));
-  const report = buildReport(cells, ['line'], [], CONTEXT, options());
+  const report = buildReport(cellsOf(cells), ['line'], [], CONTEXT, options());
   const slices = bySlice(report);
   const prior = fitBetaPrior(Object.values(AUDITS).map(([n, x]) => ({ x, n })));
   const strength = prior.alpha + prior.beta;
@@ -124,7 +126,7 @@ describe('floor table precedence: a floor-table slice keeps its table floor desp
     // Z: annotator columns given, but no row of Z was audited
     ...auditedSlice({ line: 'Z' }, ROWS, zeroAuditSums(3, 2)),
   ];
-  const slices = bySlice(buildReport(cells, ['line'], [], CONTEXT, options()));
+  const slices = bySlice(buildReport(cellsOf(cells), ['line'], [], CONTEXT, options()));
   const prior = fitBetaPrior([
     { x: 30, n: 300 },
     { x: 9, n: 300 },
@@ -183,7 +185,7 @@ describe('typical and best rules on the same audits', () => {
 
   for (const rule of ['typical', 'best', 'panel'] as const) {
     it(`${rule}: ruleCounts, raw rate and posterior per slice`, () => {
-      const slices = bySlice(buildReport(cells, ['line'], [], CONTEXT, options({ floorRule: rule })));
+      const slices = bySlice(buildReport(cellsOf(cells), ['line'], [], CONTEXT, options({ floorRule: rule })));
       const prior = fitBetaPrior(Object.values(COUNTS[rule]));
       for (const [line, { x, n }] of Object.entries(COUNTS[rule])) {
         expect(ruleCounts(AUDITS[line], rule), `${rule} ${line}`).toEqual({ x, n });
@@ -227,11 +229,11 @@ describe('the bias gap: an estimated floor widens the interval', () => {
     L8: [400, 60],
   };
   const cells: Cell[] = Object.entries(AUDITS).flatMap(([line, [n, x]]) => auditedSlice({ line }, ROWS, panelAudit(n, x)));
-  const estimated = bySlice(buildReport(cells, ['line'], [], CONTEXT, options())).L4;
+  const estimated = bySlice(buildReport(cellsOf(cells), ['line'], [], CONTEXT, options())).L4;
   // the same slice with the same floor value given exactly (default floor, no audit, no n)
   const v = estimated.floor.value;
   const exact = buildReport(
-    sliceCells({ line: 'L4' }, { train: { rows: 2000, errors: 200, floor: v }, dev: { rows: 2000, errors: 220, floor: v } }),
+    cellsOf(sliceCells({ line: 'L4' }, { train: { rows: 2000, errors: 200, floor: v }, dev: { rows: 2000, errors: 220, floor: v } })),
     ['line'],
     [],
     CONTEXT,

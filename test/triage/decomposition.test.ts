@@ -10,6 +10,7 @@ import { buildReport } from '../../src/triage/report.js';
 import type { Report, SliceReport } from '../../src/triage/types.js';
 import { CONTEXT, options, sliceCells } from '../helpers/cells.js';
 import { expectClose, expectRelClose } from '../stats/expect-close.js';
+import { cellsOf } from '../helpers/cell-records.js';
 
 const LIBRARY = 1e-12; // same formulas as statsmodels: agreement to rounding
 const EXACT = 1e-15; // hand arithmetic on invented numbers, exact up to floating point
@@ -35,7 +36,7 @@ function slice(report: Report, label: string): SliceReport {
 }
 
 describe('decomposition: floor 2 % vs 8.5 %, train 9 %, dev 11 %, 5,000 rows per split', () => {
-  const report = buildReport(cells, ['line'], [], CONTEXT, options());
+  const report = buildReport(cellsOf(cells), ['line'], [], CONTEXT, options());
   const a = slice(report, 'line=A');
   const b = slice(report, 'line=B');
 
@@ -179,11 +180,11 @@ describe('decomposition: floor 2 % vs 8.5 %, train 9 %, dev 11 %, 5,000 rows per
 describe('decomposition with a train_dev split and without test', () => {
   // fixture (hand-built): invented numbers; floor 5 % default
   const report = buildReport(
-    sliceCells({ line: 'A' }, {
+    cellsOf(sliceCells({ line: 'A' }, {
       train: { rows: 5000, errors: 250, floor: 0.05 },
       train_dev: { rows: 5000, errors: 260, floor: 0.05 },
       dev: { rows: 5000, errors: 450, floor: 0.05 },
-    }),
+    })),
     ['line'],
     [],
     CONTEXT,
@@ -220,14 +221,14 @@ describe('a slice without train_dev rows in data that has a train_dev split', ()
   // fixture (hand-built): invented numbers. P has train_dev (floor 5 %: 250 / 260 / 450 errors of 5,000);
   // Q has none (floor 2 %: train 450, dev 550 errors of 5,000).
   const report = buildReport(
-    [
+    cellsOf([
       ...sliceCells({ line: 'P' }, {
         train: { rows: 5000, errors: 250, floor: 0.05 },
         train_dev: { rows: 5000, errors: 260, floor: 0.05 },
         dev: { rows: 5000, errors: 450, floor: 0.05 },
       }),
       ...sliceCells({ line: 'Q' }, { train: { rows: 5000, errors: 450, floor: 0.02 }, dev: { rows: 5000, errors: 550, floor: 0.02 } }),
-    ],
+    ]),
     ['line'],
     [],
     CONTEXT,

@@ -10,6 +10,7 @@ import { significant } from '../../src/triage/triage.js';
 import type { Report, SliceReport } from '../../src/triage/types.js';
 import { CONTEXT, options, sliceCells } from '../helpers/cells.js';
 import { expectClose, expectRelClose } from '../stats/expect-close.js';
+import { cellsOf } from '../helpers/cell-records.js';
 
 const LIBRARY = 1e-12; // same formulas as statsmodels: agreement to rounding
 
@@ -34,7 +35,7 @@ describe('thin slices stay out of the family', () => {
       test: { rows: 20, errors: 4, floor: 0.02 },
     }),
   ];
-  const report = buildReport(cells, ['line'], [], CONTEXT, options());
+  const report = buildReport(cellsOf(cells), ['line'], [], CONTEXT, options());
   const n = slice(report, 'line=N');
   const t = slice(report, 'line=T');
 
@@ -81,8 +82,8 @@ describe('BH vs BY on a borderline slice', () => {
       test: { rows: 2000, errors: 150, floor: 0.05 },
     }),
   ];
-  const bh = buildReport(cells, ['line'], [], CONTEXT, options());
-  const by = buildReport(cells, ['line'], [], CONTEXT, options({ fdrMethod: 'by' }));
+  const bh = buildReport(cellsOf(cells), ['line'], [], CONTEXT, options());
+  const by = buildReport(cellsOf(cells), ['line'], [], CONTEXT, options({ fdrMethod: 'by' }));
 
   it('raw p-values (the same under both methods)', () => {
     for (const r of [bh, by]) {

@@ -8,12 +8,13 @@ import { buildReport } from '../../src/triage/report.js';
 import type { SliceReport } from '../../src/triage/types.js';
 import { CONTEXT, options, sliceCells, type SliceSpec } from '../helpers/cells.js';
 import { expectClose } from '../stats/expect-close.js';
+import { cellsOf } from '../helpers/cell-records.js';
 
 const LIBRARY = 1e-12; // same formulas as statsmodels / scipy: agreement to rounding
 const EXACT = 1e-15; // hand arithmetic on invented numbers
 
 function one(spec: SliceSpec): SliceReport {
-  return buildReport(sliceCells({ line: 'x' }, spec), ['line'], [], CONTEXT, options()).slices[0];
+  return buildReport(cellsOf(sliceCells({ line: 'x' }, spec)), ['line'], [], CONTEXT, options()).slices[0];
 }
 
 describe('floor source', () => {
@@ -45,7 +46,7 @@ describe('floor source', () => {
       ...sliceCells({ line: 'a' }, { train: { rows: 100, errors: 5, floor: 0.03, entry: 0 }, dev: { rows: 100, errors: 5, floor: 0.03, entry: 0 } }),
       ...sliceCells({ line: 'b' }, { train: { rows: 100, errors: 5, floor: 0.05 }, dev: { rows: 100, errors: 5, floor: 0.05 } }),
     ];
-    const report = buildReport(cells, ['line'], [], CONTEXT, options());
+    const report = buildReport(cellsOf(cells), ['line'], [], CONTEXT, options());
     expect(report.overall.floor.source).toBe('mixed');
     expect(report.slices.find((s) => s.label === 'line=a')?.floor.source).toBe('table');
     expect(report.slices.find((s) => s.label === 'line=b')?.floor.source).toBe('default');

@@ -9,12 +9,13 @@ import { significant } from '../../src/triage/triage.js';
 import type { Gap, SliceReport, TriageOptions } from '../../src/triage/types.js';
 import { CONTEXT, options, sliceCells, type SliceSpec } from '../helpers/cells.js';
 import { expectClose } from '../stats/expect-close.js';
+import { cellsOf } from '../helpers/cell-records.js';
 
 const LIBRARY = 1e-12; // same formulas as statsmodels / scipy: agreement to rounding
 const EXACT = 1e-15; // hand arithmetic on invented numbers
 
 function one(spec: SliceSpec, over: Partial<TriageOptions> = {}): SliceReport {
-  return buildReport(sliceCells({ line: 'x' }, spec), ['line'], [], CONTEXT, options(over)).slices[0];
+  return buildReport(cellsOf(sliceCells({ line: 'x' }, spec)), ['line'], [], CONTEXT, options(over)).slices[0];
 }
 
 describe('focus thin: fewer than minRows train or dev rows', () => {

@@ -4,11 +4,12 @@
  * statsmodels 0.13.5 (Debian 0.13.5+dfsg) with /usr/bin/python3.
  */
 import { describe, expect, it } from 'vitest';
-import type { Cell } from '../../src/core/cell.js';
+import type { CellRecord as Cell } from '../helpers/cell-records.js';
 import { buildReport } from '../../src/triage/report.js';
 import type { Report, SliceReport } from '../../src/triage/types.js';
 import { CONTEXT, cell, options, sliceCells } from '../helpers/cells.js';
 import { expectClose, expectRelClose } from '../stats/expect-close.js';
+import { cellsOf } from '../helpers/cell-records.js';
 
 const LIBRARY = 1e-12; // same formulas as statsmodels: agreement to rounding
 const EXACT = 1e-15; // hand arithmetic on invented numbers
@@ -48,7 +49,7 @@ function get(r: Report, label: string): SliceReport {
 }
 
 describe('overview: by = null', () => {
-  const r = buildReport(cross, null, ['station', 'lighting'], CONTEXT, options());
+  const r = buildReport(cellsOf(cross), null, ['station', 'lighting'], CONTEXT, options());
 
   it('has every one-column slice of each overview column, and by = null', () => {
     expect(r.by).toBeNull();
@@ -116,14 +117,14 @@ describe('overview: by = null', () => {
   });
 
   it('grouping-set cells (one set per column) give the same report as cross cells', () => {
-    const g = buildReport(groupingSets(), null, ['station', 'lighting'], CONTEXT, options());
+    const g = buildReport(cellsOf(groupingSets()), null, ['station', 'lighting'], CONTEXT, options());
     expect(g.overall).toEqual(r.overall);
     const byLabel = (rep: Report) => Object.fromEntries(rep.slices.map((s) => [s.label, s]));
     expect(byLabel(g)).toEqual(byLabel(r));
   });
 
   it('with by = [station, lighting] the slices are the cross instead', () => {
-    const c = buildReport(cross, ['station', 'lighting'], ['station', 'lighting'], CONTEXT, options());
+    const c = buildReport(cellsOf(cross), ['station', 'lighting'], ['station', 'lighting'], CONTEXT, options());
     expect(c.by).toEqual(['station', 'lighting']);
     expect(c.slices.map((s) => s.label).sort()).toEqual([
       'station=S1 · lighting=dome',

@@ -10,13 +10,14 @@ import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import fc from 'fast-check';
 import { afterAll, describe, expect, it } from 'vitest';
-import type { Cell } from '../../src/core/cell.js';
+import type { CellRecord as Cell } from '../helpers/cell-records.js';
 import type { Split } from '../../src/core/split.js';
 import { renderJson } from '../../src/render/json.js';
 import { buildReport } from '../../src/triage/report.js';
 import type { Report, SliceReport } from '../../src/triage/types.js';
 import { CONTEXT, options, sliceCells, type RowsSpec, type SliceSpec } from '../helpers/cells.js';
 import { runMain } from '../helpers/run-main.js';
+import { cellsOf as tableOf } from '../helpers/cell-records.js';
 
 /** Floor-table entries of a case: entry k has floor floors[k] and sample size ns[k] (null: exact). */
 interface Entries {
@@ -100,7 +101,7 @@ describe('report properties on random cells (buildReport)', () => {
     fc.assert(
       fc.property(cellCase(anyWeight, anyFloor), (c) => {
         const cells = cellsOf(c);
-        const report = buildReport(cells, ['station'], [], CONTEXT, options());
+        const report = buildReport(tableOf(cells), ['station'], [], CONTEXT, options());
         const checked = [report.overall, ...report.slices].filter((s) => s.headroom !== null);
         seen.slices += checked.length;
         seen.noHeadroom += report.slices.length - checked.length + 1;
@@ -138,7 +139,7 @@ describe('report properties on random cells (buildReport)', () => {
     fc.assert(
       fc.property(cellCase(anyWeight, anyFloor), (c) => {
         const cells = cellsOf(c);
-        const report = buildReport(cells, ['station'], [], CONTEXT, options());
+        const report = buildReport(tableOf(cells), ['station'], [], CONTEXT, options());
         const why = describeCase(cells);
         // every station is a slice: the slices partition the cells
         expect(report.slices.map((s) => s.label).sort(), why).toEqual(
@@ -171,8 +172,8 @@ describe('report properties on random cells (buildReport)', () => {
     });
     fc.assert(
       fc.property(withOrder, ([cells, shuffled]) => {
-        const a = buildReport(cells, ['station'], [], CONTEXT, options());
-        const b = buildReport(shuffled, ['station'], [], CONTEXT, options());
+        const a = buildReport(tableOf(cells), ['station'], [], CONTEXT, options());
+        const b = buildReport(tableOf(shuffled), ['station'], [], CONTEXT, options());
         expect(b, describeCase(shuffled)).toEqual(a);
       }),
       { seed: 42 },
@@ -213,7 +214,7 @@ describe('the JSON of a report over the whole input domain (buildReport → rend
         // a split whose rows all weigh 0 is an input error (docs/method.md, "Weights")
         fc.pre(total('train') > 0 && total('dev') > 0);
         reports += 1;
-        const report = buildReport(cells, ['station'], [], CONTEXT, options({ labelCost, curveExponent }));
+        const report = buildReport(tableOf(cells), ['station'], [], CONTEXT, options({ labelCost, curveExponent }));
         // JSON has no −0 (it parses back as 0); every other number must come back as it was
         expect(JSON.parse(renderJson(report)), describeCase(cells)).toEqual(withoutNegativeZero(report));
       }),

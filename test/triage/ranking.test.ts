@@ -9,6 +9,7 @@ import { labelsToHalve, sliceYield } from '../../src/triage/triage.js';
 import type { Report, SliceReport, TriageOptions } from '../../src/triage/types.js';
 import { CONTEXT, options, sliceCells } from '../helpers/cells.js';
 import { expectClose } from '../stats/expect-close.js';
+import { cellsOf } from '../helpers/cell-records.js';
 
 const EXACT = 1e-15; // hand arithmetic on invented numbers
 
@@ -64,7 +65,7 @@ const cells = [
   ...three('V2', [5000, 5000, 200], [100, 200, 8], 0.02),
   ...three('TH', [20, 20, 20], [1, 2, 3], 0.02),
 ];
-const build = (over: Partial<TriageOptions> = {}): Report => buildReport(cells, ['s'], [], CONTEXT, options(over));
+const build = (over: Partial<TriageOptions> = {}): Report => buildReport(cellsOf(cells), ['s'], [], CONTEXT, options(over));
 const get = (r: Report, name: string): SliceReport => r.slices.find((s) => s.label === `s=${name}`)!;
 
 describe('labelsToHalve = n·(2^(1/β) − 1)', () => {

@@ -7,6 +7,7 @@ import { describe, expect, it } from 'vitest';
 import { buildReport } from '../../src/triage/report.js';
 import { cell, CONTEXT, options, sliceCells } from '../helpers/cells.js';
 import { expectClose } from '../stats/expect-close.js';
+import { cellsOf } from '../helpers/cell-records.js';
 
 const LIBRARY = 1e-12; // same formulas as statsmodels: agreement to rounding
 const EXACT = 1e-12; // hand arithmetic on invented numbers
@@ -28,7 +29,7 @@ const cells = [
   }),
   ...sliceCells({ line: 'U' }, { train: { rows: 2000, errors: 100, floor: 0.02 }, dev: { rows: 1000, errors: 50, floor: 0.02 } }),
 ];
-const report = buildReport(cells, ['line'], [], CONTEXT, options());
+const report = buildReport(cellsOf(cells), ['line'], [], CONTEXT, options());
 const w = report.slices.find((s) => s.label === 'line=W')!;
 const u = report.slices.find((s) => s.label === 'line=U')!;
 
@@ -99,7 +100,7 @@ describe('sums that no valid weights give', () => {
     const inf = [{ ...cell({ line: 'INF' }, 'train', { rows: 2, errors: 1 }), weight: 2e154, weightSq: Infinity, errors: 1e154 }, cell({ line: 'INF' }, 'dev', { rows: 50, errors: 5 })];
     // Σw = 1e-200 whose Σw² underflowed to 0: Kish n = 0
     const zero = [cell({ line: 'ZERO' }, 'train', { rows: 50, errors: 5 }), { ...cell({ line: 'ZERO' }, 'dev', { rows: 1, errors: 0 }), weight: 1e-200, weightSq: 0 }];
-    const r = buildReport([...ok, ...inf, ...zero], ['line'], [], CONTEXT, options());
+    const r = buildReport(cellsOf([...ok, ...inf, ...zero]), ['line'], [], CONTEXT, options());
     const by = (label: string) => r.slices.find((s) => s.label === label)!;
     expect(by('line=INF').error.train).toBeNull();
     expect(by('line=INF').error.dev?.value).toBe(0.1); // hand arithmetic: 5 / 50
@@ -114,7 +115,7 @@ describe('a slice whose rows all weigh 0', () => {
     // fixture (hand-built): slice Z has 100 train and 100 dev rows, every one of weight 0
     const ok = sliceCells({ line: 'OK' }, { train: { rows: 100, errors: 10 }, dev: { rows: 100, errors: 12 } });
     const z = sliceCells({ line: 'Z' }, { train: { rows: 100, errors: 10, weight: 0 }, dev: { rows: 100, errors: 20, weight: 0 } });
-    const r = buildReport([...ok, ...z], ['line'], [], CONTEXT, options());
+    const r = buildReport(cellsOf([...ok, ...z]), ['line'], [], CONTEXT, options());
     const slice = r.slices.find((s) => s.label === 'line=Z')!;
     expect(slice.rows).toEqual({ train: 100, train_dev: null, dev: 100, test: null }); // unweighted counts
     expect(slice.error.dev).toBeNull();
@@ -132,7 +133,7 @@ describe('extreme but valid weights', () => {
       ...sliceCells({ line: 'A' }, { train: { rows: 1, errors: 0, weight: 1e100, entry: 0 }, dev: { rows: 50, errors: 5 } }),
       ...sliceCells({ line: 'B' }, { train: { rows: 4, errors: 0, weight: 1e-62, entry: 1, floorN: 5, floor: 0.1 } }),
     ];
-    const r = buildReport(cells, ['line'], [], CONTEXT, options());
+    const r = buildReport(cellsOf(cells), ['line'], [], CONTEXT, options());
     expect(r.overall.floor.n).toBeNull();
     // hand arithmetic: the 1e100 rows dominate; floor sum 4e-62 × 0.1 over 1e100 is 4e-163
     expect(r.overall.floor.value).toBeCloseTo(0, 12);
