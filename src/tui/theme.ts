@@ -27,3 +27,12 @@ export interface Span {
   readonly dim?: boolean;
   readonly inverse?: boolean;
 }
+
+/**
+ * A line of one span.
+ * @example
+ * lineOf('keys', { bold: true }); // => [{ text: 'keys', bold: true }]
+ */
+export function lineOf(text: string, style: Omit<Span, 'text'> = {}): Span[] {
+  return [{ text, ...style }];
+}

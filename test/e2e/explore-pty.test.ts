@@ -22,7 +22,7 @@ const COLS = 80;
 const ROWS = 24;
 /** the longest any single wait may take (loading the sample takes a few seconds) */
 const WAIT = 15_000;
-/** the status line of a loaded table always starts with the sort (src/tui/App.tsx, statusSpans) */
+/** the status line of a loaded table always starts with the sort (src/tui/components/StatusBar.tsx) */
 const TABLE = /^sort \S/;
 
 /** The slice with the most headroom (ties: the report's rank), as `h` sorts (src/tui/model.ts). */
@@ -240,7 +240,7 @@ describe('stopping while the table loads', () => {
   });
   afterAll(() => rmSync(dir, { recursive: true, force: true }));
 
-  /** one second into loading, by the loading screen's clock (src/tui/App.tsx), or the table if it came first */
+  /** one second into loading, by the loading screen's clock (src/tui/screens/LoadingScreen.tsx), or the table if it came first */
   const aSecondIn = (p: PtySession) => p.waitUntil((l) => l.some((x) => /\b[1-9]\d*\.\d s$/.test(x)) || l.some((x) => TABLE.test(x)), WAIT, 'a second of loading');
 
   it('SIGHUP: 129, terminal restored', async () => {
@@ -328,7 +328,7 @@ async function waitForTmux(t: TmuxSession, test: (lines: string[]) => boolean, w
 }
 
 describe('short terminals', () => {
-  /** src/tui/App.tsx: what a terminal of fewer than 4 rows shows */
+  /** src/tui/screens/TooSmallScreen.tsx: what a terminal of fewer than 4 rows shows */
   const NOTE = 'floorgap: enlarge the window (at least 4 rows and 20 columns)';
   /** what the frame shows at `rows` (screenLayout in src/tui/model.ts), always within rows − 1 lines */
   const expectedAt = (rows: number) => (l: string[]) => {

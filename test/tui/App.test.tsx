@@ -95,7 +95,7 @@ describe('loading', () => {
     const x = renderExplorer({ load: () => new Promise(() => undefined), progress: () => ({ percent: 42 }), ascii: true });
     open.push(x);
     await new Promise((r) => setTimeout(r, 320)); // the App polls every 250 ms
-    // bar width min(40, 80 − 20) = 40, round(0.42 · 40) = 17 filled (progressBar in src/tui/App.tsx)
+    // bar width min(40, 80 − 20) = 40, round(0.42 · 40) = 17 filled (progressBar in src/tui/screens/LoadingScreen.tsx)
     expect(screen(x)[2]).toMatch(new RegExp(`^\\[${'#'.repeat(17)}${'-'.repeat(23)}\\] 42% {2}0\\.[2-9] s$`));
   });
 
@@ -107,7 +107,7 @@ describe('loading', () => {
     // message as thrown, sanitised (definition of sanitize in src/render/sanitize.ts)
     expect(screen(x).slice(0, 3)).toEqual(['floorgap', '', 'floorgap: cannot read runs/bad\\x1b[2J.csv: no such file']);
     expect(x.exits).toEqual([]);
-    await new Promise((r) => setTimeout(r, 1300)); // the App waits 1,200 ms (src/tui/App.tsx)
+    await new Promise((r) => setTimeout(r, 1300)); // the App waits 1,200 ms (src/tui/hooks/use-explorer-data.ts)
     expect(x.exits).toEqual([{ code: 2, error }]);
   });
 
@@ -118,7 +118,7 @@ describe('loading', () => {
     await settle();
     // the line the CLI prints for an internal error (failureText in src/render/failure.ts): first line only
     expect(screen(x).slice(0, 3)).toEqual(['floorgap', '', "floorgap: internal error: Cannot read properties of undefined (reading 'slices')"]);
-    await new Promise((r) => setTimeout(r, 1300)); // the App waits 1,200 ms (src/tui/App.tsx)
+    await new Promise((r) => setTimeout(r, 1300)); // the App waits 1,200 ms (src/tui/hooks/use-explorer-data.ts)
     expect(x.exits).toEqual([{ code: 3, error }]);
   });
 
@@ -224,7 +224,7 @@ describe('the slice table', () => {
 });
 
 describe('several keys in one read (key repeat, a paste, a burst over SSH)', () => {
-  // the bottom line of an 80×24 frame is line 22; the prompts' text is defined in src/tui/App.tsx (bottomSpans)
+  // the bottom line of an 80×24 frame is line 22; the prompts' text is defined in src/tui/components/KeyHints.tsx
   it('applies every Backspace and character of one chunk in order in the filter prompt', async () => {
     const x = await explorer({ data: fakeExplorerData().data });
     await x.press('/');
@@ -309,7 +309,7 @@ describe('the narrow layout (60×20)', () => {
 describe('short terminals: never more than rows − 1 lines', () => {
   /** the frame's lines; an empty frame (ink wrote nothing) has none */
   const frameLines = (x: Explorer) => (x.frame() === '' ? [] : screen(x));
-  const NOTE = 'floorgap: enlarge the window (at least 4 rows and 20 columns)'; // src/tui/App.tsx
+  const NOTE = 'floorgap: enlarge the window (at least 4 rows and 20 columns)'; // src/tui/screens/TooSmallScreen.tsx
 
   it('fits every screen at every height from 1 to 12 rows', async () => {
     const screens: [string, string[]][] = [
