@@ -15,6 +15,7 @@ import { createReadStream, existsSync, mkdirSync, mkdtempSync, rmSync, writeFile
 import { cpus, loadavg, tmpdir, totalmem } from 'node:os';
 import { join } from 'node:path';
 import { op, table as aqTable } from 'arquero';
+import { median } from 'simple-statistics';
 import { writeBenchTable } from './bench-table.js';
 import { cellColumns, cellTable, SUM_COLUMNS, type CellTable, type SumColumn } from '../src/cells/cell-table.js';
 import { openDuck, type Duck } from '../src/sql/duck.js';
@@ -40,10 +41,6 @@ const formats = opt('formats', 'csv,parquet').split(',') as ('csv' | 'parquet')[
 const hasTime = existsSync('/usr/bin/time');
 const CLI = 'dist/cli.js';
 
-const median = (xs: readonly number[]) => {
-  const s = [...xs].sort((a, b) => a - b);
-  return s.length % 2 ? s[(s.length - 1) / 2] : (s[s.length / 2 - 1] + s[s.length / 2]) / 2;
-};
 const now = () => performance.now();
 const log = (s: string) => process.stderr.write(s + '\n');
 

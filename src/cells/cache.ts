@@ -114,6 +114,7 @@ export async function cacheKey(options: LoadOptions, version: string, cwd: strin
     by: options.by,
     sliceCols: options.sliceCols,
     bins: options.bins,
+    binMethod: options.binMethod ?? 'quantile',
     maxCells: options.maxCells,
     maxSlices: options.maxSlices ?? null,
     floor: options.floor,

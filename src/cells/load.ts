@@ -15,7 +15,7 @@ import { safeWhere } from '../sql/where.js';
 import { ident } from '../sql/quote.js';
 import type { SliceColumn } from '../core/cell.js';
 import { normalizeSplit, SPLITS, type Split } from '../core/split.js';
-import { textSql } from './profile.js';
+import { textSql, type BinMethod } from './profile.js';
 import { cacheKey, readCache, writeCache } from './cache.js';
 import { describeKey, readFloorTable, type FloorEntry, type FloorTable } from '../read/keyed-table.js';
 import { locateReadError, readError, withReadErrors } from '../read/read-errors.js';
@@ -31,6 +31,8 @@ export interface LoadOptions {
   readonly by: readonly string[] | null;
   readonly sliceCols: readonly string[] | null;
   readonly bins: number;
+  /** how numeric columns are cut into bins: 'quantile' (the default, about equal frequency) or 'natural' (natural breaks) */
+  readonly binMethod?: BinMethod;
   readonly maxCells: number;
   /** most slices one grouping (the `--by` cross, or the overview) may hold; default {@link MAX_SLICES} */
   readonly maxSlices?: number;
@@ -255,7 +257,7 @@ async function planColumns(
   }
   if (wanted.length === 0 && !by) warnings.push('no candidate slice columns (2–50 distinct values, or numeric); name some with --slice-cols');
   const edges = overrides.edges ?? new Map<string, readonly number[]>();
-  const columns = (await sliceColumns(duck, wanted.filter((c) => !edges.has(c.name)), options.bins, options.where, sample)).concat(
+  const columns = (await sliceColumns(duck, wanted.filter((c) => !edges.has(c.name)), options.bins, options.where, sample, options.binMethod)).concat(
     wanted.filter((c) => edges.has(c.name)).map((c): SliceColumn => ({ name: c.name, kind: 'binned', edges: [...edges.get(c.name)!] })),
   );
   columns.sort((a, b) => wanted.findIndex((w) => w.name === a.name) - wanted.findIndex((w) => w.name === b.name));

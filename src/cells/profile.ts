@@ -3,6 +3,7 @@ import { ROWS_VIEW, whereSql } from '../read/source.js';
 import { ident } from '../sql/quote.js';
 import type { SliceColumn } from '../core/cell.js';
 import { error } from '../core/errors.js';
+import { naturalBreaks } from '../stats/natural-breaks.js';
 
 /** What the sampled pre-pass saw of one column. */
 export interface ColumnProfile {
@@ -231,6 +232,87 @@ export async function binEdges(
   return edges;
 }
 
+/** How numeric slice columns are cut into bins (`--bin-method`). */
+export const BIN_METHODS = ['quantile', 'natural'] as const;
+export type BinMethod = (typeof BIN_METHODS)[number];
+
+/** Most distinct values of a column that its natural breaks are computed from. */
+export const NATURAL_MAX_VALUES = 10_000;
+
+/**
+ * At most `max` of the sorted `values`, evenly spaced by rank (a systematic sample: the smallest, the
+ * largest, and every (n − 1)/(max − 1)-th value between); all of them when there are at most `max`.
+ * @example
+ * evenlySpaced([0, 1, 2, 3, 4, 5, 6, 7, 8, 9], 4); // => [0, 3, 6, 9]
+ */
+export function evenlySpaced(values: readonly number[], max: number): number[] {
+  const n = values.length;
+  if (n <= max) return [...values];
+  if (max < 2) return values.slice(0, max);
+  return Array.from({ length: max }, (_, i) => values[Math.round((i * (n - 1)) / (max - 1))]);
+}
+
+/**
+ * The values natural breaks are computed from: the distinct finite numbers of the column in the sample,
+ * sorted, at most {@link NATURAL_MAX_VALUES} of them ({@link evenlySpaced} when there are more).
+ */
+export async function naturalValues(duck: Duck, column: string, where: string | null, sampleRows = SAMPLE_ROWS, from?: string): Promise<number[]> {
+  const rows = await duck.all(
+    `SELECT DISTINCT v FROM (SELECT TRY_CAST(${textSql(column)} AS DOUBLE) AS v FROM ${sampleSql(where, sampleRows, from)}) WHERE v IS NOT NULL AND NOT isnan(v) AND NOT isinf(v) ORDER BY v`,
+  );
+  return evenlySpaced(rows.map((r) => Number(r.v)), NATURAL_MAX_VALUES);
+}
+
+/**
+ * The edge between two runs of values, as a label shows it: the number of 3 significant digits nearest
+ * `mid` (the point halfway between the runs) in (below, above], so that every value keeps its run (a bin
+ * `[a, b)` puts a value equal to b in the next bin, where `above` belongs); `round3(mid)` when no such
+ * number lies there (runs closer than 3 significant digits tell apart).
+ * @param below the largest value of the lower run
+ * @param above the smallest value of the upper run
+ * @example
+ * gapEdge(0.5875, 0.587, 0.588); // => 0.588 (0.587, the rounded midpoint, would move 0.587 up a bin)
+ * gapEdge(15.5, 15, 16); // => 15.5
+ */
+export function gapEdge(mid: number, below: number, above: number): number {
+  const inGap = (x: number) => x > below && x <= above;
+  const nearest = round3(mid);
+  if (inGap(nearest) || mid === 0) return nearest;
+  // the 3-significant-digit number on the other side of the midpoint: the only other one that can be in the gap
+  const step = 10 ** (Math.floor(Math.log10(Math.abs(mid))) - 2);
+  const other = round3(nearest < mid ? nearest + step : nearest - step);
+  return inGap(other) ? other : nearest;
+}
+
+/**
+ * Bin edges at the natural breaks of the column (optimal 1-D k-means of its distinct sampled values,
+ * each counted once; see {@link naturalBreaks}): interior edges between the runs, each the number of 3
+ * significant digits nearest the midpoint that keeps both runs whole ({@link gapEdge}), duplicates removed.
+ */
+export async function naturalBinEdges(
+  duck: Duck,
+  column: string,
+  bins: number,
+  where: string | null,
+  sampleRows = SAMPLE_ROWS,
+  from?: string,
+): Promise<number[]> {
+  if (bins < 2) return [];
+  const values = await naturalValues(duck, column, where, sampleRows, from);
+  const edges = naturalBreaks(values, bins).map((mid) => {
+    // the runs' neighbouring values: the last value below the midpoint and the first above it
+    let lo = 0;
+    let hi = values.length - 1;
+    while (lo < hi) {
+      const m = (lo + hi) >> 1;
+      if (values[m] > mid) hi = m;
+      else lo = m + 1;
+    }
+    return gapEdge(mid, values[lo - 1], values[lo]);
+  });
+  return [...new Set(edges)].sort((a, b) => a - b);
+}
+
 /** Human-readable label of bin `i` of a binned column with the given interior edges. */
 export function binLabel(edges: readonly number[], i: number): string {
   if (edges.length === 0) return 'all';
@@ -239,17 +321,19 @@ export function binLabel(edges: readonly number[], i: number): string {
   return `[${edges[i - 1]}, ${edges[i]})`;
 }
 
-/** Builds the SliceColumn list, computing bin edges for binned columns. */
+/** Builds the SliceColumn list, computing bin edges for binned columns by `method`. */
 export async function sliceColumns(
   duck: Duck,
   chosen: readonly { name: string; kind: 'category' | 'binned' }[],
   bins: number,
   where: string | null,
   from?: string,
+  method: BinMethod = 'quantile',
 ): Promise<SliceColumn[]> {
+  const edgesOf = method === 'natural' ? naturalBinEdges : binEdges;
   const out: SliceColumn[] = [];
   for (const c of chosen) {
-    if (c.kind === 'binned') out.push({ name: c.name, kind: 'binned', edges: await binEdges(duck, c.name, bins, where, SAMPLE_ROWS, from) });
+    if (c.kind === 'binned') out.push({ name: c.name, kind: 'binned', edges: await edgesOf(duck, c.name, bins, where, SAMPLE_ROWS, from) });
     else out.push({ name: c.name, kind: 'category' });
   }
   return out;

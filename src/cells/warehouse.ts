@@ -92,6 +92,11 @@ export async function planWarehouse(duck: Duck, options: LoadOptions, w: Warehou
   if (names.length === 0) throw error('floorgap sql without a sample file needs the slice columns: --slice-cols a,b,c (or --by), or give a local sample of the table');
   const needs: { what: string; sql: string }[] = [];
   const missingEdges = [...w.edges].filter(([, e]) => e.length === 0).map(([c]) => c);
+  if (missingEdges.length > 0 && options.binMethod === 'natural') {
+    // natural breaks come from the column's values, which only a local sample gives
+    const c = missingEdges[0];
+    throw error(`--bin-method natural needs the values of ${JSON.stringify(c)}, which floorgap sql reads from a local sample of the table: give a sample file (floorgap sql sample.parquet --table ${tableRef(w.dialect, w.table)} --bin-method natural …), or the edges as --bin-edges ${JSON.stringify(`${c}=e1,e2,...`)}`);
+  }
   for (const c of missingEdges) {
     const what = d.name === 'bigquery' ? 'the values between the first and the last' : 'the values';
     needs.push({ what: `bin edges of ${JSON.stringify(c)}: pass ${what} as --bin-edges ${JSON.stringify(`${c}=e1,e2,...`)}`, sql: edgesQuery(d, w.table, c, options.bins, options.where) });

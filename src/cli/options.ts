@@ -6,6 +6,7 @@ import type { CliIO } from './io.js';
 import { scanProgress } from './progress.js';
 import { DEFAULT_MEMORY_LIMIT, DEFAULT_THREADS } from '../sql/duck.js';
 import type { LoadOptions } from '../cells/load.js';
+import { BIN_METHODS, type BinMethod } from '../cells/profile.js';
 import type { RoleOptions } from '../read/roles.js';
 import { DEFAULT_TRIAGE_OPTIONS, type TriageOptions } from '../triage/types.js';
 
@@ -35,6 +36,7 @@ export function analysisOptions<T>(y: Argv<T>) {
     .option('by', { type: 'string', describe: 'slice by these columns, comma-separated (label/pred allowed)', group: 'Slices:' })
     .option('slice-cols', { type: 'string', describe: 'candidate slice columns, comma-separated (default: detected)', group: 'Slices:' })
     .option('bins', { type: 'number', default: 5, describe: 'bins for numeric columns (about equal frequency)', group: 'Slices:' })
+    .option('bin-method', { choices: BIN_METHODS, default: 'quantile' as BinMethod, describe: 'how numeric columns are cut: quantile (about equal frequency) or natural (natural breaks: optimal 1-D k-means)', group: 'Slices:' })
     .option('max-cells', { type: 'number', default: 200_000, describe: 'largest full cross of slice columns before grouping sets are used', group: 'Slices:' })
     .option('max-slices', { type: 'number', default: 10_000, describe: 'most slices one grouping may list (stops a column of ids)', group: 'Slices:' })
     .option('floor', { type: 'number', describe: 'human-level error for every row, a fraction (default 0)', group: 'Floors:' })
@@ -84,6 +86,8 @@ export interface AnalysisArgs {
   byColumns?: readonly string[];
   'slice-cols'?: string;
   bins: number;
+  /** --bin-method (undefined counts as quantile) */
+  'bin-method'?: BinMethod;
   'max-cells': number;
   'max-slices': number;
   floor?: number;
@@ -133,6 +137,7 @@ export function toLoadOptions(a: AnalysisArgs): LoadOptions {
     by: a.byColumns ? [...a.byColumns] : list(a.by),
     sliceCols: list(a['slice-cols']),
     bins: a.bins,
+    binMethod: a['bin-method'] ?? 'quantile',
     maxCells: a['max-cells'],
     maxSlices: a['max-slices'],
     floor: a.floor ?? null,

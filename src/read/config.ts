@@ -16,7 +16,7 @@ export const PROJECT_OPTIONS: ReadonlySet<string> = new Set([
   // column roles
   'label', 'pred', 'error', 'split', 'id', 'score', 'weight', 'run-column', 'run',
   // slices
-  'by', 'slice-cols', 'bins', 'max-cells', 'max-slices',
+  'by', 'slice-cols', 'bins', 'bin-method', 'max-cells', 'max-slices',
   // floors and costs
   'floor', 'floor-table', 'annotators', 'floor-rule', 'cost-table',
   // statistics

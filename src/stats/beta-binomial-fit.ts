@@ -1,4 +1,5 @@
 import { createRequire } from 'node:module';
+import { sum as compensatedSum } from 'simple-statistics';
 import { brentRoot } from './brent-root.js';
 import { digammaDifference, lnGammaDifference } from './gamma-differences.js';
 import { assertFinite, checkCount } from './validate-input.js';
@@ -77,20 +78,23 @@ export function fitBetaPrior(groups: readonly { x: number; n: number }[], option
   }
   // Distinct (x, n) pairs with their multiplicities: many small groups repeat.
   const byPair = new Map<string, Group>();
-  let sumX = 0;
-  let sumN = 0;
+  const xs: number[] = [];
+  const ns: number[] = [];
   groups.forEach((group, i) => {
     assertFinite(fn, `groups[${i}].n`, group.n);
     if (group.n < 0) throw new RangeError(`${fn}: groups[${i}].n must be >= 0, got ${group.n}`);
     const x = checkCount(fn, `groups[${i}].x`, group.x, group.n);
     if (group.n === 0) return;
-    sumX += x;
-    sumN += group.n;
+    xs.push(x);
+    ns.push(group.n);
     const key = `${x}/${group.n}`;
     const seen = byPair.get(key);
     if (seen) seen.count += 1;
     else byPair.set(key, { x, y: group.n - x, n: group.n, count: 1 });
   });
+  // Σx and Σn by simple-statistics' compensated sum (counts may be weighted, so not whole numbers)
+  const sumX = compensatedSum(xs);
+  const sumN = compensatedSum(ns);
   const distinct = [...byPair.values()];
   const usable = distinct.reduce((k, g) => k + g.count, 0);
   const maxStrength = maxOption ?? (sumN > 0 ? sumN : 1);

@@ -2,8 +2,9 @@
  * Statistics for floorgap: normal distribution helpers, effective sample size, confidence
  * intervals for proportions and their differences, tests of proportions (including McNemar's
  * test for paired outcomes), false discovery rate adjustments, inter-rater agreement (Cohen's
- * and Fleiss' kappa), an empirical-Bayes Beta prior for many small proportions, and power-law
- * learning-curve fits. All functions are pure and throw `RangeError` on NaN or out-of-domain input.
+ * and Fleiss' kappa), an empirical-Bayes Beta prior for many small proportions, power-law
+ * learning-curve fits, and natural breaks (optimal 1-D k-means) for binning numeric columns. All
+ * functions are pure and throw `RangeError` on NaN or out-of-domain input.
  */
 export { normalQuantile, normalCdf, zForConfidence } from './normal.js';
 export { kishEffectiveN } from './kish-effective-n.js';
@@ -24,3 +25,4 @@ export { fitBetaPrior, betaPosterior } from './beta-binomial-fit.js';
 export type { PowerLawFit } from './power-law-fit.js';
 export { fitPowerLaw, logGapWeight } from './power-law-fit.js';
 export { chao1 } from './chao1.js';
+export { naturalBreaks } from './natural-breaks.js';

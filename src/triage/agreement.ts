@@ -1,3 +1,4 @@
+import { sum } from 'simple-statistics';
 import type { AuditSums } from '../core/cell.js';
 import { cohensKappa, fleissKappa } from '../stats/index.js';
 import type { Agreement } from './types.js';
@@ -13,7 +14,7 @@ export function agreementOf(audit: AuditSums | null): Agreement | null {
     const kappa = cohensKappa(audit.agreeSum, audit.panelRows, audit.classCounts[0], audit.classCounts[1]);
     return { kappa, method: 'cohen', audited: audit.panelRows };
   }
-  const totals = audit.classCounts[0].map((_, c) => audit.classCounts.reduce((a, row) => a + row[c], 0));
+  const totals = audit.classCounts[0].map((_, c) => sum(audit.classCounts.map((row) => row[c])));
   return { kappa: fleissKappa(audit.agreeSum, audit.panelRows, totals), method: 'fleiss', audited: audit.panelRows };
 }
 

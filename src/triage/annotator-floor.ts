@@ -1,3 +1,4 @@
+import { sum } from 'simple-statistics';
 import type { AuditSums } from '../core/cell.js';
 import { betaPosterior, wilsonInterval, type BetaPrior } from '../stats/index.js';
 import type { FloorRule, Rate } from './types.js';
@@ -15,8 +16,8 @@ export function ruleCounts(audit: AuditSums, rule: FloorRule): { x: number; n: n
     case 'panel':
       return audit.panelRows > 0 ? { x: audit.panelErrors, n: audit.panelRows } : null;
     case 'typical': {
-      const n = audit.annRows.reduce((a, b) => a + b, 0);
-      return n > 0 ? { x: audit.annErrors.reduce((a, b) => a + b, 0), n } : null;
+      const n = sum(audit.annRows);
+      return n > 0 ? { x: sum(audit.annErrors), n } : null;
     }
     case 'best': {
       let best: { x: number; n: number } | null = null;

@@ -1,3 +1,4 @@
+import { sum } from 'simple-statistics';
 import type { SliceStats, SplitSums } from '../slices/rollup.js';
 import type { Split } from '../core/split.js';
 import { SPLITS } from '../core/split.js';
@@ -67,7 +68,7 @@ export function sliceFloor(stats: SliceStats, confidence: number): SliceFloor {
   const train = stats.splits.train;
   const dev = stats.splits.dev;
   const parts = stats.floorParts.length > 0 ? stats.floorParts : stats.devFloorParts;
-  const w = parts.reduce((a, p) => a + p.weight, 0);
+  const w = sum(parts.map((p) => p.weight));
   const value = train && train.weight > 0 ? train.floorSum / train.weight : dev && dev.weight > 0 ? dev.floorSum / dev.weight : 0;
   const devValue = dev && dev.weight > 0 ? dev.floorSum / dev.weight : null;
   let inv = 0;

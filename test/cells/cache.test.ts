@@ -101,6 +101,22 @@ describe('the cache across runs', () => {
     expect(entries().length).toBe(n + 3);
   });
 
+  it('the bin method gets its own entry: natural bins are never served from quantile cells', async () => {
+    // invented: a numeric column v = i² (400 distinct values, skewed), binned by either method
+    const file = join(dir, 'bins.csv');
+    const lines = ['id,split,v,label,pred'];
+    for (let i = 1; i <= 400; i++) lines.push(`r${i},${i % 2 ? 'train' : 'dev'},${i * i},a,${i % 7 ? 'a' : 'b'}`);
+    writeFileSync(file, lines.join('\n') + '\n');
+    const bins = (stdout: string) => (JSON.parse(stdout) as { slices: { key: Record<string, string> }[] }).slices.map((s) => s.key.v).sort();
+    const quantile = await report(file);
+    const natural = await report(file, ['--bin-method', 'natural']);
+    const truth = await report(file, ['--bin-method', 'natural', '--no-cache']);
+    expect(natural.code, natural.stderr).toBe(0);
+    expect(bins(natural.stdout)).toEqual(bins(truth.stdout));
+    // the two methods cut this column differently, so a cache hit across them would show
+    expect(bins(natural.stdout)).not.toEqual(bins(quantile.stdout));
+  });
+
   it('cells cached with --union never let a run without it skip the column check', async () => {
     const a = join(dir, 'union-a.csv');
     table(a, [1]);

@@ -3,7 +3,22 @@ import { writeFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { openDuck, type Duck } from '../../src/sql/duck.js';
-import { binEdges, binLabel, chooseSliceColumns, isNumeric, MAX_AUTO_COLUMNS, profileColumns, type Profile } from '../../src/cells/profile.js';
+import {
+  binEdges,
+  binLabel,
+  chooseSliceColumns,
+  evenlySpaced,
+  gapEdge,
+  isNumeric,
+  MAX_AUTO_COLUMNS,
+  NATURAL_MAX_VALUES,
+  naturalBinEdges,
+  naturalValues,
+  profileColumns,
+  SAMPLE_ROWS,
+  sliceColumns,
+  type Profile,
+} from '../../src/cells/profile.js';
 import { openSource } from '../../src/read/source.js';
 import { FloorgapError } from '../../src/core/errors.js';
 import { makeTempDir, removeTempDir } from '../helpers/table-variants.js';
@@ -186,5 +201,65 @@ describe('binEdges and binLabel', () => {
     // hand-written
     expect([0, 1, 2].map((i) => binLabel([1, 2], i))).toEqual(['< 1', '[1, 2)', '>= 2']);
     expect(binLabel([], 0)).toBe('all');
+  });
+});
+
+describe('natural bin edges (--bin-method natural)', () => {
+  it('cut 1…60 into four runs of 15 and the odd quarters of sparse into three runs of 10', async () => {
+    // hand arithmetic: a run of m consecutive grid values costs m(m² − 1)/12 (times the step²), convex in
+    // m, so equal runs are optimal: 1–15 | 16–30 | 31–45 | 46–60, edges 15.5, 30.5, 45.5
+    expect(await naturalBinEdges(duck, 'num', 4, null)).toEqual([15.5, 30.5, 45.5]);
+    // sparse holds 0.25, 0.75, …, 14.75 (30 values): runs of 10, edges (4.75 + 5.25)/2 = 5 and
+    // (9.75 + 10.25)/2 = 10
+    expect(await naturalBinEdges(duck, 'sparse', 3, null)).toEqual([5, 10]);
+    expect(await naturalBinEdges(duck, 'num', 1, null)).toEqual([]);
+  });
+
+  it('each distinct value counts once, however often it occurs', async () => {
+    // invented: 0, then 4 a hundred times, 6 and 10. Hand arithmetic on the distinct values {0, 4, 6, 10}:
+    // {0} | {4, 6, 10} costs 18.67, {0, 4} | {6, 10} costs 8 + 8 = 16, {0, 4, 6} | {10} costs 18.67, so
+    // the edge is (4 + 6)/2 = 5 (with the repeats counted it would be (6 + 10)/2 = 8)
+    await duck.run(`CREATE OR REPLACE TEMP TABLE repeats AS SELECT CAST(v AS VARCHAR) AS v FROM (SELECT unnest([0, 6, 10] || list_transform(range(100), x -> 4)) AS v)`);
+    expect(await naturalBinEdges(duck, 'v', 2, null, SAMPLE_ROWS, 'repeats')).toEqual([5]);
+  });
+
+  it('from at most 10,000 of the distinct values, evenly spaced, the smallest and largest included', async () => {
+    // hand-made: ranks 0, 3, 6, 9 of ten values
+    expect(evenlySpaced([0, 1, 2, 3, 4, 5, 6, 7, 8, 9], 4)).toEqual([0, 3, 6, 9]);
+    expect(evenlySpaced([1, 2, 3], 4)).toEqual([1, 2, 3]);
+    expect(NATURAL_MAX_VALUES).toBe(10_000);
+    // 100,000 distinct values 0…99,999, each twice
+    await duck.run(`CREATE OR REPLACE TEMP TABLE grid AS SELECT CAST(range % 100000 AS VARCHAR) AS g FROM range(200000)`);
+    const values = await naturalValues(duck, 'g', null, 200_000, 'grid');
+    expect(values).toHaveLength(10_000);
+    expect([values[0], values[1], values[9_999]]).toEqual([0, 10, 99_999]); // hand arithmetic: rank round(1 · 99,999/9,999) = 10
+    // hand arithmetic: an even grid stays an even grid, so four equal runs, edges within 10 of
+    // 25,000, 50,000 and 75,000, which 3 significant digits show as those
+    expect(await naturalBinEdges(duck, 'g', 4, null, 200_000, 'grid')).toEqual([25_000, 50_000, 75_000]);
+  });
+
+  it('an edge keeps both runs whole when 3 significant digits can: the one nearest the midpoint in the gap', () => {
+    // hand arithmetic: runs ending at 0.587 and starting at 0.588; the midpoint 0.5875 rounds to 0.587 or
+    // 0.588, and only 0.588 keeps 0.587 below the edge of [a, 0.588)
+    expect(gapEdge(0.5875, 0.587, 0.588)).toBe(0.588);
+    expect(gapEdge(-0.5875, -0.588, -0.587)).toBe(-0.587);
+    // hand arithmetic: across a decade, 0.9995 between 0.999 and 1: the edge 1
+    expect(gapEdge(0.9995, 0.999, 1)).toBe(1);
+    // hand arithmetic: the midpoint itself has 3 significant digits
+    expect(gapEdge(15.5, 15, 16)).toBe(15.5);
+    expect(gapEdge(0.5015, 0.5, 0.503)).toBeGreaterThan(0.5);
+    // hand arithmetic: no 3-digit number in (0.5001, 0.5002]: the rounded midpoint, 0.5
+    expect(gapEdge(0.50015, 0.5001, 0.5002)).toBe(0.5);
+    expect(gapEdge(0, -1, 1)).toBe(0);
+  });
+
+  it('sliceColumns cuts binned columns by the method asked for, quantiles by default', async () => {
+    const chosen = [{ name: 'num', kind: 'binned' as const }, { name: 'small', kind: 'category' as const }];
+    // quartiles and natural breaks of 1…60, as in the tests above
+    expect(await sliceColumns(duck, chosen, 4, null)).toEqual([{ name: 'num', kind: 'binned', edges: [15.8, 30.5, 45.3] }, { name: 'small', kind: 'category' }]);
+    expect(await sliceColumns(duck, chosen, 4, null, undefined, 'natural')).toEqual([
+      { name: 'num', kind: 'binned', edges: [15.5, 30.5, 45.5] },
+      { name: 'small', kind: 'category' },
+    ]);
   });
 });

@@ -99,6 +99,26 @@ describe('a project file found in the working folder', () => {
     expect(c.code, c.stderr).toBe(1);
     expect(JSON.parse(c.stdout).limits).toEqual({ 'max-dev-error': 0.1 });
   });
+
+  it('may set --bin-method, which the flag overrides; a method it does not know is exit 2', async () => {
+    // invented: a numeric column v = i² (200 distinct values), which the two methods cut differently
+    const lines = ['id,split,v,label,pred'];
+    for (let i = 1; i <= 200; i++) lines.push(`r${i},${i % 2 ? 'train' : 'dev'},${i * i},a,${i % 5 ? 'a' : 'b'}`);
+    const f = folder({ 'bin-method': 'natural', floor: 0.02 });
+    const table = join(f, 'squares.csv');
+    writeFileSync(table, lines.join('\n') + '\n');
+    const bins = (stdout: string) => (JSON.parse(stdout) as Report).slices.map((s) => s.key.v).sort();
+    const fromFile = await run([table, '--format', 'json', '--no-cache'], f);
+    expect(fromFile.code, fromFile.stderr).toBe(0);
+    const flag = await run([table, '--format', 'json', '--no-cache', '--bin-method', 'natural'], folder());
+    expect(bins(fromFile.stdout)).toEqual(bins(flag.stdout));
+    const quantile = await run([table, '--format', 'json', '--no-cache', '--bin-method', 'quantile'], f);
+    expect(bins(quantile.stdout)).not.toEqual(bins(fromFile.stdout));
+    const bad = await run([table, '--no-cache'], folder({ 'bin-method': 'jenks' }));
+    expect(bad.code).toBe(2);
+    expect(bad.stdout).toBe('');
+    expect(bad.stderr).toMatch(/bin-method.*"jenks"/);
+  });
 });
 
 describe('a project file named with --config', () => {

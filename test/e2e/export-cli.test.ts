@@ -216,6 +216,8 @@ describe('the manifest', () => {
     expect(m.format).toBe('csv');
     expect(m.selection).toMatchObject({ mode: 'flagged', top: null, named: [], by: null, splits: ['train', 'dev'], errors_only: false, limit_per_slice: null, raw: false });
     expect(m.options).toMatchObject({ 'floor-table': FLOORS, annotators: 'insp_a,insp_b,insp_c', fdr: 0.05 });
+    // the binning that made the slices, default filled in
+    expect(m.options).toMatchObject({ bins: 5, 'bin-method': 'quantile' });
     expect(m.slices.every((s: any) => s.chosen === 'flagged' && s.flagged === true)).toBe(true);
     expect(m.columns).toEqual([...demo.header, ...FG]);
     // sha256 computed independently in this test with node:crypto over the whole file

@@ -25,6 +25,7 @@ describe('src/stats/index.ts', () => {
       'fitPowerLaw',
       'logGapWeight',
       'chao1',
+      'naturalBreaks',
     ];
     for (const name of names) expect(typeof (stats as Record<string, unknown>)[name]).toBe('function');
     expect(Object.keys(stats).sort()).toEqual([...names].sort());

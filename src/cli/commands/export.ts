@@ -85,7 +85,7 @@ function selectionOf(args: ExportArgs): { selection: Selection; byColumns: strin
 
 /** The options that shaped the report and so the selection, as given (defaults filled in). */
 const SHAPING: readonly (keyof AnalysisArgs)[] = [
-  'union', 'where', 'label', 'pred', 'error', 'split', 'id', 'score', 'weight', 'run-column', 'run', 'by', 'slice-cols', 'bins', 'max-cells',
+  'union', 'where', 'label', 'pred', 'error', 'split', 'id', 'score', 'weight', 'run-column', 'run', 'by', 'slice-cols', 'bins', 'bin-method', 'max-cells',
   'floor', 'floor-table', 'annotators', 'floor-rule', 'cost-table', 'confidence', 'fdr', 'fdr-method', 'min-rows', 'floor-margin',
   'min-headroom', 'curve-exponent', 'label-cost',
 ];

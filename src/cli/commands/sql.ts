@@ -2,7 +2,7 @@ import { promises as fs } from 'node:fs';
 import type { Argv } from 'yargs';
 import { cellQuery } from '../../cells/cell-query.js';
 import { DIALECTS, type DialectName } from '../../sql/dialect.js';
-import { round3 } from '../../cells/profile.js';
+import { BIN_METHODS, round3, type BinMethod } from '../../cells/profile.js';
 import { ROWS_VIEW } from '../../read/source.js';
 import { literal } from '../../sql/quote.js';
 import { planWarehouse, warehouseQuery } from '../../cells/warehouse.js';
@@ -57,6 +57,7 @@ export function sqlOptions<T>(y: Argv<T>) {
     .option('by', { type: 'string', describe: 'slice by these columns, comma-separated (they join the cell columns)', group: 'Slices:' })
     .option('slice-cols', { type: 'string', describe: 'slice columns, comma-separated (required without a sample file)', group: 'Slices:' })
     .option('bins', { type: 'number', default: 5, describe: 'bins for numeric columns', group: 'Slices:' })
+    .option('bin-method', { choices: BIN_METHODS, default: 'quantile' as BinMethod, describe: 'how numeric columns are cut: quantile or natural (natural breaks; needs a sample file, or --bin-edges col=…)', group: 'Slices:' })
     .option('max-cells', { type: 'number', default: 200_000, describe: 'largest full cross before grouping sets (with a sample file)', group: 'Slices:' })
     .option('floor', { type: 'number', describe: 'human-level error for every row, a fraction (default 0)', group: 'Floors:' })
     .option('floor-table', { type: 'string', describe: 'table of floors keyed by slice columns (+ optional n), inlined in the query', group: 'Floors:' })
