@@ -17,6 +17,7 @@ import { describeKey, readFloorTable, type FloorEntry, type FloorTable } from '.
 import { locateReadError, readError, withReadErrors } from '../read/read-errors.js';
 import { firstBadRow } from '../read/locate.js';
 import { error, FloorgapError } from '../core/errors.js';
+import { DEFAULTS } from '../core/defaults.js';
 
 /** Options of loading rows into cells. */
 export interface LoadOptions {
@@ -283,13 +284,13 @@ async function planColumns(
 }
 
 /** Default most slices one grouping may hold (`--max-slices`). */
-export const MAX_SLICES = 10_000;
+export const MAX_SLICES = DEFAULTS.maxSlices;
 /**
  * Most cells a scan reads into memory: 5 × `--max-cells`, and never less than 1,000,000 (about 100 MB),
  * so that a small `--max-cells` (which only chooses grouping sets sooner) does not refuse small tables.
  */
 export function cellLimit(maxCells: number): number {
-  return 5 * Math.max(maxCells, 200_000);
+  return 5 * Math.max(maxCells, DEFAULTS.maxCells);
 }
 
 /**

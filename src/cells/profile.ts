@@ -3,6 +3,7 @@ import { ROWS_VIEW, whereSql } from '../read/source.js';
 import { ident } from '../sql/quote.js';
 import type { SliceColumn } from '../core/cell.js';
 import { error } from '../core/errors.js';
+import { DEFAULTS } from '../core/defaults.js';
 
 /** What the sampled pre-pass saw of one column. */
 export interface ColumnProfile {
@@ -25,7 +26,7 @@ export interface Profile {
   readonly columns: readonly ColumnProfile[];
 }
 
-export const SAMPLE_ROWS = 100_000;
+export const SAMPLE_ROWS = DEFAULTS.sampleRows;
 export const MAX_CATEGORIES = 50;
 
 /**

@@ -9,6 +9,7 @@
  * same model on doubling training sets (column `run`, see {@link DemoOptions.runs}).
  */
 import { Random, deriveSeed } from './random.js';
+import { DEFAULTS } from '../core/defaults.js';
 
 export type DemoSplit = 'train' | 'train_dev' | 'dev' | 'test';
 export type DemoStation = 'S1' | 'S2' | 'S3' | 'S4' | 'S5' | 'S6';
@@ -68,7 +69,7 @@ export interface DemoOptions {
   readonly runs?: number;
 }
 
-export const DEMO_DEFAULTS: DemoOptions = Object.freeze({ rows: 20_000, seed: 24, runs: 1 });
+export const DEMO_DEFAULTS: DemoOptions = Object.freeze({ rows: DEFAULTS.demoRows, seed: DEFAULTS.demoSeed, runs: DEFAULTS.demoRuns });
 
 /** Largest accepted `runs` (run 1 then trains on 1/512 of the train rows). */
 export const DEMO_MAX_RUNS = 10;

@@ -1,4 +1,3 @@
-import type { Argv } from 'yargs';
 import { EXPORT_COLUMNS, exportCountSql, exportSql, type ExportQuery } from '../../rows/export-sql.js';
 import { openSource } from '../../read/source.js';
 import { normalizeSplit } from '../../read/roles.js';
@@ -12,7 +11,7 @@ import { error } from '../../core/errors.js';
 import { analysisReads, analyzeWith, withDuck } from '../../app/analysis.js';
 import type { CliIO } from '../io.js';
 import { writeOut } from '../io.js';
-import { analysisHooks, analysisOptions, analysisRequest, toLoadOptions, type AnalysisArgs } from '../options.js';
+import { analysisHooks, analysisRequest, toLoadOptions, type AnalysisArgs } from '../options.js';
 
 /** The manifest's schema name; it changes when a field is removed or changes meaning. */
 export const EXPORT_SCHEMA = 'floorgap.export/1';
@@ -26,19 +25,6 @@ export interface ExportArgs extends AnalysisArgs {
   'limit-per-slice'?: number;
   raw: boolean;
   force: boolean;
-}
-
-/** The analysis options of `report` plus export's own. */
-export function exportOptions<T>(y: Argv<T>) {
-  return analysisOptions(y)
-    .option('out', { alias: 'o', type: 'string', demandOption: true, describe: 'file to write: .csv (default), .jsonl/.ndjson or .parquet; F.manifest.json goes beside it', group: 'Export:' })
-    .option('top', { type: 'number', describe: "the first N slices in the report's order (default: the flagged slices)", group: 'Export:' })
-    .option('slice', { type: 'string', describe: 'a slice by its key, e.g. "station=S5,lighting=dome" (repeatable; \\, for a comma in a value)', group: 'Export:' })
-    .option('splits', { type: 'string', default: 'train,dev', describe: 'splits whose rows are written: train, train_dev, dev, test', group: 'Export:' })
-    .option('errors-only', { type: 'boolean', default: false, describe: "only rows the model got wrong", group: 'Export:' })
-    .option('limit-per-slice', { type: 'number', describe: 'at most N rows per slice (likely label errors first)', group: 'Export:' })
-    .option('raw', { type: 'boolean', default: false, describe: "write text as it is (no ' before formula-like cells)", group: 'Export:' })
-    .option('force', { type: 'boolean', default: false, describe: 'overwrite an existing file and manifest', group: 'Export:' });
 }
 
 /**
