@@ -6,6 +6,7 @@
  */
 import { cpus, totalmem } from 'node:os';
 import { COST_EXPECTED, COST_RANGE } from '../read/keyed-table.js';
+import { DEMO_MAX_RUNS } from '../demo/generate.js';
 import { error } from '../core/errors.js';
 
 /** A numeric option's domain: whole or real, and its ends (open ends exclude the value). */
@@ -58,7 +59,7 @@ export const NUMBER_BOUNDS: Readonly<Record<string, NumberBound>> = {
   'max-dev-error': limit,
   rows: whole(1, 100_000_000),
   seed: whole(0, 2 ** 31 - 1),
-  runs: whole(1, 12, 'each run doubles the training rows'),
+  runs: whole(1, DEMO_MAX_RUNS, 'each run doubles the training rows'),
 };
 
 function describeBound(b: NumberBound): string {
