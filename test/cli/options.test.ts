@@ -5,7 +5,7 @@
  */
 import { describe, expect, it } from 'vitest';
 import { boundedNumber, memoryLimit, NUMBER_BOUNDS } from '../../src/cli/bounds.js';
-import { COMMAND_OPTIONS, declarationFor, OPTIONS, type Command, type OptionName } from '../../src/cli/options.js';
+import { COMMAND_OPTIONS, declarationFor, OPTIONS, type Command, type Declaration, type OptionName } from '../../src/cli/options.js';
 import { DEFAULTS } from '../../src/core/defaults.js';
 import { EXPLICIT_CONFIG_OPTIONS, PROJECT_OPTIONS } from '../../src/read/config.js';
 import { DEFAULT_TRIAGE_OPTIONS } from '../../src/triage/types.js';
@@ -65,7 +65,8 @@ describe('commands and their options', () => {
     for (const name of NAMES) {
       for (const c of COMMANDS) {
         const d = declarationFor(name, c);
-        expect([d.type, d.default], `${c} --${name}`).toEqual([OPTIONS[name].type, (OPTIONS[name] as { default?: unknown }).default]);
+        const own = OPTIONS[name] as Declaration;
+        expect([d.type, d.default], `${c} --${name}`).toEqual([own.type, own.default]);
       }
     }
     // sql speaks of a sample file and a query

@@ -62,7 +62,7 @@ export async function runCheck(args: CheckArgs, io: CliIO): Promise<number> {
           const show = (b: readonly string[] | null) => (b ? `--by ${b.join(',')}` : 'the overview (no --by)');
           throw error(`${args.baseline}: the baseline report is grouped by ${show(before.by)}, this check by ${show(report.by)}; use the same grouping`);
         }
-        comparisons = compareReports(report, before, report.fdr, report.fdr_method);
+        comparisons = compareReports(report, before, report.fdr, report.fdr_method, report.confidence);
         baseline = { path: args.baseline, kind: 'report' };
       } else {
         if (loaded.origin === 'cells') {
