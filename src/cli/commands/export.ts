@@ -25,6 +25,8 @@ export interface ExportArgs extends AnalysisArgs {
   'limit-per-slice'?: number;
   raw: boolean;
   force: boolean;
+  /** set by the explorer, whose marked slices come as `slice` keys; never a flag */
+  chosenIn?: 'explorer';
 }
 
 /**
@@ -82,7 +84,7 @@ const SHAPING: readonly (keyof AnalysisArgs)[] = [
  * written by DuckDB, and a manifest beside it.
  * @param args parsed flags
  * @param io stdout/stderr
- * @param argv the command line as given (recorded in the manifest)
+ * @param argv the command line as given, after `floorgap` (recorded in the manifest)
  * @param hooks optional steps inside the writer (tests use them to inject failures)
  */
 export async function runExport(args: ExportArgs, io: CliIO, argv: readonly string[], hooks?: ExportHooks): Promise<number> {
@@ -159,6 +161,7 @@ export async function runExport(args: ExportArgs, io: CliIO, argv: readonly stri
           mode: selection.kind,
           top: selection.kind === 'top' ? selection.n : null,
           named: named.map((s) => s.text),
+          chosen_in: args.chosenIn ?? 'command line',
           by: report.by,
           splits,
           errors_only: args['errors-only'],
