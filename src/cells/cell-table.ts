@@ -1,7 +1,7 @@
 /**
  * Cells in columns: slice-column values encoded as small integers (one dictionary per column) and
  * every sufficient statistic in a typed array. Rolling cells up into slices is then a loop over
- * integer keys (see rollup.ts), and the cells cost a few dozen bytes each however many there are.
+ * integer keys (see slices/rollup.ts), and the cells cost a few dozen bytes each however many there are.
  */
 import { SPLITS, type AuditSums, type Cell, type Split } from '../core/cell.js';
 

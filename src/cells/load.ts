@@ -104,7 +104,7 @@ export async function loadCells(duck: Duck, options: LoadOptions, hooks: LoadHoo
 
 /** What a caller can add to a load: a cache of cells, and a watcher of the scan. */
 export interface LoadHooks {
-  /** where cached cells live (see io/cell-cache.ts); no cache when absent */
+  /** where cached cells live (see cells/cache.ts); no cache when absent */
   readonly cache?: { readonly dir: string; readonly cwd: string; readonly version: string } | null;
   /** called when reading the rows starts (never for cached cells); the function it returns when it ends */
   readonly onScan?: (duck: Duck, info: { readonly where: string; readonly bytes: number }) => () => void;

@@ -1,4 +1,4 @@
-/** The four evaluation sets a row can belong to (see shared/GLOSSARY.md). */
+/** The four evaluation sets a row can belong to (README, "Splits"). */
 export type Split = 'train' | 'train_dev' | 'dev' | 'test';
 export const SPLITS: readonly Split[] = ['train', 'train_dev', 'dev', 'test'];
 
