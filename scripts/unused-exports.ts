@@ -17,6 +17,8 @@ export interface UnusedExport {
   /** the file, relative to the repository root */
   readonly file: string;
   readonly name: string;
+  /** a type (interface, type alias) or a value (function, constant, class, enum) */
+  readonly kind: 'type' | 'value';
   /** the name is used inside its own file */
   readonly local: boolean;
 }
@@ -39,20 +41,22 @@ function target(from: string, spec: string, known: ReadonlySet<string>): string 
   return null;
 }
 
-function exportedNames(sf: ts.SourceFile): string[] {
-  const out: string[] = [];
+function exportedNames(sf: ts.SourceFile): { name: string; kind: 'type' | 'value' }[] {
+  const out: { name: string; kind: 'type' | 'value' }[] = [];
+  const types = new Set(sf.statements.flatMap((s) => ((ts.isInterfaceDeclaration(s) || ts.isTypeAliasDeclaration(s)) ? [s.name.text] : [])));
+  const push = (name: string) => out.push({ name, kind: types.has(name) ? 'type' : 'value' });
   const exported = (n: ts.Node) => ts.canHaveModifiers(n) && (ts.getModifiers(n) ?? []).some((m) => m.kind === ts.SyntaxKind.ExportKeyword);
   for (const s of sf.statements) {
     if (ts.isExportDeclaration(s) && !s.moduleSpecifier && s.exportClause && ts.isNamedExports(s.exportClause)) {
-      for (const e of s.exportClause.elements) out.push(e.name.text);
-    } else if (ts.isExportAssignment(s)) out.push('default');
+      for (const e of s.exportClause.elements) push(e.name.text);
+    } else if (ts.isExportAssignment(s)) push('default');
     else if (exported(s)) {
       const isDefault = (ts.getModifiers(s as ts.HasModifiers) ?? []).some((m) => m.kind === ts.SyntaxKind.DefaultKeyword);
-      if (isDefault) out.push('default');
+      if (isDefault) push('default');
       else if (ts.isVariableStatement(s)) {
-        for (const d of s.declarationList.declarations) if (ts.isIdentifier(d.name)) out.push(d.name.text);
+        for (const d of s.declarationList.declarations) if (ts.isIdentifier(d.name)) push(d.name.text);
       } else if ((ts.isFunctionDeclaration(s) || ts.isClassDeclaration(s) || ts.isInterfaceDeclaration(s) || ts.isTypeAliasDeclaration(s) || ts.isEnumDeclaration(s)) && s.name) {
-        out.push(s.name.text);
+        push(s.name.text);
       }
     }
   }
@@ -89,8 +93,6 @@ function importsOf(sf: ts.SourceFile, file: string, known: ReadonlySet<string>, 
           for (const e of p.name.elements) add(to, (e.propertyName && ts.isIdentifier(e.propertyName) ? e.propertyName : (e.name as ts.Identifier)).text);
         } else add(to, 'all');
       }
-    } else if (ts.isCallExpression(n) && ts.isPropertyAccessExpression(n.expression) && n.expression.getText(sf) === 'vi.mock' && n.arguments[0] && ts.isStringLiteral(n.arguments[0])) {
-      // a mocked module is given back whole (`...actual`): nothing to count beyond the file's imports
     }
     ts.forEachChild(n, visit);
   };
@@ -130,14 +132,14 @@ export function unusedExports(root = ROOT): UnusedExport[] {
     if (!file.startsWith(join(root, 'src') + '/')) continue;
     const u = used.get(file);
     if (u === 'all') continue;
-    for (const name of exportedNames(sf)) {
+    for (const { name, kind } of exportedNames(sf)) {
       if (u?.has(name)) continue;
-      out.push({ file: relative(root, file), name, local: name !== 'default' && usedLocally(sf, name) });
+      out.push({ file: relative(root, file), name, kind, local: name !== 'default' && usedLocally(sf, name) });
     }
   }
   return out;
 }
 
 if (process.argv[1] && resolve(process.argv[1]) === fileURLToPath(import.meta.url)) {
-  for (const u of unusedExports()) console.log(`${u.file}: ${u.name}${u.local ? ' (used in its own file)' : ''}`);
+  for (const u of unusedExports()) console.log(`${u.file}: ${u.kind} ${u.name}${u.local ? ' (used in its own file)' : ''}`);
 }

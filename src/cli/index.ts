@@ -14,7 +14,7 @@ import type { CliIO } from './io.js';
 import { commandOptions } from './options.js';
 
 /** Exit codes: 0 fine, 1 a check found violations, 2 bad usage or input, 3 an unexpected internal error. */
-export const EXIT = { ok: 0, violations: 1, usage: 2, internal: INTERNAL_EXIT } as const;
+const EXIT = { ok: 0, violations: 1, usage: 2, internal: INTERNAL_EXIT } as const;
 
 function configPath(argv: readonly string[]): string | null {
   for (let i = 0; i < argv.length; i++) {

@@ -55,21 +55,6 @@ export interface AuditSums {
   readonly classCounts: readonly (readonly number[])[];
 }
 
-/** Adds two audit sums of the same shape. */
-export function addAudit(a: AuditSums | null, b: AuditSums | null): AuditSums | null {
-  if (!a) return b;
-  if (!b) return a;
-  return {
-    audited: a.audited + b.audited,
-    panelRows: a.panelRows + b.panelRows,
-    panelErrors: a.panelErrors + b.panelErrors,
-    agreeSum: a.agreeSum + b.agreeSum,
-    annRows: a.annRows.map((v, j) => v + b.annRows[j]),
-    annErrors: a.annErrors.map((v, j) => v + b.annErrors[j]),
-    classCounts: a.classCounts.map((row, j) => row.map((v, c) => v + b.classCounts[j][c])),
-  };
-}
-
 /** A slice column: categorical, or numeric cut into bins labelled by their ranges. */
 export interface SliceColumn {
   readonly name: string;

@@ -93,7 +93,7 @@ export const DEMO_COLUMNS = [
 ] as const satisfies readonly (keyof DemoRow)[];
 
 /** The run column's name, inserted right after `split` when the table holds several runs. */
-export const DEMO_RUN_COLUMN = 'run' as const satisfies keyof DemoRow;
+const DEMO_RUN_COLUMN = 'run' as const satisfies keyof DemoRow;
 
 /** The demo table's columns for `runs` training runs: {@link DEMO_COLUMNS}, plus `run` after `split` when runs ≥ 2. */
 export function demoColumns(runs = 1): ReadonlyArray<keyof DemoRow> {
@@ -481,7 +481,7 @@ export function csvField(value: string | number): string {
  * One demo row as a CSV line (no line terminator); sharpness and score with 3 decimals, a missing
  * inspector label as an empty field, the `run` field after `split` when the row has one.
  */
-export function demoRowToCsvLine(row: DemoRow): string {
+function demoRowToCsvLine(row: DemoRow): string {
   return [
     csvField(row.id),
     csvField(row.split),

@@ -31,10 +31,10 @@ export interface TextOptions {
 }
 
 /** Default terminal width when none is given. */
-export const DEFAULT_WIDTH = 100;
+const DEFAULT_WIDTH = 100;
 
 /** The flag mark of a flagged slice. */
-export const FLAG_MARK = '*';
+const FLAG_MARK = '*';
 
 const FOCUS_STYLE: Readonly<Record<Focus, readonly Style[]>> = {
   bias: ['red'],

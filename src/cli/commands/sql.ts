@@ -61,7 +61,7 @@ function copyFormat(path: string): string {
  * @example
  * comment('x\nDROP TABLE t'); // => 'x\\nDROP TABLE t'
  */
-export function comment(text: string): string {
+function comment(text: string): string {
   return sanitize(text);
 }
 
