@@ -1,6 +1,6 @@
 /**
  * The cell query: one GROUP BY over the rows that computes every cell, written once for the local
- * engine and for a user's warehouse (see dialect.ts). It runs in two levels:
+ * engine and for a user's warehouse (see sql/dialect.ts). It runs in two levels:
  *
  * 1. per row, only what must be per row: the row's status (bad weight, bad score, bad error value,
  *    unlabelled), its error, its weight, the bin of each numeric slice column; grouped by the raw

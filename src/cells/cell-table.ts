@@ -141,7 +141,7 @@ export function cellTable(c: CellColumns): CellTable {
 }
 
 /** A typed column of an unfiltered cell table (the arrays it was built from). */
-export function column<T extends Int32Array | Float64Array = Float64Array>(cells: CellTable, name: string): T {
+function column<T extends Int32Array | Float64Array = Float64Array>(cells: CellTable, name: string): T {
   return cells.table.column(name) as unknown as T;
 }
 
@@ -219,7 +219,7 @@ export function mergeCells(a: CellTable, b: CellTable): CellTable {
 }
 
 /** The grouping set (an index into `sets`) whose columns are exactly `by`, or null. */
-export function groupingSet(cells: CellTable, by: readonly string[]): number | null {
+function groupingSet(cells: CellTable, by: readonly string[]): number | null {
   const want = by.map((name) => cells.columns.indexOf(name));
   if (want.some((c) => c < 0)) return null;
   const key = [...new Set(want)].sort((a, b) => a - b).join(',');

@@ -44,7 +44,7 @@ export interface CellsLayout {
  * @throws FloorgapError for a missing required column, an unknown `fg_` column, or annotators whose
  * class columns differ
  */
-export function cellsLayout(path: string, columns: readonly string[]): CellsLayout {
+function cellsLayout(path: string, columns: readonly string[]): CellsLayout {
   for (const r of REQUIRED) {
     if (!columns.includes(r)) {
       throw error(`${path}: no column "${r}"; a cells file has ${REQUIRED.join(', ')} and one column per slice column (see docs/formats.md); was it written by floorgap sql?`);

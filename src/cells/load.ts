@@ -17,10 +17,11 @@ import type { SliceColumn } from '../core/cell.js';
 import { normalizeSplit, SPLITS, type Split } from '../core/split.js';
 import { textSql, type BinMethod } from './profile.js';
 import { cacheKey, readCache, writeCache } from './cache.js';
-import { describeKey, readFloorTable, type FloorEntry, type FloorTable } from '../read/keyed-table.js';
+import { describeKey, readFloorTable, type FloorTable } from '../read/keyed-table.js';
 import { locateReadError, readError, withReadErrors } from '../read/read-errors.js';
 import { firstBadRow } from '../read/locate.js';
 import { error, FloorgapError } from '../core/errors.js';
+import { DEFAULTS } from '../core/defaults.js';
 
 /** Options of loading rows into cells. */
 export interface LoadOptions {
@@ -72,7 +73,7 @@ export interface Loaded {
 }
 
 /** Maps role names used in `--by` (label, pred) to the columns that play them. */
-export function resolveBy(by: readonly string[], columns: readonly string[], roles: Roles, where: string): string[] {
+function resolveBy(by: readonly string[], columns: readonly string[], roles: Roles, where: string): string[] {
   return by.map((b) => {
     if (columns.includes(b)) return b;
     if (b === 'label' && roles.label) return roles.label;
@@ -107,7 +108,7 @@ export async function loadCells(duck: Duck, options: LoadOptions, hooks: LoadHoo
 
 /** What a caller can add to a load: a cache of cells, and a watcher of the scan. */
 export interface LoadHooks {
-  /** where cached cells live (see io/cell-cache.ts); no cache when absent */
+  /** where cached cells live (see cells/cache.ts); no cache when absent */
   readonly cache?: { readonly dir: string; readonly cwd: string; readonly version: string } | null;
   /** called when reading the rows starts (never for cached cells); the function it returns when it ends */
   readonly onScan?: (duck: Duck, info: { readonly where: string; readonly bytes: number }) => () => void;
@@ -287,13 +288,13 @@ async function planColumns(
 }
 
 /** Default most slices one grouping may hold (`--max-slices`). */
-export const MAX_SLICES = 10_000;
+const MAX_SLICES = DEFAULTS.maxSlices;
 /**
  * Most cells a scan reads into memory: 5 × `--max-cells`, and never less than 1,000,000 (about 100 MB),
  * so that a small `--max-cells` (which only chooses grouping sets sooner) does not refuse small tables.
  */
 export function cellLimit(maxCells: number): number {
-  return 5 * Math.max(maxCells, 200_000);
+  return 5 * Math.max(maxCells, DEFAULTS.maxCells);
 }
 
 /**
@@ -489,7 +490,6 @@ function someNames(names: readonly string[]): string {
   return names.slice(0, 3).map((c) => JSON.stringify(c)).join(', ') + (names.length > 3 ? ', …' : '');
 }
 
-export type { FloorEntry };
 
 function plural(n: number, word: string): string {
   return `${n} ${word}${n === 1 ? '' : 's'}`;

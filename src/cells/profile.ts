@@ -4,6 +4,7 @@ import { ident } from '../sql/quote.js';
 import type { SliceColumn } from '../core/cell.js';
 import { error } from '../core/errors.js';
 import { naturalBreaks } from '../stats/natural-breaks.js';
+import { DEFAULTS } from '../core/defaults.js';
 
 /** What the sampled pre-pass saw of one column. */
 export interface ColumnProfile {
@@ -26,7 +27,7 @@ export interface Profile {
   readonly columns: readonly ColumnProfile[];
 }
 
-export const SAMPLE_ROWS = 100_000;
+export const SAMPLE_ROWS: number = DEFAULTS.sampleRows;
 export const MAX_CATEGORIES = 50;
 
 /**
@@ -38,7 +39,7 @@ function sampleSql(where: string | null, limit: number, from?: string): string {
 }
 
 /** Name of the temporary table holding the sample, once {@link createSample} made it. */
-export const SAMPLE_TABLE = 'fg_sample';
+const SAMPLE_TABLE = 'fg_sample';
 
 /**
  * Copies the first 100,000 rows (after `--where`) into a temporary table, so that the pre-pass reads

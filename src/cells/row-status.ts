@@ -36,9 +36,9 @@ export function problemOfSplit(value: string): RowProblem | null {
 }
 
 /** Values of an error column that mean "an error" (compared trimmed and in lower case). */
-export const TRUE_WORDS: readonly string[] = ['1', '1.0', 'true', 't', 'yes', 'y'];
+const TRUE_WORDS: readonly string[] = ['1', '1.0', 'true', 't', 'yes', 'y'];
 /** Values of an error column that mean "no error". */
-export const FALSE_WORDS: readonly string[] = ['0', '0.0', 'false', 'f', 'no', 'n'];
+const FALSE_WORDS: readonly string[] = ['0', '0.0', 'false', 'f', 'no', 'n'];
 /** What an error column holds, in words, for messages. */
 export const ERROR_WORDS_EXPECTED = '0 or 1 (or true/false)';
 
@@ -66,7 +66,7 @@ export function badWeightSql(d: Dialect, w: string): string {
  * SQL condition true for text that is empty after trimming. DuckDB first tests whether the value
  * starts below '!' (cheap), so the trim runs on almost no rows.
  */
-export function blankSql(d: Dialect, text: string): string {
+function blankSql(d: Dialect, text: string): string {
   return d.name === 'duckdb' ? `(${text} < '!' AND TRIM(${text}) = '')` : `TRIM(${text}) = ''`;
 }
 

@@ -127,7 +127,7 @@ function sample(table: string, where: string | null): string {
 }
 
 /** A query for the interior bin edges of a numeric column: quantiles of the first 100,000 rows. */
-export function edgesQuery(d: Dialect, table: string, column: string, bins: number, where: string | null): string {
+function edgesQuery(d: Dialect, table: string, column: string, bins: number, where: string | null): string {
   const x = d.toNumber(`CAST(${d.ident(column)} AS ${d.types.text})`);
   const qs = Array.from({ length: bins - 1 }, (_, i) => (i + 1) / bins);
   const from = `(SELECT ${x} AS fg_x FROM ${sample(table, where)}) AS fg_v WHERE fg_x IS NOT NULL AND ${d.isFinite('fg_x')}`;
@@ -146,7 +146,7 @@ export function edgesQuery(d: Dialect, table: string, column: string, bins: numb
 }
 
 /** A query for the classes counted for agreement: the 50 most frequent labels of the first 100,000 rows. */
-export function classesQuery(d: Dialect, table: string, columns: readonly string[], where: string | null): string {
+function classesQuery(d: Dialect, table: string, columns: readonly string[], where: string | null): string {
   const parts = columns.map((c) => `SELECT NULLIF(TRIM(CAST(${d.ident(c)} AS ${d.types.text})), '') AS fg_v FROM ${sample(table, where)}`);
   return `SELECT fg_v AS class, COUNT(*) AS n FROM (${parts.join(' UNION ALL ')}) AS fg_all WHERE fg_v IS NOT NULL GROUP BY fg_v ORDER BY n DESC, fg_v LIMIT ${MAX_CATEGORIES}`;
 }

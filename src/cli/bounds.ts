@@ -6,6 +6,7 @@
  */
 import { cpus, totalmem } from 'node:os';
 import { COST_EXPECTED, COST_RANGE } from '../read/keyed-table.js';
+import { DEMO_MAX_RUNS } from '../demo/scenario.js';
 import { error } from '../core/errors.js';
 
 /** A numeric option's domain: whole or real, and its ends (open ends exclude the value). */
@@ -26,11 +27,11 @@ const CORES = Math.max(1, cpus().length);
 /** Most DuckDB worker threads: 4 × the machine's cores (at least 4). */
 export const MAX_THREADS = Math.max(4, 4 * CORES);
 /** Most bins of a numeric slice column. */
-export const MAX_BINS = 1000;
+const MAX_BINS = 1000;
 /** Largest `--max-cells`; the cell cap is 5 × this (about 1 GB of cells). */
-export const MAX_MAX_CELLS = 2_000_000;
+const MAX_MAX_CELLS = 2_000_000;
 /** Largest `--max-slices`. */
-export const MAX_MAX_SLICES = 200_000;
+const MAX_MAX_SLICES = 200_000;
 
 const fraction = (open: boolean): NumberBound => ({ integer: false, min: 0, max: 1, openMin: open, openMax: open });
 const whole = (min: number, max: number, why?: string): NumberBound => ({ integer: true, min, max, ...(why ? { why } : {}) });
@@ -58,7 +59,7 @@ export const NUMBER_BOUNDS: Readonly<Record<string, NumberBound>> = {
   'max-dev-error': limit,
   rows: whole(1, 100_000_000),
   seed: whole(0, 2 ** 31 - 1),
-  runs: whole(1, 12, 'each run doubles the training rows'),
+  runs: whole(1, DEMO_MAX_RUNS, 'each run doubles the training rows'),
 };
 
 function describeBound(b: NumberBound): string {
@@ -101,7 +102,7 @@ const UNITS: Readonly<Record<string, number>> = {
 };
 
 /** Smallest `--memory-limit`: below it the engine cannot hold a scan's working set. */
-export const MIN_MEMORY_BYTES = 64e6;
+const MIN_MEMORY_BYTES = 64e6;
 
 /**
  * Parses `--memory-limit`: a size with a unit (B, KB, MB, GB, TB, KiB, MiB, GiB, TiB), between 64 MB

@@ -3,17 +3,18 @@ import { FloorgapError, INTERNAL_EXIT } from '../core/errors.js';
 import { readConfig } from '../read/config.js';
 import { checkBounds, type ShowOption } from './bounds.js';
 import { VERSION } from '../core/version.js';
-import { checkOptions, runCheck, type CheckArgs } from './commands/check.js';
-import { demoOptions, runDemo, type DemoArgs } from './commands/demo.js';
-import { exportOptions, runExport, type ExportArgs } from './commands/export.js';
-import { exploreOptions, runExplore, type ExploreArgs } from './commands/explore.js';
-import { reportOptions, runReport, type ReportArgs } from './commands/report.js';
-import { runSql, sqlOptions, type SqlArgs } from './commands/sql.js';
+import { runCheck, type CheckArgs } from './commands/check.js';
+import { runDemo, type DemoArgs } from './commands/demo.js';
+import { runExport, type ExportArgs } from './commands/export.js';
+import { runExplore, type ExploreArgs } from './commands/explore.js';
+import { runReport, type ReportArgs } from './commands/report.js';
+import { runSql, type SqlArgs } from './commands/sql.js';
 import { reportFailure } from './failure.js';
 import type { CliIO } from './io.js';
+import { commandOptions } from './options.js';
 
 /** Exit codes: 0 fine, 1 a check found violations, 2 bad usage or input, 3 an unexpected internal error. */
-export const EXIT = { ok: 0, violations: 1, usage: 2, internal: INTERNAL_EXIT } as const;
+const EXIT = { ok: 0, violations: 1, usage: 2, internal: INTERNAL_EXIT } as const;
 
 function configPath(argv: readonly string[]): string | null {
   for (let i = 0; i < argv.length; i++) {
@@ -86,7 +87,7 @@ export async function main(argv: readonly string[], io: CliIO): Promise<number> 
       .command(
         'report [files..]',
         'rank data slices by the error they could give back, against human-level floors',
-        (y) => projectDefaults(reportOptions(y), config),
+        (y) => projectDefaults(commandOptions(y, 'report'), config),
         async (args) => {
           code = await runReport(args as unknown as ReportArgs, io);
         },
@@ -94,7 +95,7 @@ export async function main(argv: readonly string[], io: CliIO): Promise<number> 
       .command(
         ['explore [files..]', '$0 [files..]'],
         'the interactive slice explorer (prints the report when not on a terminal)',
-        (y) => projectDefaults(exploreOptions(y), config),
+        (y) => projectDefaults(commandOptions(y, 'explore'), config),
         async (args) => {
           code = await runExplore(args as unknown as ExploreArgs, io, argv);
         },
@@ -102,7 +103,7 @@ export async function main(argv: readonly string[], io: CliIO): Promise<number> 
       .command(
         'check [files..]',
         'exit 1 when a slice breaks a limit or got worse than a baseline (for pipelines)',
-        (y) => projectDefaults(checkOptions(y), config),
+        (y) => projectDefaults(commandOptions(y, 'check'), config),
         async (args) => {
           code = await runCheck(args as unknown as CheckArgs, io);
         },
@@ -110,7 +111,7 @@ export async function main(argv: readonly string[], io: CliIO): Promise<number> 
       .command(
         'export [files..]',
         'write the rows behind the chosen slices (flagged by default) to CSV, JSON Lines or Parquet',
-        (y) => projectDefaults(exportOptions(y), config),
+        (y) => projectDefaults(commandOptions(y, 'export'), config),
         async (args) => {
           code = await runExport(args as unknown as ExportArgs, io, argv);
         },
@@ -118,7 +119,7 @@ export async function main(argv: readonly string[], io: CliIO): Promise<number> 
       .command(
         'sql [files..]',
         'print the GROUP BY that computes the cells in your own SQL engine (or run it here with --out)',
-        (y) => projectDefaults(sqlOptions(y), config),
+        (y) => projectDefaults(commandOptions(y, 'sql'), config),
         async (args) => {
           code = await runSql(args as unknown as SqlArgs, io);
         },
@@ -126,7 +127,7 @@ export async function main(argv: readonly string[], io: CliIO): Promise<number> 
       .command(
         'demo',
         'write the seeded solder-joint demo table and its inspector floor table',
-        (y) => projectDefaults(demoOptions(y), config),
+        (y) => projectDefaults(commandOptions(y, 'demo'), config),
         async (args) => {
           code = await runDemo(args as unknown as DemoArgs, io);
         },

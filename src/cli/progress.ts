@@ -11,7 +11,7 @@ import { truncate } from '../terminal/width.js';
 import type { CliIO } from './io.js';
 
 /** Inputs at least this large (bytes, all files together) show progress under `--progress auto`. */
-export const PROGRESS_MIN_BYTES = 64 * 1024 * 1024;
+const PROGRESS_MIN_BYTES = 64 * 1024 * 1024;
 
 const BAR = 24;
 

@@ -7,7 +7,7 @@
 import { interruptAll } from '../sql/duck.js';
 import { removeTempsSync } from '../output/temp-files.js';
 
-export const SIGNAL_EXIT = { SIGINT: 130, SIGTERM: 143, SIGHUP: 129 } as const;
+const SIGNAL_EXIT = { SIGINT: 130, SIGTERM: 143, SIGHUP: 129 } as const;
 export type HandledSignal = keyof typeof SIGNAL_EXIT;
 
 type Claim = (signal: HandledSignal, code: number) => void;

@@ -1,5 +1,5 @@
 /**
- * Splits: the four evaluation sets a row can belong to (shared/GLOSSARY.md), and the one list of the
+ * Splits: the four evaluation sets a row can belong to (README, "Splits"), and the one list of the
  * spellings accepted for each. Every reader of a split — the cell query, cells files, export, examples,
  * paired rows, `--splits` — takes them from here.
  */

@@ -71,11 +71,6 @@ export class Random {
   }
 }
 
-/** Builds a generator for `seed`. */
-export function seededRandom(seed: number): Random {
-  return new Random(seed);
-}
-
 /**
  * A 32-bit seed for an independent side stream of `seed`, one per `salt` (a murmur3-style finaliser over
  * the seed's low 32 bits and the salt). The demo generator uses it so that extra draws (the inspector

@@ -11,6 +11,8 @@
  * This file describes the scenario (columns, classes, floors, planted effects, shares); draws.ts draws
  * rows from it and csv.ts writes them.
  */
+import { DEFAULTS } from '../core/defaults.js';
+
 export type DemoSplit = 'train' | 'train_dev' | 'dev' | 'test';
 export type DemoStation = 'S1' | 'S2' | 'S3' | 'S4' | 'S5' | 'S6';
 export type DemoLighting = 'ring' | 'coaxial' | 'dome' | 'low-angle';
@@ -69,7 +71,7 @@ export interface DemoOptions {
   readonly runs?: number;
 }
 
-export const DEMO_DEFAULTS: DemoOptions = Object.freeze({ rows: 20_000, seed: 24, runs: 1 });
+export const DEMO_DEFAULTS: DemoOptions = Object.freeze({ rows: DEFAULTS.demoRows, seed: DEFAULTS.demoSeed, runs: DEFAULTS.demoRuns });
 
 /** Largest accepted `runs` (run 1 then trains on 1/512 of the train rows). */
 export const DEMO_MAX_RUNS = 10;
@@ -93,7 +95,7 @@ export const DEMO_COLUMNS = [
 ] as const satisfies readonly (keyof DemoRow)[];
 
 /** The run column's name, inserted right after `split` when the table holds several runs. */
-export const DEMO_RUN_COLUMN = 'run' as const satisfies keyof DemoRow;
+const DEMO_RUN_COLUMN = 'run' as const satisfies keyof DemoRow;
 
 /** The demo table's columns for `runs` training runs: {@link DEMO_COLUMNS}, plus `run` after `split` when runs ≥ 2. */
 export function demoColumns(runs = 1): ReadonlyArray<keyof DemoRow> {

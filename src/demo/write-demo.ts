@@ -7,8 +7,8 @@ import { generateDemoRows } from './draws.js';
 import { checkDemoOptions, type DemoOptions } from './scenario.js';
 
 /** File names {@link writeDemo} writes inside its folder. */
-export const DEMO_TABLE_FILE = 'solder-joints.csv';
-export const DEMO_FLOORS_FILE = 'inspector-floors.csv';
+const DEMO_TABLE_FILE = 'solder-joints.csv';
+const DEMO_FLOORS_FILE = 'inspector-floors.csv';
 
 /** Lines are gathered into chunks of about this many characters before each write. */
 const CHUNK_CHARS = 64 * 1024;

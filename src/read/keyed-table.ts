@@ -14,7 +14,7 @@ export const COST_RANGE = { min: 1e-12, max: 1e12 } as const;
 export const COST_EXPECTED = 'a cost from 1e-12 to 1e12 (e.g. 1, or 4 for a slice four times dearer to label)';
 
 /** True when `value` is a labelling cost ({@link COST_RANGE}). */
-export function validCost(value: number): boolean {
+function validCost(value: number): boolean {
   return Number.isFinite(value) && value >= COST_RANGE.min && value <= COST_RANGE.max;
 }
 

@@ -57,7 +57,7 @@ export function readError(path: string, e: unknown): FloorgapError {
 }
 
 /** A read that the engine could not finish (as opposed to a check of ours that found bad values). */
-export class ReadFailure extends FloorgapError {
+class ReadFailure extends FloorgapError {
   constructor(message: string, cause: unknown) {
     super(message, 2, cause);
   }

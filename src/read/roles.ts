@@ -2,7 +2,6 @@ import { error } from '../core/errors.js';
 
 /** The role a column can play. Every other column is metadata and may become a slice column. */
 export type Role = 'label' | 'pred' | 'error' | 'split' | 'id' | 'score' | 'weight' | 'run';
-export const ROLES: readonly Role[] = ['label', 'pred', 'error', 'split', 'id', 'score', 'weight', 'run'];
 
 /** Column names chosen by the user (flags or floorgap.json); undefined means "detect". */
 export type RoleOptions = Partial<Record<Role, string>>;

@@ -45,7 +45,7 @@ export interface Source {
 export type ColumnKind = 'text' | 'number' | 'other';
 
 /** Name of the view of the rows with their own column types (see {@link Source.native}). */
-export const NATIVE_VIEW = 'fg_rows_native';
+const NATIVE_VIEW = 'fg_rows_native';
 
 /** Types that convert to a double exactly as their text does. */
 const NUMBER_TYPES = new Set(['DOUBLE', 'BIGINT', 'INTEGER', 'SMALLINT', 'TINYINT', 'UBIGINT', 'UINTEGER', 'USMALLINT', 'UTINYINT']);

@@ -1,7 +1,7 @@
 import { open, stat } from 'node:fs/promises';
 import { gunzipSync } from 'node:zlib';
 import type { Duck } from '../sql/duck.js';
-import { ident, literal } from '../sql/quote.js';
+import { literal } from '../sql/quote.js';
 import type { Split } from '../core/split.js';
 import { error } from '../core/errors.js';
 import { badJsonLine, readError } from './read-errors.js';
@@ -149,7 +149,7 @@ export async function detectTable(path: string, split?: Split): Promise<TableInp
  * parallel JSON reader rejects the mark ("byte order mark (BOM) is not supported", DuckDB 1.5) where
  * the single-threaded one skips it.
  */
-export function needsOneThread(inputs: readonly TableInput[]): boolean {
+function needsOneThread(inputs: readonly TableInput[]): boolean {
   return inputs.some((i) => i.format === 'jsonl' && i.bom === true);
 }
 
@@ -270,9 +270,4 @@ export async function describeColumns(duck: Duck, tableExpr: string, path: strin
   } catch (e) {
     throw readError(path, e);
   }
-}
-
-/** Quotes the names of a list of columns for a SELECT list. */
-export function selectList(columns: readonly string[]): string {
-  return columns.map(ident).join(', ');
 }

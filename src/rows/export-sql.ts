@@ -16,7 +16,7 @@ import type { Split } from '../core/split.js';
 export const EXPORT_COLUMNS = ['fg_slice', 'fg_focus', 'fg_rank', 'fg_split', 'fg_reason'] as const;
 
 /** Separator of the slices of a row that lies in several chosen slices. */
-export const SLICE_SEPARATOR = ' | ';
+const SLICE_SEPARATOR = ' | ';
 
 /** One chosen slice, as the SQL needs it. */
 export interface ExportSlice {

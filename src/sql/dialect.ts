@@ -22,7 +22,7 @@ export interface Dialect {
   readonly name: DialectName;
   /** a quoted identifier (column or alias name) */
   ident(name: string): string;
-  /** a quoted string literal of exactly `value`; unsafe characters (util/unsafe-chars.ts) are written as escapes */
+  /** a quoted string literal of exactly `value`; unsafe characters (core/unsafe-chars.ts) are written as escapes */
   str(value: string): string;
   /** a number literal of type DOUBLE (or the dialect's double type) */
   num(value: number): string;
@@ -56,7 +56,7 @@ function standardString(value: string): string {
 const hex4 = (code: number) => code.toString(16).toUpperCase().padStart(4, '0');
 
 /**
- * The value split into runs of safe text and single unsafe code units (see util/unsafe-chars.ts): a
+ * The value split into runs of safe text and single unsafe code units (see core/unsafe-chars.ts): a
  * literal carries the exact value, with the unsafe characters written as escapes, so that the printed
  * query holds no control character, line break or bidi control, and still matches the data.
  */

@@ -1,6 +1,6 @@
 import type { DuckDBConnection } from '@duckdb/node-api';
-import { cpus } from 'node:os';
 import { resolve } from 'node:path';
+import { DEFAULTS } from '../core/defaults.js';
 
 /** Resource settings for the embedded scan engine. */
 export interface DuckSettings {
@@ -9,8 +9,6 @@ export interface DuckSettings {
   /** DuckDB memory limit, e.g. "2GB" */
   readonly memoryLimit?: string;
 }
-
-export const DEFAULT_THREADS = Math.max(1, Math.min(2, cpus().length));
 
 /**
  * The files a locked engine may touch: the exact paths a command reads (its inputs, floor and cost
@@ -24,8 +22,6 @@ export interface EngineAccess {
   /** an empty folder of the caller's own where the engine spills what does not fit in memory */
   readonly spill: string;
 }
-export const DEFAULT_MEMORY_LIMIT = '2GB';
-
 /** An open in-process DuckDB database with helpers that return plain JS values (BIGINT → number). */
 export interface Duck {
   readonly connection: DuckDBConnection;
@@ -73,8 +69,8 @@ function listLiteral(paths: readonly string[]): string {
  * await duck.all("select * from read_csv('/etc/passwd')"); // throws: file system operations are disabled
  */
 export async function openDuck(settings: DuckSettings = {}, access?: EngineAccess): Promise<Duck> {
-  const threads = settings.threads ?? DEFAULT_THREADS;
-  const memoryLimit = settings.memoryLimit ?? DEFAULT_MEMORY_LIMIT;
+  const threads = settings.threads ?? DEFAULTS.threads;
+  const memoryLimit = settings.memoryLimit ?? DEFAULTS.memoryLimit;
   // loaded on first use: a report served from the cache never loads the engine
   const { DuckDBInstance } = await import('@duckdb/node-api');
   const instance = await DuckDBInstance.create(':memory:', {

@@ -22,7 +22,7 @@ const OPERATORS = new Set(['OPERATOR_NOT', 'OPERATOR_IS_NULL', 'OPERATOR_IS_NOT_
  * Scalar functions and operators a condition may call: comparisons of text and numbers, string tests,
  * arithmetic, rounding, dates. Nothing that reads files, settings or the environment, and no aggregate.
  */
-export const WHERE_FUNCTIONS: ReadonlySet<string> = new Set([
+const WHERE_FUNCTIONS: ReadonlySet<string> = new Set([
   // operators DuckDB's parser turns into functions
   '+', '-', '*', '/', '//', '%', '^', '**', '||',
   '~~', '!~~', '~~*', '!~~*', '~~~', '!~~~', 'like_escape', 'not_like_escape', 'ilike_escape', 'not_ilike_escape',

@@ -114,8 +114,9 @@ function decide(change: number, q: number | null, lo: number | null, hi: number 
  * Unpaired regression test against a report saved earlier: per slice (matched by key), the rise in dev
  * error with Newcombe's interval and the pooled two-proportion test, q-values by Benjamini–Hochberg
  * (or Yekutieli) across the slices compared. Regressed: the rise has q ≤ fdr and its interval excludes 0.
+ * @param confidence the level of the intervals (the check's --confidence)
  */
-export function compareReports(current: Report, baseline: Report, fdr: number, method: 'bh' | 'by'): Comparison[] {
+export function compareReports(current: Report, baseline: Report, fdr: number, method: 'bh' | 'by', confidence: number): Comparison[] {
   const before = new Map([baseline.overall, ...baseline.slices].map((s) => [keyId(s.key), s]));
   const rows = [current.overall, ...current.slices].map((s) => {
     const b = before.get(keyId(s.key));
@@ -124,7 +125,7 @@ export function compareReports(current: Report, baseline: Report, fdr: number, m
     if (!b || !now || !was) {
       return { s, now, was, ci: null, p: null, status: b ? ('unchanged' as const) : ('not-in-baseline' as const) };
     }
-    const ci = newcombeInterval(now.value * now.n, now.n, was.value * was.n, was.n);
+    const ci = newcombeInterval(now.value * now.n, now.n, was.value * was.n, was.n, confidence);
     const p = twoProportionTest(now.value * now.n, now.n, was.value * was.n, was.n);
     return { s, now, was, ci, p, status: s.focus === 'thin' || b.focus === 'thin' ? ('thin' as const) : null };
   });

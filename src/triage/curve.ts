@@ -3,7 +3,7 @@ import { fitPowerLaw, kishEffectiveN, logGapWeight } from '../stats/index.js';
 import type { Curve } from './types.js';
 
 /** Fewest distinct training sizes for a fitted exponent. */
-export const MIN_CURVE_SIZES = 3;
+const MIN_CURVE_SIZES = 3;
 
 /**
  * The slice's learning-curve exponent: fit g(n) = a · n^(−β) to its generalisation gap (dev − train)

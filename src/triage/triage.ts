@@ -64,7 +64,7 @@ function diff(a: Prop | null, b: Prop | null, confidence: number): Gap | null {
  * floor's effective sample size is 1 / Σ_k π_k² / n_k, with π_k the share of the slice's train weight
  * that took entry k (entries without n count as exact); a single entry gives n_k.
  */
-export function sliceFloor(stats: SliceStats, confidence: number): SliceFloor {
+function sliceFloor(stats: SliceStats, confidence: number): SliceFloor {
   const train = stats.splits.train;
   const dev = stats.splits.dev;
   const parts = stats.floorParts.length > 0 ? stats.floorParts : stats.devFloorParts;
@@ -107,7 +107,7 @@ interface Draft {
 }
 
 /** "col=value · col=value"; "overall" for the empty key. */
-export function sliceLabel(key: Readonly<Record<string, string>>): string {
+function sliceLabel(key: Readonly<Record<string, string>>): string {
   const parts = Object.entries(key).map(([k, v]) => `${k}=${v}`);
   return parts.length ? parts.join(' · ') : 'overall';
 }
@@ -179,7 +179,7 @@ export function significant(g: Gap | null, fdr: number): boolean {
  * The focus: the first rule that applies — thin; below-floor; the significant positive part with the
  * largest headroom (bias, variance, mismatch); at-floor; unclear.
  */
-export function chooseFocus(d: Pick<Draft, 'thin' | 'gaps' | 'headroom' | 'floor' | 'error'>, o: TriageOptions): Focus {
+function chooseFocus(d: Pick<Draft, 'thin' | 'gaps' | 'headroom' | 'floor' | 'error'>, o: TriageOptions): Focus {
   if (d.thin) return 'thin';
   const bias = d.gaps.avoidable_bias;
   if (bias && bias.hi !== null && bias.hi < 0) return 'below-floor';
@@ -306,7 +306,7 @@ export function triage(
 }
 
 /** The report's order: flagged first, then by yield (missing last), then headroom, then label. */
-export function compareSlices(a: SliceReport, b: SliceReport): number {
+function compareSlices(a: SliceReport, b: SliceReport): number {
   if (a.flagged !== b.flagged) return a.flagged ? -1 : 1;
   const ya = a.yield;
   const yb = b.yield;
@@ -322,7 +322,7 @@ export function compareSlices(a: SliceReport, b: SliceReport): number {
 }
 
 /** Agreement this far below the data's overall kappa counts as low in a slice (a heuristic of ours). */
-export const KAPPA_DROP = 0.05;
+const KAPPA_DROP = 0.05;
 
 /**
  * Notes for the reader: labels that are likely noisy (kappa below 0.6, or 0.05 below the overall kappa,

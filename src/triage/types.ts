@@ -1,4 +1,5 @@
 import type { Split } from '../core/split.js';
+import { DEFAULTS } from '../core/defaults.js';
 
 /** A rate with its confidence interval; `n` is the effective number of rows (Kish) behind it. */
 export interface Rate {
@@ -148,15 +149,16 @@ export interface TriageOptions {
   readonly run: string | null;
 }
 
+/** Triage's options when none is given (the values: core/defaults.ts). */
 export const DEFAULT_TRIAGE_OPTIONS: TriageOptions = {
-  confidence: 0.95,
-  fdr: 0.05,
-  fdrMethod: 'bh',
-  minRows: 30,
-  floorMargin: 0.01,
-  minHeadroom: 0.001,
-  curveExponent: 0.5,
-  labelCost: 1,
-  floorRule: 'panel',
+  confidence: DEFAULTS.confidence,
+  fdr: DEFAULTS.fdr,
+  fdrMethod: DEFAULTS.fdrMethod,
+  minRows: DEFAULTS.minRows,
+  floorMargin: DEFAULTS.floorMargin,
+  minHeadroom: DEFAULTS.minHeadroom,
+  curveExponent: DEFAULTS.curveExponent,
+  labelCost: DEFAULTS.labelCost,
+  floorRule: DEFAULTS.floorRule,
   run: null,
 };

@@ -20,7 +20,6 @@ import { SliceTableScreen } from './screens/SliceTableScreen.js';
 import { TooSmallScreen } from './screens/TooSmallScreen.js';
 import { initialState, reduce, shownSlices } from './state.js';
 
-export type { LoadProgress };
 
 /** Props of {@link App}. */
 export interface AppProps {

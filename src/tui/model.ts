@@ -5,7 +5,7 @@
  */
 import { count, NULL_MARK, points, signedPoints } from '../render/format.js';
 import { sanitize } from '../terminal/sanitize.js';
-import { displayWidth, pad, truncate } from '../terminal/width.js';
+import { pad } from '../terminal/width.js';
 import type { Focus, SliceReport } from '../triage/types.js';
 
 /** Sort columns, in the order the sort key cycles through them. */
@@ -323,4 +323,3 @@ export const LEVER: Readonly<Record<Focus, string>> = {
 };
 
 /** Width of a string on screen (re-exported for components). */
-export { displayWidth, truncate };

@@ -9,6 +9,7 @@ import { cpus, tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { boundedNumber, checkBounds, MAX_THREADS, memoryLimit, NUMBER_BOUNDS } from '../../src/cli/bounds.js';
+import { DEMO_MAX_RUNS } from '../../src/demo/scenario.js';
 import { ROOT, runCli } from '../helpers/run-cli.js';
 
 const SAMPLE = join(ROOT, 'data-samples', 'solder-joints.csv');
@@ -40,6 +41,12 @@ describe('boundedNumber and memoryLimit', () => {
     for (const bad of ['abc', '0', '0GB', '1e400GB', '10MB', '9GB', '-1GB', '2', '']) {
       expect(() => memoryLimit(bad, `--memory-limit ${bad}`, 8e9), bad).toThrow(/expected a size such as 2GB or 512MB, from 64MB to this machine's memory \(8\.0GB\)/);
     }
+  });
+
+  it('demo --runs: at most the runs the generator makes (DEMO_MAX_RUNS, 10)', () => {
+    expect(boundedNumber(NUMBER_BOUNDS.runs, DEMO_MAX_RUNS, '--runs 10')).toBe(10);
+    // the bound said 12 while the generator stops at 10: --runs 11 passed the check and failed later
+    expect(() => boundedNumber(NUMBER_BOUNDS.runs, 11, '--runs 11')).toThrow('--runs 11: expected a whole number from 1 to 10 (each run doubles the training rows)');
   });
 
   it('bins may not exceed the slices a grouping may list', () => {

@@ -10,9 +10,11 @@ import { join } from 'node:path';
 import { XMLParser } from 'fast-xml-parser';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { openDuck } from '../../src/sql/duck.js';
+import { newcombeInterval } from '../../src/stats/index.js';
 import type { CheckResult } from '../../src/triage/check.js';
 import type { Report } from '../../src/triage/types.js';
 import { runCli } from '../helpers/run-cli.js';
+import { expectClose } from '../stats/expect-close.js';
 
 let dir: string;
 let base: string;
@@ -96,6 +98,31 @@ describe('regressions against a baseline', () => {
     const same = await check([base, '--floor-table', floors, '--by', 'station', '--baseline', saved]);
     expect(same.code).toBe(0); // the baseline against itself: nothing changed
     expect(same.result.comparisons.every((c) => c.change === 0)).toBe(true);
+  });
+
+  it("unpaired: the intervals of the rise take the check's --confidence", async () => {
+    const saved = join(dir, 'base-confidence.json');
+    writeFileSync(saved, (await runCli([base, '--floor-table', floors, '--by', 'station', '--format', 'json'])).stdout);
+    const worseReport = JSON.parse((await runCli([worse, '--floor-table', floors, '--by', 'station', '--format', 'json'])).stdout) as Report;
+    const savedReport = JSON.parse(readFileSync(saved, 'utf8')) as Report;
+    const at = async (confidence: string) => {
+      const { result } = await check([worse, '--floor-table', floors, '--by', 'station', '--baseline', saved, '--confidence', confidence]);
+      return result.comparisons.find((c) => c.slice === 'station=S3')!;
+    };
+    const now = worseReport.slices.find((s) => s.label === 'station=S3')!.error.dev!;
+    const was = savedReport.slices.find((s) => s.label === 'station=S3')!.error.dev!;
+    for (const confidence of [0.5, 0.99]) {
+      const c = await at(String(confidence));
+      // newcombeInterval (src/stats, checked against statsmodels' confint_proportions_2indep in
+      // test/stats/newcombe-interval.test.ts) on the two reports' dev errors, at the check's level
+      const expected = newcombeInterval(now.value * now.n, now.n, was.value * was.n, was.n, confidence)!;
+      expectClose(c.lo, expected.lo, 1e-12);
+      expectClose(c.hi, expected.hi, 1e-12);
+    }
+    // a 50 % interval lies inside the default 95 % one, a 99 % one around it
+    const [half, ninetyFive] = [await at('0.5'), await at('0.95')];
+    expect(half.lo!).toBeGreaterThan(ninetyFive.lo!);
+    expect(half.hi!).toBeLessThan(ninetyFive.hi!);
   });
 
   it('a baseline report with another grouping is a clear error', async () => {

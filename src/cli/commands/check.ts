@@ -1,4 +1,3 @@
-import type { Argv } from 'yargs';
 import { pairedCounts } from '../../rows/paired.js';
 import { readBaseline } from '../../app/baseline.js';
 import { checkDestination, writeAtomic } from '../../output/write-atomic.js';
@@ -11,7 +10,7 @@ import { error } from '../../core/errors.js';
 import { analysisReads, analyzeWith, withDuck } from '../../app/analysis.js';
 import type { CliIO } from '../io.js';
 import { useColor, writeOut } from '../io.js';
-import { analysisHooks, analysisOptions, analysisRequest, toLoadOptions, type AnalysisArgs } from '../options.js';
+import { analysisHooks, analysisRequest, toLoadOptions, type AnalysisArgs } from '../options.js';
 
 export interface CheckArgs extends AnalysisArgs {
   'max-bias'?: number;
@@ -22,18 +21,6 @@ export interface CheckArgs extends AnalysisArgs {
   baseline?: string;
   format: 'text' | 'json';
   junit?: string;
-}
-
-export function checkOptions<T>(y: Argv<T>) {
-  return analysisOptions(y)
-    .option('max-bias', { type: 'number', describe: 'largest avoidable bias a slice may have (fraction)', group: 'Limits:' })
-    .option('max-variance', { type: 'number', describe: 'largest variance (fraction)', group: 'Limits:' })
-    .option('max-mismatch', { type: 'number', describe: 'largest mismatch (fraction)', group: 'Limits:' })
-    .option('max-dev-error', { type: 'number', describe: 'largest dev error (fraction)', group: 'Limits:' })
-    .option('strict', { type: 'boolean', default: false, describe: 'judge point values, not the interval lower end', group: 'Limits:' })
-    .option('baseline', { type: 'string', describe: 'a saved JSON report, or the baseline model\'s prediction table (paired by id)', group: 'Limits:' })
-    .option('format', { alias: 'f', choices: ['text', 'json'] as const, default: 'text' as const, describe: 'output format', group: 'Output:' })
-    .option('junit', { type: 'string', describe: 'also write a JUnit XML file (one test case per slice and limit)', group: 'Output:' });
 }
 
 function limitsOf(args: CheckArgs): Limits {
@@ -75,7 +62,7 @@ export async function runCheck(args: CheckArgs, io: CliIO): Promise<number> {
           const show = (b: readonly string[] | null) => (b ? `--by ${b.join(',')}` : 'the overview (no --by)');
           throw error(`${args.baseline}: the baseline report is grouped by ${show(before.by)}, this check by ${show(report.by)}; use the same grouping`);
         }
-        comparisons = compareReports(report, before, report.fdr, report.fdr_method);
+        comparisons = compareReports(report, before, report.fdr, report.fdr_method, report.confidence);
         baseline = { path: args.baseline, kind: 'report' };
       } else {
         if (loaded.origin === 'cells') {

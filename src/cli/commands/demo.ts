@@ -1,5 +1,3 @@
-import type { Argv } from 'yargs';
-import { DEMO_DEFAULTS } from '../../demo/scenario.js';
 import { writeDemo } from '../../demo/write-demo.js';
 import { sanitize } from '../../terminal/sanitize.js';
 import type { CliIO } from '../io.js';
@@ -11,15 +9,6 @@ export interface DemoArgs {
   seed: number;
   runs: number;
   force: boolean;
-}
-
-export function demoOptions<T>(y: Argv<T>) {
-  return y
-    .option('out', { type: 'string', demandOption: true, describe: 'folder to write the demo files into' })
-    .option('rows', { type: 'number', default: DEMO_DEFAULTS.rows, describe: 'rows to generate' })
-    .option('seed', { type: 'number', default: DEMO_DEFAULTS.seed, describe: 'random seed' })
-    .option('runs', { type: 'number', default: 1, describe: 'training runs with doubling training sizes (adds a run column)' })
-    .option('force', { type: 'boolean', default: false, describe: 'overwrite existing files' });
 }
 
 /** `floorgap demo`: writes the seeded solder-joint prediction table and the inspector floor table. */

@@ -5,6 +5,7 @@ import { watchProgress, type ScanProgress } from '../../sql/progress.js';
 import { App } from '../../tui/App.js';
 import { explorerData, type Exporter } from '../../app/explorer-data.js';
 import type { SliceReport } from '../../triage/types.js';
+import { DEFAULTS } from '../../core/defaults.js';
 import { FloorgapError, INTERNAL_EXIT } from '../../core/errors.js';
 import { analysisReads, analyzeWith, openEngine } from '../../app/analysis.js';
 import type { CliIO } from '../io.js';
@@ -53,6 +54,38 @@ export function withoutScrollbackClear(stdout: NodeJS.WriteStream): NodeJS.Write
 }
 
 /**
+ * The explorer's export: the rows of the slices chosen on screen, written as `floorgap export --slice
+ * KEY …` would write them, with a manifest that records the explorer's command line as it was run and
+ * names the chosen slices by their keys. Returns the line for the status bar; a FloorgapError is that
+ * line too, anything else is thrown (an internal error ends the explorer).
+ * @param argv the explorer's command line as given (after `floorgap`)
+ */
+export function explorerExporter(args: ExploreArgs, io: CliIO, argv: readonly string[]): Exporter {
+  return async (slices, path, force) => {
+    const out: string[] = [];
+    const capture = { write: (chunk: string | Uint8Array, cb?: (e?: Error | null) => void) => (out.push(String(chunk)), cb?.(), true) } as unknown as NodeJS.WritableStream;
+    const exportArgs: ExportArgs = {
+      ...args,
+      by: undefined,
+      out: path,
+      force,
+      slice: slices.map(sliceKeyText),
+      splits: DEFAULTS.exportSplits,
+      'errors-only': false,
+      raw: false,
+      chosenIn: 'explorer',
+    };
+    try {
+      await runExport(exportArgs, { ...io, stdout: capture, stderr: capture }, argv);
+    } catch (e) {
+      if (e instanceof FloorgapError) return e.message;
+      throw e;
+    }
+    return out.join('').trim().split('\n')[0] ?? `wrote ${path}`;
+  };
+}
+
+/**
  * The full-screen keyboard explorer on a terminal (stdin and stdout are TTYs). Loaded only when it
  * runs, so other commands never pay for the UI libraries at start-up.
  */
@@ -62,27 +95,7 @@ export async function runExplorer(args: ExploreArgs, io: CliIO, argv: readonly s
   let duck: Duck | null = null;
   let stopped = false;
   let latest: ScanProgress | null = null;
-  const exporter: Exporter = async (slices, path, force) => {
-    const out: string[] = [];
-    const capture = { write: (chunk: string | Uint8Array, cb?: (e?: Error | null) => void) => (out.push(String(chunk)), cb?.(), true) } as unknown as NodeJS.WritableStream;
-    const exportArgs: ExportArgs = {
-      ...args,
-      by: undefined,
-      out: path,
-      force,
-      slice: slices.map(sliceKeyText),
-      splits: 'train,dev',
-      'errors-only': false,
-      raw: false,
-    };
-    try {
-      await runExport(exportArgs, { ...io, stdout: capture, stderr: capture }, ['explore', ...argv, '--out', path]);
-    } catch (e) {
-      if (e instanceof FloorgapError) return e.message;
-      throw e;
-    }
-    return out.join('').trim().split('\n')[0] ?? `wrote ${path}`;
-  };
+  const exporter = explorerExporter(args, io, argv);
 
   const stdout = io.stdout as NodeJS.WriteStream;
   let restored = false;

@@ -1,13 +1,8 @@
-import type { Argv } from 'yargs';
 import type { CliIO } from '../io.js';
-import { reportOptions, runReport, type ReportArgs } from './report.js';
+import { runReport, type ReportArgs } from './report.js';
 
 export interface ExploreArgs extends ReportArgs {
   ascii: boolean;
-}
-
-export function exploreOptions<T>(y: Argv<T>) {
-  return reportOptions(y).option('ascii', { type: 'boolean', default: false, describe: 'draw with ASCII only (no block glyphs or arrows)', group: 'Output:' });
 }
 
 /**

@@ -1,4 +1,3 @@
-import type { Argv } from 'yargs';
 import { EXPORT_COLUMNS, exportCountSql, exportSql, type ExportQuery } from '../../rows/export-sql.js';
 import { openSource } from '../../read/source.js';
 import { normalizeSplit, SPLITS, type Split } from '../../core/split.js';
@@ -11,7 +10,7 @@ import { error } from '../../core/errors.js';
 import { analysisReads, analyzeWith, withDuck } from '../../app/analysis.js';
 import type { CliIO } from '../io.js';
 import { writeOut } from '../io.js';
-import { analysisHooks, analysisOptions, analysisRequest, toLoadOptions, type AnalysisArgs } from '../options.js';
+import { analysisHooks, analysisRequest, toLoadOptions, type AnalysisArgs } from '../options.js';
 
 /** The manifest's schema name; it changes when a field is removed or changes meaning. */
 export const EXPORT_SCHEMA = 'floorgap.export/1';
@@ -25,19 +24,8 @@ export interface ExportArgs extends AnalysisArgs {
   'limit-per-slice'?: number;
   raw: boolean;
   force: boolean;
-}
-
-/** The analysis options of `report` plus export's own. */
-export function exportOptions<T>(y: Argv<T>) {
-  return analysisOptions(y)
-    .option('out', { alias: 'o', type: 'string', demandOption: true, describe: 'file to write: .csv (default), .jsonl/.ndjson or .parquet; F.manifest.json goes beside it', group: 'Export:' })
-    .option('top', { type: 'number', describe: "the first N slices in the report's order (default: the flagged slices)", group: 'Export:' })
-    .option('slice', { type: 'string', describe: 'a slice by its key, e.g. "station=S5,lighting=dome" (repeatable; \\, for a comma in a value)', group: 'Export:' })
-    .option('splits', { type: 'string', default: 'train,dev', describe: 'splits whose rows are written: train, train_dev, dev, test', group: 'Export:' })
-    .option('errors-only', { type: 'boolean', default: false, describe: "only rows the model got wrong", group: 'Export:' })
-    .option('limit-per-slice', { type: 'number', describe: 'at most N rows per slice (likely label errors first)', group: 'Export:' })
-    .option('raw', { type: 'boolean', default: false, describe: "write text as it is (no ' before formula-like cells)", group: 'Export:' })
-    .option('force', { type: 'boolean', default: false, describe: 'overwrite an existing file and manifest', group: 'Export:' });
+  /** set by the explorer, whose marked slices come as `slice` keys; never a flag */
+  chosenIn?: 'explorer';
 }
 
 /**
@@ -95,7 +83,7 @@ const SHAPING: readonly (keyof AnalysisArgs)[] = [
  * written by DuckDB, and a manifest beside it.
  * @param args parsed flags
  * @param io stdout/stderr
- * @param argv the command line as given (recorded in the manifest)
+ * @param argv the command line as given, after `floorgap` (recorded in the manifest)
  * @param hooks optional steps inside the writer (tests use them to inject failures)
  */
 export async function runExport(args: ExportArgs, io: CliIO, argv: readonly string[], hooks?: ExportHooks): Promise<number> {
@@ -172,6 +160,7 @@ export async function runExport(args: ExportArgs, io: CliIO, argv: readonly stri
           mode: selection.kind,
           top: selection.kind === 'top' ? selection.n : null,
           named: named.map((s) => s.text),
+          chosen_in: args.chosenIn ?? 'command line',
           by: report.by,
           splits,
           errors_only: args['errors-only'],

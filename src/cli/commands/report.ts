@@ -1,22 +1,11 @@
-import type { Argv } from 'yargs';
-import { FORMATS, render, type Format } from '../../render/index.js';
+import { render, type Format } from '../../render/index.js';
 import { analyze } from '../../app/analysis.js';
 import type { CliIO } from '../io.js';
 import { useColor, writeOut } from '../io.js';
-import { analysisHooks, analysisOptions, analysisRequest, type AnalysisArgs } from '../options.js';
+import { analysisHooks, analysisRequest, type AnalysisArgs } from '../options.js';
 
 export interface ReportArgs extends AnalysisArgs {
   format: Format;
-}
-
-export function reportOptions<T>(y: Argv<T>) {
-  return analysisOptions(y).option('format', {
-    alias: 'f',
-    choices: FORMATS,
-    default: 'text' as Format,
-    describe: 'output format',
-    group: 'Output:',
-  });
 }
 
 /** `floorgap report`: the ranked slice report on stdout. */

@@ -1,8 +1,7 @@
 import { promises as fs } from 'node:fs';
-import type { Argv } from 'yargs';
 import { cellQuery } from '../../cells/cell-query.js';
-import { DIALECTS, type DialectName } from '../../sql/dialect.js';
-import { BIN_METHODS, round3, type BinMethod } from '../../cells/profile.js';
+import type { DialectName } from '../../sql/dialect.js';
+import { round3 } from '../../cells/profile.js';
 import { ROWS_VIEW } from '../../read/source.js';
 import { literal } from '../../sql/quote.js';
 import { planWarehouse, warehouseQuery } from '../../cells/warehouse.js';
@@ -26,46 +25,6 @@ export interface SqlArgs extends AnalysisArgs {
   grouping: 'auto' | 'cross' | 'sets';
   out?: string;
   force: boolean;
-}
-
-/** The options of `floorgap sql`: those that shape cells, and where and how the query runs. */
-export function sqlOptions<T>(y: Argv<T>) {
-  return y
-    .positional('files', { type: 'string', array: true, describe: 'a local sample of the table (optional): columns, bins and grouping are then chosen as a local report would' })
-    .option('table', { type: 'string', describe: 'the warehouse table the query reads, as your engine names it (e.g. lake.preds)', group: 'Query:' })
-    .option('dialect', { choices: DIALECTS, default: 'ansi' as DialectName, describe: 'SQL dialect of the query', group: 'Query:' })
-    .option('bin-edges', { type: 'string', describe: 'numeric slice column and its bin edges, e.g. sharpness=0.58,0.65,0.7 (repeatable); a column alone prints a query for its edges', group: 'Query:' })
-    .option('classes', { type: 'string', describe: 'classes counted for annotator agreement, comma-separated (without a sample file)', group: 'Query:' })
-    .option('grouping', { choices: ['auto', 'cross', 'sets'] as const, default: 'auto' as const, describe: 'full cross of the slice columns, or grouping sets of columns and pairs (auto: as a local report)', group: 'Query:' })
-    .option('out', { alias: 'o', type: 'string', describe: 'run the query here over the files and write the cells (.csv, .jsonl or .parquet)', group: 'Query:' })
-    .option('force', { type: 'boolean', default: false, describe: 'overwrite --out', group: 'Query:' })
-    .option('train', { type: 'string', describe: 'file holding the train split', group: 'Inputs:' })
-    .option('train-dev', { type: 'string', describe: 'file holding the train_dev split', group: 'Inputs:' })
-    .option('dev', { type: 'string', describe: 'file holding the dev split', group: 'Inputs:' })
-    .option('test', { type: 'string', describe: 'file holding the test split', group: 'Inputs:' })
-    .option('union', { type: 'boolean', default: false, describe: 'read sample files with different columns as one table; a column a file lacks is missing there', group: 'Inputs:' })
-    .option('config', { type: 'string', describe: 'project file (default: ./floorgap.json when present)', group: 'Inputs:' })
-    .option('where', { type: 'string', describe: 'keep rows matching an SQL condition (written into the query as given)', group: 'Inputs:' })
-    .option('label', { type: 'string', describe: 'column with the true class (default: label)', group: 'Columns:' })
-    .option('pred', { type: 'string', describe: 'column with the predicted class (default: pred)', group: 'Columns:' })
-    .option('error', { type: 'string', describe: '0/1 error column, instead of label and pred', group: 'Columns:' })
-    .option('split', { type: 'string', describe: 'column with the split (default: split)', group: 'Columns:' })
-    .option('id', { type: 'string', describe: 'column with the row id', group: 'Columns:' })
-    .option('score', { type: 'string', describe: "column with the model's confidence (checked: a number)", group: 'Columns:' })
-    .option('weight', { type: 'string', describe: 'column with the sample weight (>= 0)', group: 'Columns:' })
-    .option('run-column', { type: 'string', describe: 'column naming the training run', group: 'Columns:' })
-    .option('by', { type: 'string', describe: 'slice by these columns, comma-separated (they join the cell columns)', group: 'Slices:' })
-    .option('slice-cols', { type: 'string', describe: 'slice columns, comma-separated (required without a sample file)', group: 'Slices:' })
-    .option('bins', { type: 'number', default: 5, describe: 'bins for numeric columns', group: 'Slices:' })
-    .option('bin-method', { choices: BIN_METHODS, default: 'quantile' as BinMethod, describe: 'how numeric columns are cut: quantile or natural (natural breaks; needs a sample file, or --bin-edges col=…)', group: 'Slices:' })
-    .option('max-cells', { type: 'number', default: 200_000, describe: 'largest full cross before grouping sets (with a sample file)', group: 'Slices:' })
-    .option('floor', { type: 'number', describe: 'human-level error for every row, a fraction (default 0)', group: 'Floors:' })
-    .option('floor-table', { type: 'string', describe: 'table of floors keyed by slice columns (+ optional n), inlined in the query', group: 'Floors:' })
-    .option('annotators', { type: 'string', describe: 'columns of human labels from an audit, comma-separated', group: 'Floors:' })
-    .option('cost-table', { type: 'string', describe: 'table of label_cost keyed by slice columns, inlined in the query', group: 'Floors:' })
-    .option('threads', { type: 'number', default: 2, describe: 'DuckDB worker threads (sample file, --out)', group: 'Engine:' })
-    .option('memory-limit', { type: 'string', default: '2GB', describe: 'DuckDB memory limit', group: 'Engine:' })
-    .option('progress', { choices: ['auto', 'always', 'never'] as const, default: 'auto' as const, describe: 'progress of --out on stderr', group: 'Engine:' });
 }
 
 /**
@@ -102,7 +61,7 @@ function copyFormat(path: string): string {
  * @example
  * comment('x\nDROP TABLE t'); // => 'x\\nDROP TABLE t'
  */
-export function comment(text: string): string {
+function comment(text: string): string {
   return sanitize(text);
 }
 
@@ -117,7 +76,7 @@ export async function runSql(args: SqlArgs, io: CliIO): Promise<number> {
   if (out !== null && !hasFiles) throw error('--out runs the query here, over prediction tables; give the files (e.g. floorgap sql preds.csv --out cells.parquet)');
   const edges = parseBinEdges(args['bin-edges']);
   const classes = list(args.classes);
-  const loadOptions = toLoadOptions({ ...args, 'max-cells': args['max-cells'] ?? 200_000 });
+  const loadOptions = toLoadOptions(args);
   if (out !== null) {
     await checkDestination(out, { overwrite: args.force, folderHint: `--out needs a file name, e.g. ${out.replace(/\/+$/, '')}/cells.parquet` });
   }

@@ -92,7 +92,7 @@ export function layTable(
  * Items joined by `sep`, wrapped so no item is split across lines unless it is wider than a line on its
  * own; then it is word-wrapped (`wrapLong`) or truncated.
  */
-export function flow(
+function flow(
   items: readonly string[],
   width: number,
   first: string,
@@ -129,7 +129,7 @@ export function flow(
 }
 
 /** Items joined by ` · `, wrapped after a key column; an item too long for a line is truncated. */
-export function keyed(key: string, items: readonly string[], width: number): string[] {
+function keyed(key: string, items: readonly string[], width: number): string[] {
   return flow(items, width, key.padEnd(KEY_WIDTH), ' '.repeat(KEY_WIDTH), ' · ', false);
 }
 

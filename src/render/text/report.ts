@@ -23,7 +23,7 @@ export interface TextOptions {
 }
 
 /** Default terminal width when none is given. */
-export const DEFAULT_WIDTH = 100;
+const DEFAULT_WIDTH = 100;
 
 const FOCUS_STYLE: Readonly<Record<Focus, readonly Style[]>> = {
   bias: ['red'],

@@ -28,12 +28,12 @@ export interface SliceTableProps {
 }
 
 /** The header line of the slice table. */
-export function headerSpans(columns: readonly TableColumn[], groupHeader: string): Span[] {
+function headerSpans(columns: readonly TableColumn[], groupHeader: string): Span[] {
   return [{ text: columns.map((c) => fit(c.id === 'label' ? groupHeader : c.header, c)).join(' '), bold: true }];
 }
 
 /** One slice as a table row: text cells, the focus coloured, the gap bar in glyphs. */
-export function rowSpans(s: SliceReport, p: Omit<SliceTableProps, 'slices' | 'cursor' | 'start' | 'height'>): Span[] {
+function rowSpans(s: SliceReport, p: Omit<SliceTableProps, 'slices' | 'cursor' | 'start' | 'height'>): Span[] {
   const spans: Span[] = [];
   const dim = s.focus === 'thin';
   p.columns.forEach((c, i) => {
@@ -57,7 +57,7 @@ export function rowSpans(s: SliceReport, p: Omit<SliceTableProps, 'slices' | 'cu
 }
 
 /** Joins neighbouring spans of the same style, so a row is a handful of text nodes, not one per cell. */
-export function mergeSpans(spans: readonly Span[]): Span[] {
+function mergeSpans(spans: readonly Span[]): Span[] {
   const out: Span[] = [];
   for (const s of spans) {
     const last = out[out.length - 1];

@@ -7,7 +7,7 @@ import { detailLines, type DetailExtras } from '../detail.js';
 export interface DetailPaneProps {
   readonly slice: SliceReport;
   readonly report: Report;
-  /** the breakdown and examples as far as they are loaded (hooks/use-detail-data.ts) */
+  /** the breakdown and examples as far as they are loaded (src/tui/hooks/use-detail-data.ts) */
   readonly extras: DetailExtras;
   readonly width: number;
   /** lines available */

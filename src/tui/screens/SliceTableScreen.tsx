@@ -17,7 +17,7 @@ export interface SliceTableScreenProps {
   /** the filter text, to say why nothing is shown */
   readonly filter: string;
   readonly cursor: number;
-  /** the first row on screen (hooks/use-table-window.ts) */
+  /** the first row on screen (src/tui/hooks/use-table-window.ts) */
   readonly start: number;
   /** table rows available (below the table's header line) */
   readonly height: number;

@@ -5,7 +5,7 @@ import { MIN_COLUMNS, MIN_ROWS } from '../model.js';
 import { lineOf } from '../theme.js';
 
 /** What a terminal too small to draw in shows (src/tui/model.ts, screenLayout). */
-export const TOO_SMALL = `floorgap: enlarge the window (at least ${MIN_ROWS} rows and ${MIN_COLUMNS} columns)`;
+const TOO_SMALL = `floorgap: enlarge the window (at least ${MIN_ROWS} rows and ${MIN_COLUMNS} columns)`;
 
 /** Props of {@link TooSmallScreen}. */
 export interface TooSmallScreenProps {

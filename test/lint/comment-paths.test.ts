@@ -1,0 +1,89 @@
+/**
+ * Comments in src/ that name a file of this repository name one that exists: after the layered
+ * re-layout several still pointed at io/, engine/ and util/ files that had moved. A name counts as a
+ * file of the repository when it ends in .ts, .tsx or .mjs, or is a path (with a folder) ending in .md,
+ * or in .js or .json under one of the repository's folders; a bare name (`load.ts`) is a file beside
+ * the comment's own, a path is taken from the repository root, from src/ or from the comment's folder.
+ * Names of files a user writes (`floorgap.json`, `report.md`, `F.manifest.json`) are not paths here.
+ */
+import { existsSync, readdirSync, readFileSync, statSync } from 'node:fs';
+import { dirname, join, relative } from 'node:path';
+import ts from 'typescript';
+import { describe, expect, it } from 'vitest';
+import { ROOT } from '../helpers/run-cli.js';
+
+const FOLDERS = ['src', 'test', 'bench', 'docs', 'scripts', 'data-samples'];
+
+function walk(dir: string): string[] {
+  return readdirSync(dir).flatMap((n) => {
+    const p = join(dir, n);
+    return statSync(p).isDirectory() ? walk(p) : /\.tsx?$/.test(n) ? [p] : [];
+  });
+}
+
+/** The text of every comment in a source file (parsed, so `//` inside a string is no comment). */
+function comments(file: string): string[] {
+  const text = readFileSync(file, 'utf8');
+  const sf = ts.createSourceFile(file, text, ts.ScriptTarget.Latest, true, file.endsWith('x') ? ts.ScriptKind.TSX : ts.ScriptKind.TS);
+  const seen = new Set<number>();
+  const out: string[] = [];
+  const add = (ranges: ts.CommentRange[] | undefined) => {
+    for (const r of ranges ?? []) {
+      if (seen.has(r.pos)) continue;
+      seen.add(r.pos);
+      out.push(text.slice(r.pos, r.end));
+    }
+  };
+  const visit = (n: ts.Node): void => {
+    add(ts.getLeadingCommentRanges(text, n.getFullStart()));
+    add(ts.getTrailingCommentRanges(text, n.getEnd()));
+    n.forEachChild(visit);
+  };
+  visit(sf);
+  return out;
+}
+
+/** Whether a name in a comment is meant as a file of this repository. */
+function isRepoPath(name: string): boolean {
+  if (/\.(tsx?|mjs)$/.test(name)) return true;
+  if (!name.includes('/')) return false;
+  if (name.endsWith('.md')) return true;
+  return FOLDERS.includes(name.split('/')[0]) || existsSync(join(ROOT, 'src', name.split('/')[0]));
+}
+
+function exists(file: string, name: string): boolean {
+  const bases = name.includes('/') ? [ROOT, join(ROOT, 'src'), dirname(file)] : [dirname(file)];
+  return bases.some((b) => {
+    const p = join(b, name);
+    return existsSync(p) || existsSync(p.replace(/\.js$/, '.ts')) || existsSync(p.replace(/\.js$/, '.tsx'));
+  });
+}
+
+/** `file: name` for every file named in a comment of src/ that does not exist. */
+function missingPaths(): string[] {
+  const out: string[] = [];
+  for (const file of walk(join(ROOT, 'src'))) {
+    for (const c of comments(file)) {
+      for (const m of c.matchAll(/(?<![\w/.:-])((?:[\w.-]+\/)*[\w-]+(?:\.[\w-]+)*\.(?:tsx?|m?js|md|json))\b/g)) {
+        if (isRepoPath(m[1]) && !exists(file, m[1])) out.push(`${relative(ROOT, file)}: ${m[1]}`);
+      }
+    }
+  }
+  return out;
+}
+
+describe('comments in src/', () => {
+  it('name only files that exist', () => {
+    expect(missingPaths()).toEqual([]);
+  });
+
+  it('the check sees a moved file, and leaves names of files a user writes alone', () => {
+    expect(isRepoPath('util/unsafe-chars.ts')).toBe(true);
+    expect(exists(join(ROOT, 'src/sql/dialect.ts'), 'util/unsafe-chars.ts')).toBe(false);
+    expect(exists(join(ROOT, 'src/sql/dialect.ts'), 'core/unsafe-chars.ts')).toBe(true);
+    expect(exists(join(ROOT, 'src/cells/load.ts'), 'profile.ts')).toBe(true);
+    expect(isRepoPath('floorgap.json')).toBe(false);
+    expect(isRepoPath('report.md')).toBe(false);
+    expect(isRepoPath('cwd/floorgap.json')).toBe(false);
+  });
+});
