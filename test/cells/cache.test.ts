@@ -12,7 +12,7 @@ import { openDuck } from '../../src/sql/duck.js';
 import { loadCells } from '../../src/cells/load.js';
 import { jsonDifferences } from '../helpers/report-compare.js';
 import { runMain } from '../helpers/run-main.js';
-import { makeTempDir, removeTempDir } from '../helpers/table-variants.js';
+import { csvToParquet, makeTempDir, removeTempDir } from '../helpers/table-variants.js';
 import { recordsOf } from '../helpers/cell-records.js';
 
 let dir: string;
@@ -217,6 +217,27 @@ describe('damaged entries are detected by their checksum and rebuilt', () => {
 });
 
 describe('entry encoding', () => {
+  it('keeps the column kinds of a Parquet source as a Map (JSON alone turned it into {})', async () => {
+    const csv = join(dir, 'kinds.csv');
+    table(csv, [2, 4]);
+    const parquet = join(dir, 'kinds.parquet');
+    const duck = await openDuck({ threads: 1 });
+    try {
+      await csvToParquet(duck, csv, parquet);
+      const loaded = await loadCells(duck, { source: { files: [parquet], perSplit: {} }, roles: {}, where: null, by: null, sliceCols: null, bins: 5, maxCells: 1000, floor: 0.02, floorTable: null });
+      const kinds = loaded.source.native?.kinds;
+      expect(kinds).toBeInstanceOf(Map);
+      const back = decodeEntry(encodeEntry('k', loaded), 'k')!;
+      expect(back.source.native?.kinds).toBeInstanceOf(Map);
+      // the table's columns as Parquet types them, text for the CSV's text (csvToParquet keeps VARCHAR)
+      expect([...back.source.native!.kinds.entries()]).toEqual([...kinds!.entries()]);
+      expect(back.source.native!.kinds.get('station')).toBe('text');
+    } finally {
+      duck.close();
+    }
+  });
+
+
   it('decodes to the same cells and metadata, and refuses another key', async () => {
     const file = join(dir, 'encode.csv');
     table(file, [1, 2, 3]);
