@@ -16,7 +16,8 @@ import { homedir } from 'node:os';
 import { isAbsolute, join, resolve } from 'node:path';
 import { fileURLToPath } from 'node:url';
 import { auditFieldCount, cellColumns, cellTable, SUM_COLUMNS, type AuditShape, type SumColumn } from './cell-table.js';
-import type { LoadOptions, Loaded } from './load.js';
+import type { Loaded } from './load.js';
+import type { LoadOptions } from './plan.js';
 import { releaseTemp, trackTemp } from '../output/temp-files.js';
 import { checkDestination, moveInto } from '../output/write-atomic.js';
 

@@ -9,7 +9,8 @@ import { ERROR_WORDS_EXPECTED, problemOfSplit, STATUS_SPLITS, WEIGHT_EXPECTED, W
 import type { CellPlan, Grouping } from './plan.js';
 import { unknownSplitError } from './scan.js';
 import type { Duck } from '../sql/duck.js';
-import { checkSplitWeights, type Loaded } from './load.js';
+import { type Loaded } from './load.js';
+import { checkSplitWeights } from './scan-checks.js';
 import { readCells } from './read-cells.js';
 import { hasAudit, runsOf, splitTotals, total, usedFloorEntries } from './cell-table.js';
 import { ident } from '../sql/quote.js';

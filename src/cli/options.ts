@@ -5,7 +5,7 @@ import { DEFAULTS } from '../core/defaults.js';
 import { error } from '../core/errors.js';
 import type { CliIO } from './io.js';
 import { scanProgress } from './progress.js';
-import type { LoadOptions } from '../cells/load.js';
+import type { LoadOptions } from '../cells/plan.js';
 import { BIN_METHODS, type BinMethod } from '../cells/profile.js';
 import type { RoleOptions } from '../read/roles.js';
 import { FORMATS } from '../render/index.js';

@@ -8,7 +8,8 @@ import { readFileSync, writeFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { openDuck, type Duck } from '../../src/sql/duck.js';
-import { loadCells, type LoadOptions, type Loaded } from '../../src/cells/load.js';
+import { loadCells, type Loaded } from '../../src/cells/load.js';
+import { type LoadOptions } from '../../src/cells/plan.js';
 import { rollupSlices, type SliceStats } from '../../src/slices/rollup.js';
 import type { CellRecord as Cell } from '../helpers/cell-records.js';
 import {
