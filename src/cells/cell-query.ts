@@ -17,6 +17,7 @@ import { binLabel } from './profile.js';
 import { ROWS_VIEW, type ColumnKind } from '../read/source.js';
 import type { SliceColumn } from '../core/cell.js';
 import type { FloorEntry } from '../read/keyed-table.js';
+import { auditParts, type AuditParts } from './audit-sql.js';
 
 /** How the query is written. */
 export interface CellQueryOptions {
@@ -79,25 +80,75 @@ function isBinned(c: SliceColumn): boolean {
   return c.kind === 'binned' && (c.edges?.length ?? 0) > 0;
 }
 
+/** What every phase of the query needs: the plan, the dialect and how a column is read. */
+interface QueryContext {
+  readonly plan: CellPlan;
+  readonly grouping: Grouping;
+  readonly d: Dialect;
+  readonly names: CellColumnNames;
+  readonly weighted: boolean;
+  readonly kindOf: (col: string) => ColumnKind;
+  /** a column's value as text */
+  readonly raw: (col: string) => string;
+  /** a column's value as a number (NULL when it is not one) */
+  readonly num: (col: string) => string;
+  readonly keyIndex: (col: string) => number;
+  readonly floorEntries: readonly FloorEntry[];
+  readonly costEntries: readonly FloorEntry[];
+}
+
+/** The per-row level: its SELECT list, the aliases the first GROUP BY groups by, and where entries are found. */
+interface RowLevel {
+  readonly row: readonly string[];
+  readonly groupKeys: readonly string[];
+  /** floor- (cost-) table entries found from the keys after the first GROUP BY rather than per row */
+  readonly floorLate: boolean;
+  readonly costLate: boolean;
+  readonly audit: AuditParts | null;
+}
+
 /**
  * Writes the cell query for a plan and a grouping.
  * @example
  * cellQuery(plan, { kind: 'cross' }, { dialect: dialect('trino'), table: 'lake.preds', textColumns: false, names: 'cells' });
  */
 export function cellQuery(plan: CellPlan, grouping: Grouping, options: CellQueryOptions = {}): string {
-  const d = options.dialect ?? dialectOf('duckdb');
-  const table = options.table ?? ROWS_VIEW;
-  const textColumns = options.textColumns ?? true;
-  const names = cellColumnNames(plan, options.names ?? 'local');
-  const T = d.types;
-  const id = d.ident;
-  const kindOf = (col: string): ColumnKind => options.columnTypes?.get(col) ?? (textColumns ? 'text' : 'other');
-  // a column's value as text, and as a number (NULL when it is not one)
-  const raw = (col: string) => (kindOf(col) === 'text' ? id(col) : `CAST(${id(col)} AS ${T.text})`);
-  const num = (col: string) => (kindOf(col) === 'number' ? `CAST(${id(col)} AS ${T.double})` : d.toNumber(raw(col)));
-  const { roles } = plan;
+  const ctx = queryContext(plan, grouping, options);
+  const level = rowLevel(ctx);
+  const ctes = [...firstLevelCtes(ctx, level, options.table ?? ROWS_VIEW), keyLevelCte(ctx, level)];
+  return `WITH
+${ctes.join(',\n')}
+${finalSelect(ctx, level)}`;
+}
 
-  // ---- level 1: per row ----
+function queryContext(plan: CellPlan, grouping: Grouping, options: CellQueryOptions): QueryContext {
+  const d = options.dialect ?? dialectOf('duckdb');
+  const textColumns = options.textColumns ?? true;
+  const kindOf = (col: string): ColumnKind => options.columnTypes?.get(col) ?? (textColumns ? 'text' : 'other');
+  const raw = (col: string) => (kindOf(col) === 'text' ? d.ident(col) : `CAST(${d.ident(col)} AS ${d.types.text})`);
+  const num = (col: string) => (kindOf(col) === 'number' ? `CAST(${d.ident(col)} AS ${d.types.double})` : d.toNumber(raw(col)));
+  return {
+    plan,
+    grouping,
+    d,
+    names: cellColumnNames(plan, options.names ?? 'local'),
+    weighted: plan.roles.weight !== null,
+    kindOf,
+    raw,
+    num,
+    keyIndex: (col) => plan.columns.findIndex((c) => c.name === col),
+    floorEntries: plan.floorEntries,
+    costEntries: plan.costEntries ?? [],
+  };
+}
+
+const list = (items: readonly string[]) => items.join(',\n    ');
+
+/** Level 1, per row: only what must be per row (status, error, weight, bins, entries that need raw values). */
+function rowLevel(ctx: QueryContext): RowLevel {
+  const { plan, grouping, d, raw, num, kindOf, keyIndex, weighted, floorEntries, costEntries } = ctx;
+  const { roles } = plan;
+  const id = d.ident;
   const row: string[] = [];
   const groupKeys: string[] = []; // aliases of level-1 values the first GROUP BY groups by
   row.push(`${id(plan.splitColumn)} AS fg_rs`);
@@ -116,7 +167,6 @@ export function cellQuery(plan: CellPlan, grouping: Grouping, options: CellQuery
     }
   });
   // the row's status (row-status.ts: the one definition of a usable row) and its error
-  const weighted = roles.weight !== null;
   if (weighted) row.push(`${num(roles.weight!)} AS fg_w`);
   const rule = errorRule(d, roles, raw);
   const status = statusSql({
@@ -131,11 +181,8 @@ export function cellQuery(plan: CellPlan, grouping: Grouping, options: CellQuery
 
   // floor- and cost-table entries: from the keys after the first GROUP BY when every key column is a
   // category column of a full cross; per row otherwise
-  const keyIndex = (col: string) => plan.columns.findIndex((c) => c.name === col);
   const entriesLate = (entries: readonly FloorEntry[]) =>
     grouping.kind === 'cross' && entries.every((e) => Object.keys(e.keys).every((k) => keyIndex(k) >= 0 && !isBinned(plan.columns[keyIndex(k)])));
-  const floorEntries = plan.floorEntries;
-  const costEntries = plan.costEntries ?? [];
   const floorLate = entriesLate(floorEntries);
   const costLate = entriesLate(costEntries);
   const rowValue = (col: string) => trimmedSql(raw(col));
@@ -151,11 +198,15 @@ export function cellQuery(plan: CellPlan, grouping: Grouping, options: CellQuery
 
   // annotator audit, per row (unweighted)
   const anns = plan.annotators ?? [];
-  const classes = plan.classes ?? [];
-  const audit = anns.length > 0 ? auditParts(d, anns, classes, trimmedSql(raw(roles.label!)), (c) => trimmedSql(raw(c))) : null;
+  const audit = anns.length > 0 ? auditParts(d, anns, plan.classes ?? [], trimmedSql(raw(roles.label!)), (c) => trimmedSql(raw(c))) : null;
   if (audit) row.push(...audit.level1);
+  return { row, groupKeys, floorLate, costLate, audit };
+}
 
-  // ---- level 1 → first GROUP BY ----
+/** The per-row CTE (and the audit's second per-row step), then the first GROUP BY over raw values. */
+function firstLevelCtes(ctx: QueryContext, level: RowLevel, table: string): string[] {
+  const { plan, grouping, weighted, keyIndex } = ctx;
+  const { groupKeys, audit } = level;
   const keyAliases = plan.columns.map((_, i) => `fg_r${i}`);
   const sums = ['COUNT(*) AS fg_n'];
   if (weighted) sums.push('SUM(fg_w) AS fg_sw', 'SUM(fg_w * fg_w) AS fg_sww', 'SUM(fg_w * fg_e) AS fg_swe');
@@ -178,13 +229,17 @@ export function cellQuery(plan: CellPlan, grouping: Grouping, options: CellQuery
     // which slice columns each first-level group leaves out (a raw NULL is a missing value, not "left out")
     plan.columns.forEach((_, i) => bits.push(`GROUPING(fg_r${i}) AS fg_g${i}`));
   }
-  const list = (items: readonly string[]) => items.join(',\n    ');
   const filter = plan.where ? `\n  WHERE (${plan.where})` : '';
-  const ctes = [`fg_row AS (\n  SELECT\n    ${list(row)}\n  FROM ${table}${filter}\n)`];
+  const ctes = [`fg_row AS (\n  SELECT\n    ${list(level.row)}\n  FROM ${table}${filter}\n)`];
   if (audit) ctes.push(`fg_row_audit AS (\n  SELECT\n    fg_row.*,\n    ${list(audit.level2)}\n  FROM fg_row\n)`);
   ctes.push(`fg_group AS (\n  SELECT\n    ${list([...groupKeys, ...keyAliases, ...bits, ...sums])}\n  FROM ${audit ? 'fg_row_audit' : 'fg_row'}\n  GROUP BY ${groupBy}\n)`);
+  return ctes;
+}
 
-  // ---- level 2: per first-level group ----
+/** Level 2, per first-level group (few): trimmed keys, `(missing)`, split spellings, late entries. */
+function keyLevelCte(ctx: QueryContext, level: RowLevel): string {
+  const { plan, grouping, d, kindOf, keyIndex, names, weighted, floorEntries, costEntries } = ctx;
+  const T = d.types;
   // the first level keeps each key in its column's type; text from here on
   const text2 = (alias: string, col: string) => (kindOf(col) === 'text' ? alias : `CAST(${alias} AS ${T.text})`);
   // the split by its canonical name; rows left out carry their status as a pseudo-split, and a value
@@ -205,22 +260,26 @@ export function cellQuery(plan: CellPlan, grouping: Grouping, options: CellQuery
   };
   plan.columns.forEach((_, i) => {
     const v = keyValue(i);
-    norm.push(`${grouping.kind === 'sets' ? `CASE WHEN fg_g${i} = 1 THEN NULL ELSE ${v} END` : v} AS ${id(names.keys[i])}`);
+    norm.push(`${grouping.kind === 'sets' ? `CASE WHEN fg_g${i} = 1 THEN NULL ELSE ${v} END` : v} AS ${d.ident(names.keys[i])}`);
   });
-  // entries from the trimmed keys: a missing value is `(missing)` there
+  // entries from the trimmed keys: a missing value is `(missing)` there, so an entry for it compares equal
   const lateValue = (col: string) => keyValue(keyIndex(col));
-  // a missing value is `(missing)` among the trimmed keys, so an entry for it compares equal
   const lateCase = (entries: readonly FloorEntry[]) => entrySql(d, entries, lateValue, (col) => `${lateValue(col)} = ${d.str(MISSING)}`);
-  norm.push(`${floorLate ? lateCase(floorEntries) : 'fg_fe'} AS fg_floor_entry`);
-  if (costEntries.length > 0) norm.push(`${costLate ? lateCase(costEntries) : 'fg_ce'} AS fg_cost_entry`);
+  norm.push(`${level.floorLate ? lateCase(floorEntries) : 'fg_fe'} AS fg_floor_entry`);
+  if (costEntries.length > 0) norm.push(`${level.costLate ? lateCase(costEntries) : 'fg_ce'} AS fg_cost_entry`);
   const w1 = weighted ? 'fg_sw' : `CAST(fg_n AS ${T.double})`;
   norm.push('fg_n', `${w1} AS fg_w1`);
   if (weighted) norm.push('fg_sww', 'fg_swe');
   else norm.push('fg_se');
-  if (audit) norm.push(...audit.sumNames);
-  ctes.push(`fg_key AS (\n  SELECT\n    ${list(norm)}\n  FROM fg_group\n)`);
+  if (level.audit) norm.push(...level.audit.sumNames);
+  return `fg_key AS (\n  SELECT\n    ${list(norm)}\n  FROM fg_group\n)`;
+}
 
-  // ---- final GROUP BY over the trimmed keys, with the floor and cost tables ----
+/** The final GROUP BY over the trimmed keys, joined with the floor and cost tables. */
+function finalSelect(ctx: QueryContext, level: RowLevel): string {
+  const { plan, d, names, weighted, floorEntries, costEntries } = ctx;
+  const T = d.types;
+  const id = d.ident;
   const floorRows = [['-1', d.num(plan.defaultFloor), 'NULL'], ...floorEntries.map((e, i) => [String(i), d.num(e.floor), e.n === null ? 'NULL' : d.num(e.n)])];
   const floorTable = d.values(
     'f',
@@ -258,66 +317,17 @@ export function cellQuery(plan: CellPlan, grouping: Grouping, options: CellQuery
     costTable ? 'COALESCE(SUM(c.fg_w1 * k.fg_cost), 0) AS fg_cost_sum' : `CAST(0 AS ${T.double}) AS fg_cost_sum`,
     costTable ? 'COALESCE(SUM(CASE WHEN k.fg_cost IS NULL THEN 0 ELSE c.fg_w1 END), 0) AS fg_cost_weight' : `CAST(0 AS ${T.double}) AS fg_cost_weight`,
   ];
-  if (audit) {
+  if (level.audit) {
+    const anns = plan.annotators ?? [];
     const outNames = [...AUDIT_COLUMNS, ...anns.flatMap((_, j) => [names.annRows[j], names.annErrors[j], ...names.classCounts[j]])];
-    audit.sumNames.forEach((s, k) => out.push(`CAST(SUM(c.${s}) AS ${T.double}) AS ${id(outNames[k])}`));
+    level.audit.sumNames.forEach((s, k) => out.push(`CAST(SUM(c.${s}) AS ${T.double}) AS ${id(outNames[k])}`));
   }
   const joins = [`LEFT JOIN ${floorTable} ON c.fg_floor_entry = f.fg_entry`];
   if (costTable) joins.push(`LEFT JOIN ${costTable} ON c.fg_cost_entry = k.fg_entry`);
-  return `WITH
-${ctes.join(',\n')}
-SELECT
+  return `SELECT
   ${out.join(',\n  ')}
 FROM fg_key AS c
 ${joins.join('\n')}
 GROUP BY ${[...outKeys, 'c.fg_floor_entry', 'f.fg_floor', 'f.fg_floor_n'].join(', ')}`;
 }
 
-/** Per-row SQL for the annotator audit: labels a_j, agreement counts c_j, the row's panel error and sums. */
-function auditParts(
-  d: Dialect,
-  anns: readonly string[],
-  classes: readonly string[],
-  label: string,
-  value: (col: string) => string,
-): { level1: string[]; level2: string[]; sums: string[]; sumNames: string[] } {
-  const a = anns.map((_, j) => `fg_a${j}`);
-  const dbl = d.types.double;
-  // a row without a true class (possible with an error column) cannot be scored: its labels are left out
-  const level1 = [...anns.map((col, j) => `CASE WHEN ${label} IS NULL THEN NULL ELSE ${value(col)} END AS fg_a${j}`), `${label} AS fg_lab`];
-  const level2 = [
-    ...a.map((aj, j) => `CASE WHEN ${aj} IS NULL THEN 0 ELSE ${a.map((ai) => `CASE WHEN ${ai} = ${aj} THEN 1 ELSE 0 END`).join(' + ')} END AS fg_c${j}`),
-    `${a.map((aj) => `CASE WHEN ${aj} IS NULL THEN 0 ELSE 1 END`).join(' + ')} AS fg_nlab`,
-  ];
-  const c = a.map((_, j) => `fg_c${j}`);
-  const m = d.greatest(c);
-  const top = (j: number) => `(${c[j]} = ${m} AND ${a[j]} IS NOT NULL)`;
-  const topWrong = a.map((aj, j) => `CASE WHEN ${top(j)} AND ${aj} <> fg_lab THEN 1 ELSE 0 END`).join(' + ');
-  const topAll = a.map((_, j) => `CASE WHEN ${top(j)} THEN 1 ELSE 0 END`).join(' + ');
-  const panel = 'fg_nlab >= 2';
-  const sums: string[] = [];
-  const sumNames: string[] = [];
-  const add = (expr: string, name: string) => {
-    sums.push(`${expr} AS ${name}`);
-    sumNames.push(name);
-  };
-  add(`SUM(CASE WHEN fg_nlab >= 1 THEN 1 ELSE 0 END)`, 'fg_x_audited');
-  add(`SUM(CASE WHEN ${panel} THEN 1 ELSE 0 END)`, 'fg_x_panel_rows');
-  // majority vote: among the k labels tied for most votes, the share that is wrong
-  add(`COALESCE(SUM(CASE WHEN ${panel} THEN CAST(${topWrong} AS ${dbl}) / (${topAll}) END), 0)`, 'fg_x_panel_errors');
-  // pairwise agreement of the row: Σ_j (c_j − 1) / (n (n − 1)) = Σ_c n_c (n_c − 1) / (n (n − 1))
-  add(
-    `COALESCE(SUM(CASE WHEN ${panel} THEN CAST(${a.map((aj, j) => `CASE WHEN ${aj} IS NULL THEN 0 ELSE ${c[j]} - 1 END`).join(' + ')} AS ${dbl}) / (fg_nlab * (fg_nlab - 1)) END), 0)`,
-    'fg_x_agree_sum',
-  );
-  a.forEach((aj, j) => {
-    add(`SUM(CASE WHEN ${aj} IS NULL THEN 0 ELSE 1 END)`, `fg_x_r${j}`);
-    add(`SUM(CASE WHEN ${aj} IS NOT NULL AND ${aj} IS DISTINCT FROM fg_lab THEN 1 ELSE 0 END)`, `fg_x_e${j}`);
-    classes.forEach((cls, k) => add(`SUM(CASE WHEN ${panel} AND ${aj} = ${d.str(cls)} THEN 1 ELSE 0 END)`, `fg_x_c${j}_${k}`));
-    add(
-      `SUM(CASE WHEN ${panel} AND ${aj} IS NOT NULL${classes.length ? ` AND ${aj} NOT IN (${classes.map(d.str).join(', ')})` : ''} THEN 1 ELSE 0 END)`,
-      `fg_x_c${j}_${classes.length}`,
-    );
-  });
-  return { level1, level2, sums, sumNames };
-}
