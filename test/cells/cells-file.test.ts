@@ -1,6 +1,6 @@
 /**
  * Ready-made cells as input: what a cells file must hold, and one-line errors naming the file, line
- * and column for what it must not. Expected messages: the wording of src/engine/cells-input.ts.
+ * and column for what it must not. Expected messages: the wording of src/cells/cells-file.ts.
  */
 import { writeFileSync } from 'node:fs';
 import { join } from 'node:path';
@@ -240,7 +240,7 @@ describe('impossible sums: exit 2, one line naming the file, line, column and ru
 
   it('consistent weighted cells pass every rule (weights 1, 1, 1.5 and 1, 1.5; a floor entry with n; a cost table)', async () => {
     // hand arithmetic: train Σw = 3.5, Σw² = 1 + 1 + 2.25 = 4.25, errors 1.5, floor 0.02 × 3.5 = 0.07, cost 2 × 3.5 = 7;
-    // dev Σw = 2.5, Σw² = 3.25. Cells from the cell query pass too: test/engine/cells-roundtrip.test.ts
+    // dev Σw = 2.5, Σw² = 3.25. Cells from the cell query pass too: test/cells/cells-roundtrip.test.ts
     const head = `${HEADER},fg_cost_sum,fg_cost_weight`;
     const path = file('weighted-ok.csv', [head, 'train,S1,0,0.02,400,3,3.5,4.25,1.5,0.07,7,3.5', 'dev,S1,0,0.02,400,2,2.5,3.25,2.5,0.05,0,0', ...ROWS.slice(2).map((r) => `${r},0,0`)]);
     const r = await report(['--cells', path, '--format', 'json']);

@@ -283,7 +283,7 @@ describe('a read that fails after loading (the file went away)', () => {
     await s.press('q');
     expect(await s.done).toBe(0);
     expect(s.stderr.text).toBe('');
-    // readError in src/io/read-errors.ts: the file, then what the engine said
+    // readError in src/read/read-errors.ts: the file, then what the engine said
     expect(s.screen.text).toMatch(new RegExp(`regroup failed: ${table.replace(/[.*+?^${}()|[\]\\/]/g, '\\$&')}: `));
     expectRestored(s);
   }, 30_000);

@@ -58,7 +58,7 @@ async function until(test: () => boolean, what: string, timeoutMs = 20_000): Pro
   }
 }
 
-/** Temporary files floorgap leaves beside an output or in the cache (src/io/write-atomic.ts names them). */
+/** Temporary files floorgap leaves beside an output or in the cache (src/output/write-atomic.ts names them). */
 function temporaries(folder: string): string[] {
   return readdirSync(folder, { recursive: true }).map(String).filter((n) => n.includes('.tmp-'));
 }

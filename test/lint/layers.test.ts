@@ -3,7 +3,7 @@
  * a cycle written into a real module is reported. The lint itself runs in `npm test` (pretest), over
  * every file of src/ and bench/.
  */
-import { readFileSync } from 'node:fs';
+import { readdirSync, readFileSync } from 'node:fs';
 import { ESLint } from 'eslint';
 import { describe, expect, it } from 'vitest';
 import { ROOT } from '../helpers/run-cli.js';
@@ -16,6 +16,13 @@ async function problems(file: string, text: string): Promise<string[]> {
 }
 
 describe('the layer rule and import cycles', () => {
+  it('every folder of src/ is a layer, and every layer a folder', async () => {
+    const config = '../../eslint.config.js'; // plain JavaScript, without types
+    const { LAYERS } = (await import(config)) as { LAYERS: string[] };
+    const folders = readdirSync(`${ROOT}/src`, { withFileTypes: true }).filter((e) => e.isDirectory()).map((e) => e.name);
+    expect([...folders].sort()).toEqual([...LAYERS].sort());
+  });
+
   it('src/ as it is passes', async () => {
     const file = 'src/read/source.ts';
     expect(await problems(file, readFileSync(`${ROOT}/${file}`, 'utf8'))).toEqual([]);

@@ -1,5 +1,5 @@
 /**
- * The one rule for output paths (src/io/write-atomic.ts): absent or a regular file (replaced only when
+ * The one rule for output paths (src/output/write-atomic.ts): absent or a regular file (replaced only when
  * overwriting is allowed, keeping its mode); a symbolic link, a named pipe, a device or a folder is
  * refused, whatever the overwrite permission, and left as it was. Pipes are real ones (mkfifo).
  */

@@ -329,7 +329,7 @@ async function fuzz(
 
 /**
  * A report names only columns the header has (trimmed), never one the engine renamed (`station_1`,
- * `column2`), and its overview has at most 32 slice columns (src/engine/profile.ts MAX_AUTO_COLUMNS).
+ * `column2`), and its overview has at most 32 slice columns (src/cells/profile.ts MAX_AUTO_COLUMNS).
  */
 const namesAsWritten: ReportCheck = (report, bytes) => {
   const first = bytes.toString('utf8').replace(/^\ufeff/, '').split('\n', 1)[0].replace(/\r$/, '');

@@ -160,7 +160,7 @@ describe('resolveRoles: split', () => {
 });
 
 describe('normalizeSplit', () => {
-  // expected: the accepted spellings in shared/GLOSSARY.md ("split")
+  // expected: the accepted spellings of "split" in the project glossary
   const cases: [string, string | null][] = [
     ['train', 'train'],
     [' Train ', 'train'],

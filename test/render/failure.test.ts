@@ -1,6 +1,6 @@
 /**
  * failureText: the one line every command (and the explorer) prints for a failure. Expected strings
- * follow the definition in src/render/failure.ts and the sanitiser's escapes (src/render/sanitize.ts:
+ * follow the definition in src/render/failure.ts and the sanitiser's escapes (src/terminal/sanitize.ts:
  * ESC → `\x1b`); messages are invented.
  */
 import { describe, expect, it } from 'vitest';

@@ -1,5 +1,5 @@
 /**
- * A locked engine (openDuck with access, as every command opens it through cli/analyze.ts openEngine)
+ * A locked engine (openDuck with access, as every command opens it through app/analysis.ts openEngine)
  * reads and writes only the files it was given and can no longer be reconfigured. The refusals are
  * DuckDB's own (@duckdb/node-api 1.5.6-r.1, messages as it printed them here).
  */

@@ -1,5 +1,5 @@
 /**
- * `--where` is accepted only as one checked expression (src/engine/where.ts). Expected canonical texts
+ * `--where` is accepted only as one checked expression (src/sql/where.ts). Expected canonical texts
  * are what DuckDB prints back from the checked tree: @duckdb/node-api 1.5.6-r.1,
  * `SELECT json_deserialize_sql(json_serialize_sql('SELECT (<where>)'))`, output pasted beside each.
  * The refused cases are the ones a tester reproduced (a second statement that wrote a file, a subquery

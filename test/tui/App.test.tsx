@@ -104,7 +104,7 @@ describe('loading', () => {
     const x = renderExplorer({ load: () => Promise.reject(error) });
     open.push(x);
     await settle();
-    // message as thrown, sanitised (definition of sanitize in src/render/sanitize.ts)
+    // message as thrown, sanitised (definition of sanitize in src/terminal/sanitize.ts)
     expect(screen(x).slice(0, 3)).toEqual(['floorgap', '', 'floorgap: cannot read runs/bad\\x1b[2J.csv: no such file']);
     expect(x.exits).toEqual([]);
     await new Promise((r) => setTimeout(r, 1300)); // the App waits 1,200 ms (src/tui/hooks/use-explorer-data.ts)
@@ -354,7 +354,7 @@ describe('short terminals: never more than rows − 1 lines', () => {
       const x = await explorer({ data: fakeExplorerData().data, rows });
       expect(frameLines(x)).toEqual([NOTE]);
     }
-    // and at fewer than 20 columns, cut to the width (truncate in src/render/sanitize.ts: 9 characters and …)
+    // and at fewer than 20 columns, cut to the width (truncate in src/terminal/sanitize.ts: 9 characters and …)
     const narrow = await explorer({ data: fakeExplorerData().data, columns: 10, rows: 24 });
     expect(frameLines(narrow)).toEqual(['floorgap:…']);
   });
@@ -588,7 +588,7 @@ describe('errors after loading', () => {
     const y = await explorer({ data: failing({ regroup: () => Promise.reject(new FloorgapError('preds.csv: cannot read the table (no such file)')) }) });
     await y.press('g', ' ', KEY.enter);
     expect(y.exits).toEqual([]);
-    // the status line, cut to 80 columns (truncate in src/render/sanitize.ts)
+    // the status line, cut to 80 columns (truncate in src/terminal/sanitize.ts)
     expect(screen(y)[21]).toBe('sort report order ↓ · 7 slices · 0 marked · 1/7  regroup failed: preds.csv: can…');
   });
 
@@ -664,7 +664,7 @@ describe('terminal escapes in the data', () => {
     const { sgr, other } = escapesIn(x.frames);
     expect(other).toEqual([]);
     expect([...sgr].sort()).toEqual(['1', '22', '27', '7']); // no colour smuggled in (\x1b[31m, \x1b[5m)
-    // escaped by sanitize (src/render/sanitize.ts) instead
+    // escaped by sanitize (src/terminal/sanitize.ts) instead
     expect(detail).toContain('S5\\x1b[2J  focus bias'); // withLabel replaces the whole label
     expect(detail).toContain('note: noisy labels\\x1b[5m here');
     expect(detail).toContain('d\\x1b[2Jay');

@@ -371,7 +371,7 @@ describe('cell texts, labels and words', () => {
     expect(displayLabel(s5, true)).toBe('S5 · dome');
     expect(displayLabel(s5, false)).toBe('station=S5 · lighting=dome');
     const bad = sliceOfRank(withLabel(report, 1, 'S5\u001b[2J\u202e'), 1);
-    // sanitize's escapes (definition in src/render/sanitize.ts)
+    // sanitize's escapes (definition in src/terminal/sanitize.ts)
     expect(displayLabel(bad, true)).toBe('S5\\x1b[2J\\u202e');
     expect(displayLabel(bad, false)).toBe('S5\\x1b[2J\\u202e');
   });
