@@ -10,6 +10,8 @@ export { normalQuantile, normalCdf, zForConfidence } from './normal.js';
 export { kishEffectiveN } from './kish-effective-n.js';
 export type { Interval } from './interval.js';
 export { wilsonInterval } from './wilson-interval.js';
+export type { LimitedEstimate, ProportionTerm } from './mover-interval.js';
+export { moverInterval, moverLimits, moverPValue } from './mover-interval.js';
 export { newcombeInterval } from './newcombe-interval.js';
 export { binomialTestTwoSided } from './binomial-test.js';
 export { proportionTest } from './proportion-test.js';

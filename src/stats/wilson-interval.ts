@@ -33,15 +33,29 @@ export function wilsonInterval(x: number, n: number, confidence = 0.95): Interva
   assertFinite('wilsonInterval', 'x', x);
   const z = zForConfidence(confidence);
   if (n <= 0) return null;
-  const xc = checkCount('wilsonInterval', 'x', x, n);
-  const p = xc / n;
+  return wilsonLimits(checkCount('wilsonInterval', 'x', x, n), n, z);
+}
+
+/**
+ * The Wilson limits for a critical value z instead of a confidence level (the formula of
+ * {@link wilsonInterval}, which calls it): for inverting an interval into a p-value, where z varies.
+ * Inputs are not checked: 0 ≤ x ≤ n, n > 0, z ≥ 0.
+ * @param x successes (may be non-integer)
+ * @param n trials, n > 0
+ * @param z the critical value (1.959963984540054 for 95 %)
+ * @returns the interval
+ * @example
+ * wilsonLimits(81, 263, 1.959963984540054); // => { lo: 0.2553, hi: 0.3662 } (to 1e-4)
+ */
+export function wilsonLimits(x: number, n: number, z: number): Interval {
+  const p = x / n;
   const z2 = z * z;
   const denom = 1 + z2 / n;
   const centre = (p + z2 / (2 * n)) / denom;
   const half = (z * Math.sqrt((p * (1 - p)) / n + z2 / (4 * n * n))) / denom;
-  const hi = xc === n ? 1 : Math.min(1, Math.max(p, centre + half));
+  const hi = x === n ? 1 : Math.min(1, Math.max(p, centre + half));
   // lo · hi = p̂² / (1 + z²/n) exactly; dividing avoids centre − half, which loses every digit when p̂
   // is far below z²/n (a weighted error of 1e-18)
-  const lo = xc === 0 ? 0 : Math.max(0, Math.min(p, (p * p) / (denom * hi)));
+  const lo = x === 0 ? 0 : Math.max(0, Math.min(p, (p * p) / (denom * hi)));
   return { lo, hi };
 }
