@@ -1,3 +1,6 @@
+// The bench runs under tsx, which compiled this file's JSX for the classic runtime ("React is not
+// defined") without the pragma that follows; src/ is compiled by tsc.
+/** @jsxRuntime automatic @jsxImportSource react */
 /**
  * One explorer frame without a terminal, for the benchmark: the cost of a keypress (the reducer's
  * step) and of drawing the table view that follows it, at a given size.

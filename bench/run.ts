@@ -3,6 +3,9 @@
  * CSV and Parquet, side by side with the reference engine's floor — DuckDB alone running the bare
  * GROUP BY that computes the same cells over the same file — and with the I/O floor, a plain read of
  * the file. Every measurement runs `--reps` times (default 3), interleaved, and reports the median.
+ * The cells → slices roll-up (arquero, src/slices/rollup.ts) is measured against the previous loop
+ * over integer keys (bench/loop-rollup.ts) on the bench tables' cells and on synthetic cells, with the
+ * regroup (roll-up + triage) beside its targets.
  *
  *   npm run bench                                  # 1M and 10M rows, CSV and Parquet
  *   npm run bench -- --rows 1000000 --reps 5       # other sizes and repetitions
@@ -14,19 +17,20 @@ import { spawnSync } from 'node:child_process';
 import { createReadStream, existsSync, mkdirSync, mkdtempSync, rmSync, writeFileSync } from 'node:fs';
 import { cpus, loadavg, tmpdir, totalmem } from 'node:os';
 import { join } from 'node:path';
-import { op, table as aqTable } from 'arquero';
 import { median } from 'simple-statistics';
 import { writeBenchTable } from './bench-table.js';
-import { cellColumns, cellTable, SUM_COLUMNS, type CellTable, type SumColumn } from '../src/cells/cell-table.js';
+import { loopRollupByRun, loopRollupSlices, sliceDifferences } from './loop-rollup.js';
+import { SHAPE_LEGEND, SHAPE_NAMES, SYNTHETIC_COLUMNS, syntheticCells, type Shape } from './synthetic-cells.js';
+import { cellColumns, runsOf, type CellTable } from '../src/cells/cell-table.js';
 import { openDuck, type Duck } from '../src/sql/duck.js';
 import { loadCells, type Loaded } from '../src/cells/load.js';
 import { type LoadOptions } from '../src/cells/plan.js';
 import { cacheKey, readCache } from '../src/cells/cache.js';
-import { rollupSlices } from '../src/slices/rollup.js';
+import { rollupByRun, rollupSlices, type SliceStats } from '../src/slices/rollup.js';
 import { literal } from '../src/sql/quote.js';
-import { SPLITS, type Split } from '../src/core/split.js';
+import { SPLITS } from '../src/core/split.js';
 import { renderJson } from '../src/render/json.js';
-import { buildReport, type ReportContext } from '../src/triage/report.js';
+import { buildReport, chooseRun, type ReportContext } from '../src/triage/report.js';
 import { DEFAULT_TRIAGE_OPTIONS, type Report } from '../src/triage/types.js';
 import { sortSlices } from '../src/tui/model.js';
 
@@ -46,6 +50,14 @@ const now = () => performance.now();
 const log = (s: string) => process.stderr.write(s + '\n');
 
 const CONTEXT: ReportContext = { inputs: [], roles: {}, where: null, version: 'bench', warnings: [] };
+
+/** The 2-column grouping of the regroup (the bench table's board × operator: 960 slices). */
+const BENCH_BY = ['board', 'operator'];
+/** Targets of the regroup (roll-up + triage): on the 10M-row bench table, and at 200,000 synthetic cells of the audit shape. */
+const REGROUP_TARGET_10M = 100;
+const REGROUP_TARGET_AUDIT = 300;
+/** Sizes of the synthetic cell tables. */
+const SYNTHETIC_CELLS = [50_000, 200_000];
 
 // ---- measurements ----
 
@@ -208,71 +220,105 @@ function checkCells(loaded: Loaded, bareRows: readonly Record<string, unknown>[]
   return { cells: size, bare: bareRows.length, equal: problems.length === 0 && size === bareRows.length, problems };
 }
 
-/** A synthetic cell table of `n` cells over 7 columns, for the rollup micro-benchmark. */
-function syntheticCells(n: number): { table: CellTable; cols: Record<string, unknown[] | Int32Array | Float64Array> } {
-  const sizes = [6, 6, 48, 6, 5, 20, 5];
-  const names = sizes.map((_, i) => `c${i}`);
-  let seed = 12345;
-  const rnd = () => ((seed = (seed * 1103515245 + 12345) >>> 0) / 2 ** 32);
-  const cols: Record<string, Int32Array | Float64Array> = {};
-  names.forEach((nm) => (cols[nm] = new Int32Array(n)));
-  cols.split = new Int32Array(n);
-  cols.rows = new Float64Array(n);
-  cols.errors = new Float64Array(n);
-  for (let i = 0; i < n; i++) {
-    const key = sizes.map((s, c) => {
-      const k = Math.floor(rnd() * s);
-      (cols[names[c]] as Int32Array)[i] = k;
-      return `v${k}`;
-    });
-    const split = SPLITS[Math.floor(rnd() * 4)] as Split;
-    (cols.split as Int32Array)[i] = SPLITS.indexOf(split);
-    const rows = 1 + Math.floor(rnd() * 40);
-    (cols.rows as Float64Array)[i] = rows;
-    (cols.errors as Float64Array)[i] = Math.floor(rows * rnd() * 0.2);
-    void key;
-  }
-  const rows = cols.rows as Float64Array;
-  const sums = Object.fromEntries(SUM_COLUMNS.map((s) => [s, s === 'errors' ? cols.errors : s === 'floorSum' ? rows.map((r) => r * 0.05) : s.startsWith('cost') ? new Float64Array(n) : rows])) as Record<SumColumn, Float64Array>;
-  const table = cellTable({
-    columns: names,
-    dicts: sizes.map((s) => Array.from({ length: s }, (_, k) => `v${k}`)),
-    codes: names.map((nm) => cols[nm] as Int32Array),
-    split: cols.split as Int32Array,
-    runs: [],
-    run: new Int32Array(n).fill(-1),
-    sums,
-    floorEntry: new Int32Array(n).fill(-1),
-    floorN: new Float64Array(n),
-    audit: null,
-  });
-  return { table, cols };
-}
-
 function timeMs(fn: () => unknown): number {
   const t0 = now();
   fn();
   return now() - t0;
 }
 
-/** Rollup of encoded cells to a 2-column grouping: floorgap's typed-array loop against arquero's groupby/rollup. */
-function rollupMicro(n: number): { cells: number; typedMs: number; arqueroMs: number } {
-  const { table, cols } = syntheticCells(n);
-  const typed: number[] = [];
+// ---- the arquero roll-up against the previous loop (bench/loop-rollup.ts) ----
+
+/** A roll-up engine: the slices of one grouping (of one run), and the same slices per run. */
+interface Engine {
+  slices(cells: CellTable, by: readonly string[], run?: string | null): SliceStats[];
+  byRun(cells: CellTable, by: readonly string[]): Map<string, SliceStats[]>;
+}
+const ARQUERO: Engine = { slices: rollupSlices, byRun: rollupByRun };
+const LOOP: Engine = { slices: loopRollupSlices, byRun: loopRollupByRun };
+
+/**
+ * Every roll-up `buildReport` makes for `by` (null: the overview, one grouping per column of
+ * `overview`): each grouping's slices and the overall slice, of the reported run; with several runs,
+ * the same per run. Each result is named by its grouping (and run).
+ */
+function rollupsFor(engine: Engine, cells: CellTable, by: readonly string[] | null, overview: readonly string[], run: string | null, runs: number): { what: string; slices: SliceStats[] }[] {
+  const groupings = by && by.length > 0 ? [by] : overview.map((c) => [c]);
+  const out = [...groupings, []].map((g) => ({ what: `[${g.join(', ')}]`, slices: engine.slices(cells, g, run) }));
+  if (runs > 1) for (const g of [[], ...groupings]) for (const [r, slices] of engine.byRun(cells, g)) out.push({ what: `[${g.join(', ')}] run ${r}`, slices });
+  return out;
+}
+
+interface EngineRow {
+  /** where the cells come from: a bench table ("10,000,000 rows, csv") or "synthetic" */
+  source: string;
+  shape: string;
+  cells: number;
+  by: string;
+  slices: number;
+  arquero_rollup_ms: number;
+  loop_rollup_ms: number;
+  arquero_over_loop: number;
+  /** buildReport with the arquero roll-up: roll-up + triage */
+  regroup_ms: number;
+  /** regroup − arquero roll-up (medians): runsOf, chooseRun, priors, curves, triage */
+  triage_ms: number;
+  target_regroup_ms: number | null;
+  target_met: boolean | null;
+  same_sums: boolean;
+  problems: string[];
+}
+
+/**
+ * The arquero roll-up and the loop on the same cells, interleaved (who goes first alternates), and the
+ * regroup (`buildReport`, roll-up + triage); medians of `reps` runs after one untimed warm-up run of
+ * each. Checks that both engines give the same slices and sums (to 1e-9 relative).
+ */
+function compareEngines(source: string, shape: string, cells: CellTable, by: readonly string[] | null, overview: readonly string[], target: number | null): EngineRow {
+  const runs = runsOf(cells).length;
+  const run = chooseRun(cells, null);
+  const report = () => buildReport(cells, by, by ? [] : overview, CONTEXT, DEFAULT_TRIAGE_OPTIONS);
+  // the warm-up run, and the check
+  const a = rollupsFor(ARQUERO, cells, by, overview, run, runs);
+  const l = rollupsFor(LOOP, cells, by, overview, run, runs);
+  const problems: string[] = [];
+  if (a.map((x) => x.what).join('|') !== l.map((x) => x.what).join('|')) problems.push(`roll-ups differ: ${a.map((x) => x.what).join(' ')} against ${l.map((x) => x.what).join(' ')}`);
+  else a.forEach((x, i) => problems.push(...sliceDifferences(x.slices, l[i].slices).map((p) => `${x.what}: ${p}`)));
+  const slices = report().slices.length;
   const aq: number[] = [];
-  const dt = aqTable(cols as Record<string, ArrayLike<unknown>>);
+  const lp: number[] = [];
+  const regroup: number[] = [];
   for (let r = 0; r < reps; r++) {
-    typed.push(timeMs(() => rollupSlices(table, ['c2', 'c5'])));
-    aq.push(
-      timeMs(() =>
-        dt
-          .groupby('c2', 'c5', 'split')
-          .rollup({ rows: op.sum('rows'), errors: op.sum('errors') })
-          .numRows(),
-      ),
-    );
+    const arq = () => aq.push(timeMs(() => rollupsFor(ARQUERO, cells, by, overview, run, runs)));
+    const loop = () => lp.push(timeMs(() => rollupsFor(LOOP, cells, by, overview, run, runs)));
+    if (r % 2 === 0) {
+      arq();
+      loop();
+    } else {
+      loop();
+      arq();
+    }
+    regroup.push(timeMs(report));
   }
-  return { cells: n, typedMs: median(typed), arqueroMs: median(aq) };
+  const byName = by && by.length > 0 ? by.join(' × ') : `overview (${overview.length} columns)`;
+  if (problems.length > 0) log(`  ${source}, ${shape}, ${byName}: the arquero roll-up and the loop DIFFER: ${problems.slice(0, 3).join('; ')}`);
+  const row: EngineRow = {
+    source,
+    shape,
+    cells: cells.size,
+    by: byName,
+    slices,
+    arquero_rollup_ms: median(aq),
+    loop_rollup_ms: median(lp),
+    arquero_over_loop: median(aq) / median(lp),
+    regroup_ms: median(regroup),
+    triage_ms: Math.max(0, median(regroup) - median(aq)),
+    target_regroup_ms: target,
+    target_met: target === null ? null : median(regroup) <= target,
+    same_sums: problems.length === 0,
+    problems: problems.slice(0, 5),
+  };
+  log(`  ${source}, ${shape}, ${byName}: arquero ${row.arquero_rollup_ms.toFixed(0)} ms · loop ${row.loop_rollup_ms.toFixed(0)} ms · regroup ${row.regroup_ms.toFixed(0)} ms`);
+  return row;
 }
 
 // ---- the run ----
@@ -303,6 +349,7 @@ for (let r = 0; r < reps; r++) {
 type Row = Record<string, unknown>;
 const results: Row[] = [];
 const interactive: Row[] = [];
+const engines: EngineRow[] = [];
 let frameNote: string | null = null;
 /** The explorer's frame hook: applies a key and renders the table view at a size (bench/frame.tsx). */
 type FrameFn = (report: Report, width: number, height: number, key?: string, from?: unknown) => { frame: string; state: unknown };
@@ -384,16 +431,16 @@ for (const rows of sizes) {
       results.push(row);
 
       if (format === formats[0]) {
+        // the arquero roll-up against the loop, and the regroup, on this table's cells
+        const target = rows === 10_000_000 ? REGROUP_TARGET_10M : null;
+        for (const by of [BENCH_BY, null]) engines.push(compareEngines(`${rows.toLocaleString('en')} rows, ${format}`, 'bench table', loaded!.table, by, loaded!.overviewColumns, target));
         // interactive costs on this table's cells
-        const regroup: number[] = [];
         const resort: number[] = [];
         const frames: number[] = [];
-        const by = ['board', 'operator'];
         const big = buildReport(loaded!.table, ['board', 'operator', 'sharpness'], [], CONTEXT, DEFAULT_TRIAGE_OPTIONS);
         const report2000: Report = { ...big, slices: big.slices.slice(0, 2000) };
         let state: unknown;
         for (let r = 0; r < reps; r++) {
-          regroup.push(timeMs(() => buildReport(loaded!.table, by, [], CONTEXT, DEFAULT_TRIAGE_OPTIONS)));
           resort.push(timeMs(() => sortSlices(report2000.slices, r % 2 ? 'headroom' : 'dev', true)));
           if (renderFrame) {
             const keys = ['s', 'j', 'h', 'j', 's'];
@@ -446,8 +493,6 @@ for (const rows of sizes) {
           rows,
           format,
           cells: loaded!.table.size,
-          regroup_ms: median(regroup),
-          regroup_slices: buildReport(loaded!.table, by, [], CONTEXT, DEFAULT_TRIAGE_OPTIONS).slices.length,
           resort_2000_ms: median(resort),
           frame_2000_ms: frames.length ? median(frames) : null,
           frame_2000_max_ms: frames.length ? Math.max(...frames) : null,
@@ -461,7 +506,17 @@ for (const rows of sizes) {
   }
 }
 
-const micro = [rollupMicro(200_000), rollupMicro(1_000_000)];
+// synthetic cells: the arquero roll-up against the loop, and the regroup
+for (const n of SYNTHETIC_CELLS) {
+  for (const shape of ['cross', 'audit', 'sets'] as const) {
+    log(`synthetic cells: ${n.toLocaleString('en')}, ${SHAPE_LEGEND[shape]}`);
+    const cells = syntheticCells(n, shape);
+    const target = shape === 'audit' && n === 200_000 ? REGROUP_TARGET_AUDIT : null;
+    // grouping sets hold no 3-column set: such a `by` takes another scan, not a roll-up
+    const bys = shape === 'sets' ? [BENCH_BY, null] : [BENCH_BY, [...BENCH_BY, 'station'], null];
+    for (const by of bys) engines.push(compareEngines('synthetic', SHAPE_NAMES[shape], cells, by, SYNTHETIC_COLUMNS, target));
+  }
+}
 const result = {
   when: new Date().toISOString(),
   machine: { ...machine, loadAfter: Number(loadavg()[0].toFixed(2)) },
@@ -470,8 +525,9 @@ const result = {
   startup_without_explorer_ms: median(startupWithoutExplorer),
   scans: results,
   interactive,
-  rollup: micro,
-  notes: frameNote ? [frameNote] : [],
+  /** the arquero roll-up against the previous loop (bench/loop-rollup.ts), and the regroup, with its targets */
+  rollup_engines: engines,
+  notes: [...(frameNote ? [frameNote] : []), ...engines.filter((e) => !e.same_sums).map((e) => `the arquero roll-up and the loop DIFFER on ${e.source}, ${e.shape}, ${e.by}: ${e.problems[0]}`)],
 };
 mkdirSync('bench/results', { recursive: true });
 writeFileSync('bench/results/latest.json', JSON.stringify(result, null, 2) + '\n');
@@ -489,20 +545,28 @@ for (const r of results) {
   );
 }
 out.push('', 'Times in ms.', '');
-out.push('| rows | cells | regroup to board × operator (cell table) | same from Cell objects | re-sort 2,000 slices | ink frame, 2,000 slices (median / max) | reopen (cached cells), whole process | reopen in-process (stamps, cache, report) |');
-out.push('|---:|---:|---:|---:|---:|---:|---:|---:|');
+out.push('| rows | cells | re-sort 2,000 slices | ink frame, 2,000 slices (median / max) | reopen (cached cells), whole process | reopen in-process (stamps, cache, report) |');
+out.push('|---:|---:|---:|---:|---:|---:|');
 for (const r of interactive) {
   out.push(
-    `| ${Number(r.rows).toLocaleString('en')} | ${Number(r.cells).toLocaleString('en')} | ${f0(r.regroup_ms)} | ${f0(r.regroup_objects_ms)} | ${f2(r.resort_2000_ms)} | ${r.frame_2000_ms === null ? 'n/a' : `${f0(r.frame_2000_ms)} / ${f0(r.frame_2000_max_ms)}`} | ${f0(r.reopen_ms)} | ${f0(r.reopen_in_process_ms)} |`,
+    `| ${Number(r.rows).toLocaleString('en')} | ${Number(r.cells).toLocaleString('en')} | ${f2(r.resort_2000_ms)} | ${r.frame_2000_ms === null ? 'n/a' : `${f0(r.frame_2000_ms)} / ${f0(r.frame_2000_max_ms)}`} | ${f0(r.reopen_ms)} | ${f0(r.reopen_in_process_ms)} |`,
   );
 }
+out.push('', 'The arquero roll-up against the previous loop (bench/loop-rollup.ts), and the regroup (`buildReport`: roll-up + triage), ms:', '');
+out.push('| cells from | shape | cells | by | slices | arquero roll-up | loop roll-up | arquero ÷ loop | regroup (arquero) | of which triage | target | same sums |');
+out.push('|---|---|---:|---|---:|---:|---:|---:|---:|---:|---|---|');
+for (const e of engines) {
+  const target = e.target_regroup_ms === null ? '' : `≤ ${e.target_regroup_ms}: ${e.target_met ? 'met' : `missed by ${f0(e.regroup_ms - e.target_regroup_ms)}`}`;
+  out.push(
+    `| ${e.source} | ${e.shape} | ${e.cells.toLocaleString('en')} | ${e.by} | ${e.slices.toLocaleString('en')} | ${f0(e.arquero_rollup_ms)} | ${f0(e.loop_rollup_ms)} | ${f2(e.arquero_over_loop)} | ${f0(e.regroup_ms)} | ${f0(e.triage_ms)} | ${target} | ${e.same_sums ? 'yes' : 'NO'} |`,
+  );
+}
+out.push('', `Synthetic cells (no files; 7 columns of 6, 6, 48, 6, 5, 20 and 5 values): ${(Object.keys(SHAPE_NAMES) as Shape[]).map((k) => `${SHAPE_NAMES[k]}: ${SHAPE_LEGEND[k]}`).join('; ')}. "Roll-up": every roll-up \`buildReport\` makes for that \`by\` (each grouping, the overall slice and, with runs, both per run); "of which triage": regroup − arquero roll-up.`);
 out.push('', 'Where `scan → cells` goes (ms, one instrumented run):', '');
 for (const r of results) {
   const b = r.scan_breakdown_ms as Record<string, number>;
   out.push(`- ${Number(r.rows).toLocaleString('en')} ${r.format}: ${Object.entries(b).map(([k, v]) => `${k} ${v}`).join(' · ')}`);
 }
 out.push('', `Process start-up (\`floorgap --version\`): ${f0(result.startup_ms)} ms; the same modules without the explorer's (ink, react): ${f0(result.startup_without_explorer_ms)} ms.`, '');
-out.push('| synthetic cells | typed-array rollup (floorgap) | arquero groupby/rollup |', '|---:|---:|---:|');
-for (const r of micro) out.push(`| ${r.cells.toLocaleString('en')} | ${f0(r.typedMs)} | ${f0(r.arqueroMs)} |`);
 for (const n of result.notes) out.push('', `Note: ${n}`);
 console.log(out.join('\n'));
