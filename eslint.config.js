@@ -18,6 +18,7 @@ export const LAYERS = [
   'cells', // rows → cells: row status, profile, plan, the cell query, cells files, warehouse, cache, load
   'slices', // cells → slices: the arquero roll-up
   'triage', // slices + floors + costs → the report; pure
+  'discover', // the search over conjunctions of conditions for discovered slices; pure
   'rows', // SQL over rows behind slices: export, examples, paired rows
   'render', // text, markdown, csv, json, junit
   'tui', // the explorer's screens, components, hooks and state

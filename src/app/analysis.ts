@@ -56,8 +56,22 @@ function loadHooks(request: AnalysisRequest, hooks: AnalysisHooks): LoadHooks {
   return { cache: request.cache ? { ...request.cache, version: VERSION } : null, onScan: hooks.onScan };
 }
 
+/** Loaded cells with what a report or a search needs besides them. */
+export interface Prepared {
+  readonly loaded: Loaded;
+  readonly context: ReportContext;
+  readonly options: TriageOptions;
+}
+
 /** cells → slices → triage: the report of loaded cells. */
 function reportOf(loaded: Loaded, triageOptions: TriageOptions, where: string | null): Analysis {
+  const p = prepare(loaded, triageOptions, where);
+  const report = buildReport(loaded.table, loaded.by, loaded.overviewColumns, p.context, triageOptions);
+  return { ...p, report };
+}
+
+/** The context of loaded cells (inputs, roles, warnings), after checking that a named run exists. */
+function prepare(loaded: Loaded, triageOptions: TriageOptions, where: string | null): Prepared {
   const roles: Record<string, string | null> = {
     label: loaded.roles.label,
     pred: loaded.roles.pred,
@@ -83,8 +97,7 @@ function reportOf(loaded: Loaded, triageOptions: TriageOptions, where: string | 
     version: VERSION,
     warnings: loaded.warnings,
   };
-  const report = buildReport(loaded.table, loaded.by, loaded.overviewColumns, context, triageOptions);
-  return { report, loaded, context, options: triageOptions };
+  return { loaded, context, options: triageOptions };
 }
 
 /**
@@ -160,12 +173,24 @@ export async function withDuck<T>(engine: EngineSettings, access: FileAccess, wo
  * earlier run on the same unchanged files are used without starting the engine.
  */
 export async function analyze(request: AnalysisRequest, hooks: AnalysisHooks = {}): Promise<Analysis> {
+  const p = await loadPrepared(request, hooks);
+  return { ...p, report: buildReport(p.loaded.table, p.loaded.by, p.loaded.overviewColumns, p.context, p.options) };
+}
+
+/**
+ * read → cells, with the context a report or a search needs (no report is built): cached cells of
+ * the same unchanged files are used without starting the engine.
+ */
+export async function loadPrepared(request: AnalysisRequest, hooks: AnalysisHooks = {}): Promise<Prepared> {
   const { input } = request;
   if (input.kind === 'rows') {
     const cache = loadHooks(request, hooks).cache;
     const key = cache ? await cacheKey(input.load, cache.version, cache.cwd) : null;
     const hit = cache && key ? await readCache(cache.dir, key) : null;
-    if (hit) return reportOf(hit, request.triage, input.load.where);
+    if (hit) return prepare(hit, request.triage, input.load.where);
   }
-  return withDuck(request.engine, { read: analysisReads(request), write: [] }, (duck) => analyzeWith(duck, request, hooks));
+  return withDuck(request.engine, { read: analysisReads(request), write: [] }, async (duck) => {
+    if (input.kind === 'cells') return prepare(await loadCellFiles(duck, input.paths, input.by, cellLimit(input.maxCells)), request.triage, null);
+    return prepare(await loadCells(duck, input.load, loadHooks(request, hooks)), request.triage, input.load.where);
+  });
 }

@@ -45,6 +45,8 @@ export const NUMBER_BOUNDS: Readonly<Record<string, NumberBound>> = {
   'max-slices': whole(1, MAX_MAX_SLICES),
   'min-rows': whole(1, 1e12),
   top: whole(1, 1_000_000),
+  depth: whole(1, 3, 'conditions per discovered slice'),
+  'min-lift': fraction(false),
   'limit-per-slice': whole(1, 1e12),
   floor: fraction(false),
   confidence: fraction(true),

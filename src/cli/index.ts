@@ -5,6 +5,7 @@ import { checkBounds, type ShowOption } from './bounds.js';
 import { VERSION } from '../core/version.js';
 import { runCheck, type CheckArgs } from './commands/check.js';
 import { runDemo, type DemoArgs } from './commands/demo.js';
+import { runDiscover, type DiscoverArgs } from './commands/discover.js';
 import { runExport, type ExportArgs } from './commands/export.js';
 import { runExplore, type ExploreArgs } from './commands/explore.js';
 import { runReport, type ReportArgs } from './commands/report.js';
@@ -90,6 +91,14 @@ export async function main(argv: readonly string[], io: CliIO): Promise<number> 
         (y) => projectDefaults(commandOptions(y, 'report'), config),
         async (args) => {
           code = await runReport(args as unknown as ReportArgs, io);
+        },
+      )
+      .command(
+        'discover [files..]',
+        'search slices of one to three column conditions for gaps a one-column slice hides (false-discovery controlled)',
+        (y) => projectDefaults(commandOptions(y, 'discover'), config),
+        async (args) => {
+          code = await runDiscover(args as unknown as DiscoverArgs, io);
         },
       )
       .command(

@@ -13,7 +13,7 @@ import { DIALECTS } from '../sql/dialect.js';
 import type { TriageOptions } from '../triage/types.js';
 
 /** The commands, each taking the options {@link COMMAND_OPTIONS} lists. */
-export type Command = 'report' | 'explore' | 'check' | 'export' | 'sql' | 'demo';
+export type Command = 'report' | 'discover' | 'explore' | 'check' | 'export' | 'sql' | 'demo';
 
 /** What a command may say differently about an option it shares: never its type or its default. */
 type Wording = Pick<Options, 'describe' | 'group' | 'choices' | 'alias' | 'demandOption'>;
@@ -151,7 +151,14 @@ export const OPTIONS = {
     for: { sql: { describe: 'overwrite --out', group: 'Query:' }, demo: { describe: 'overwrite existing files', group: undefined } },
   },
   // export
-  top: { type: 'number', describe: "the first N slices in the report's order (default: the flagged slices)", group: 'Export:' },
+  top: {
+    type: 'number', describe: "the first N slices in the report's order (default: the flagged slices)", group: 'Export:',
+    for: { discover: { describe: `discovered slices listed (default ${DEFAULTS.top})`, group: 'Search:' } },
+  },
+  // discover
+  depth: { type: 'number', default: DEFAULTS.depth, describe: 'conditions per slice, 1 to 3 (3 needs the full cross of the slice columns)', group: 'Search:' },
+  'min-lift': { type: 'number', default: DEFAULTS.minLift, describe: "smallest gap above every simpler slice's rest (fraction: 0.02 = 2 points)", group: 'Search:' },
+  all: { type: 'boolean', default: false, describe: 'also list found slices explained by slices within them (explained_by)', group: 'Search:' },
   slice: { type: 'string', describe: 'a slice by its key, e.g. "station=S5,lighting=dome" (repeatable; \\, for a comma in a value)', group: 'Export:' },
   splits: { type: 'string', default: DEFAULTS.exportSplits, describe: 'splits whose rows are written: train, train_dev, dev, test', group: 'Export:' },
   'errors-only': { type: 'boolean', default: false, describe: 'only rows the model got wrong', group: 'Export:' },
@@ -190,6 +197,8 @@ const ANALYSIS: readonly OptionName[] = [
 /** The options each command takes, in the order its help lists them (a group shows where it first appears). */
 export const COMMAND_OPTIONS: Readonly<Record<Command, readonly OptionName[]>> = {
   report: [...ANALYSIS, 'format'],
+  // the candidate columns are --slice-cols (or those detected): no --by
+  discover: [...ANALYSIS.filter((o) => o !== 'by'), 'depth', 'min-lift', 'top', 'all', 'format'],
   explore: [...ANALYSIS, 'format', 'ascii'],
   check: [...ANALYSIS, 'max-bias', 'max-variance', 'max-mismatch', 'max-dev-error', 'strict', 'baseline', 'format', 'junit'],
   export: [...ANALYSIS, 'out', 'top', 'slice', 'splits', 'errors-only', 'limit-per-slice', 'raw', 'force'],

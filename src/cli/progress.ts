@@ -73,3 +73,29 @@ export function scanProgress(io: Pick<CliIO, 'stderr' | 'env'>, mode: 'auto' | '
     };
   };
 }
+
+/** A search of at least this many column sets shows progress under `--progress auto`. */
+const SEARCH_MIN_SETS = 20;
+
+/**
+ * Progress of discover's search on stderr: a line redrawn in place on a terminal, else one line when
+ * it starts and one when it ends; under `--progress auto` only for searches of many column sets.
+ * @example
+ * searchProgress(io, 'always')?.(3, 28); // writes 'floorgap: searching column sets 3 of 28 …'
+ */
+export function searchProgress(io: Pick<CliIO, 'stderr'>, mode: 'auto' | 'always' | 'never' = 'auto'): ((done: number, total: number) => void) | undefined {
+  if (mode === 'never') return undefined;
+  const tty = Boolean(io.stderr.isTTY);
+  const t0 = Date.now();
+  return (done, total) => {
+    if (mode === 'auto' && total < SEARCH_MIN_SETS) return;
+    if (tty) {
+      io.stderr.write(`\r\x1b[Kfloorgap: searching column sets ${done} of ${total}  ${seconds(Date.now() - t0)}`);
+      if (done === total) io.stderr.write(`\r\x1b[Kfloorgap: rolled up ${total} column sets in ${seconds(Date.now() - t0)}\n`);
+    } else if (done === 1) {
+      io.stderr.write(`floorgap: searching ${total} column sets\n`);
+    } else if (done === total) {
+      io.stderr.write(`floorgap: rolled up ${total} column sets in ${seconds(Date.now() - t0)}\n`);
+    }
+  };
+}

@@ -40,6 +40,14 @@ export const DEFAULTS = {
   labelCost: 1,
   floorRule: 'panel',
 
+  // discover (src/discover/types.ts DISCOVER_DEFAULTS)
+  /** `--depth`: conditions per discovered slice */
+  depth: 2,
+  /** `--min-lift`: the smallest lift over every parent's rest, as a fraction of error (2 points) */
+  minLift: 0.02,
+  /** `--top`: discovered slices listed */
+  top: 20,
+
   // outputs
   /** `--format` of report, explore and check */
   format: 'text',

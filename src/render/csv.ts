@@ -43,12 +43,12 @@ export const CSV_COLUMNS: readonly string[] = [
 const SPLITS: readonly Split[] = ['train', 'train_dev', 'dev', 'test'];
 
 /** A cell holding a number: never neutralised, so `-0.5` stays a number. */
-type Value =
+export type Value =
   | { readonly kind: 'number'; readonly value: number | null }
   | { readonly kind: 'text'; readonly value: string };
 
-const num = (value: number | null | undefined): Value => ({ kind: 'number', value: value ?? null });
-const text = (value: string): Value => ({ kind: 'text', value });
+export const num = (value: number | null | undefined): Value => ({ kind: 'number', value: value ?? null });
+export const text = (value: string): Value => ({ kind: 'text', value });
 
 /**
  * Neutralises a text cell against formula injection: a cell starting with `=`, `+`, `-`, `@`, tab or CR
@@ -75,7 +75,8 @@ export function quoteField(field: string): string {
   return /[",\r\n\t]/.test(field) ? `"${field.replaceAll('"', '""')}"` : field;
 }
 
-function cell(value: Value): string {
+/** One CSV field: a number as plain digits, text neutralised, sanitised and quoted. */
+export function cell(value: Value): string {
   if (value.kind === 'number') return plainNumber(value.value);
   return quoteField(neutralizeFormula(sanitize(value.value, { keepWhitespace: true })));
 }
@@ -84,7 +85,8 @@ function gapValues(gap: Gap | null): Value[] {
   return [num(gap?.value), num(gap?.lo), num(gap?.hi), num(gap?.q)];
 }
 
-function sliceValues(slice: SliceReport, overall: boolean): Value[] {
+/** The {@link CSV_COLUMNS} of one slice. */
+export function sliceValues(slice: SliceReport, overall: boolean): Value[] {
   return [
     num(slice.rank),
     text(overall ? 'overall' : slice.label),

@@ -17,9 +17,9 @@ export interface ReportContext {
   readonly warnings: readonly string[];
 }
 
-const EMPTY: SliceStats = { key: {}, splits: {}, floorParts: [], devFloorParts: [], audit: null };
+export const EMPTY: SliceStats = { key: {}, splits: {}, floorParts: [], devFloorParts: [], audit: null };
 
-function sliceId(key: Readonly<Record<string, string>>): string {
+export function sliceId(key: Readonly<Record<string, string>>): string {
   return JSON.stringify(Object.entries(key));
 }
 
@@ -40,6 +40,44 @@ export function chooseRun(cells: CellTable, wanted: string | null): string | nul
   for (const r of sums) train.set(r.run, r.rows);
   const rowsOf = (r: string) => train.get(cells.runs.indexOf(r)) ?? 0;
   return runs.reduce((best, r) => (rowsOf(r) >= rowsOf(best) ? r : best), runs[0]);
+}
+
+/**
+ * What triage needs per slice beyond its sums: annotator floors with one empirical-Bayes prior per
+ * grouping, fitted across that grouping's slices (the overall slice takes the first grouping's), and
+ * the learning curve from `perRun` (slice id → the slice in every run) when there are runs.
+ * @example
+ * sliceExtras([{ by: ['station'], slices }], overall, DEFAULT_TRIAGE_OPTIONS, null)(slices[0]).annotatorFloor; // => null without an audit
+ */
+export function sliceExtras(
+  groups: readonly { readonly by: readonly string[]; readonly slices: readonly SliceStats[] }[],
+  overall: SliceStats,
+  options: TriageOptions,
+  perRun: ReadonlyMap<string, SliceStats[]> | null,
+): (s: SliceStats) => SliceExtras {
+  const priors = new Map<string, BetaPrior>();
+  let overallPrior: BetaPrior | null = null;
+  // without a usable audit (no labels, or no row with two labels for the panel rule) there is no
+  // annotator floor at all: the slices keep the table or --floor
+  const overallCounts = overall.audit ? ruleCounts(overall.audit, options.floorRule) : null;
+  if (overallCounts) {
+    for (const g of groups) {
+      const data = g.slices.flatMap((s) => (s.audit ? [ruleCounts(s.audit, options.floorRule)] : [])).filter((x): x is { x: number; n: number } => x !== null);
+      if (data.length === 0) continue;
+      const prior = fitBetaPrior(data);
+      overallPrior ??= prior;
+      for (const s of g.slices) priors.set(sliceId(s.key), prior);
+    }
+    overallPrior ??= fitBetaPrior([overallCounts]);
+  }
+  return (s: SliceStats): SliceExtras => {
+    const id = sliceId(s.key);
+    const prior = Object.keys(s.key).length === 0 ? overallPrior : priors.get(id) ?? null;
+    return {
+      annotatorFloor: s.audit && prior ? annotatorFloor(s.audit, options.floorRule, prior, options.confidence) : null,
+      curve: perRun ? sliceCurve(perRun.get(id) ?? [], options.curveExponent, options.confidence) : null,
+    };
+  };
 }
 
 /**
@@ -79,30 +117,8 @@ export function buildReport(
       }
     }
   }
-  // annotator floors: one prior per grouping, fitted across its slices
-  const priors = new Map<string, BetaPrior>();
-  let overallPrior: BetaPrior | null = null;
-  // without a usable audit (no labels, or no row with two labels for the panel rule) there is no
-  // annotator floor at all: the slices keep the table or --floor
+  const extras = sliceExtras(groups, overall, options, runs.length > 1 ? perRun : null);
   const overallCounts = overall.audit ? ruleCounts(overall.audit, options.floorRule) : null;
-  if (overallCounts) {
-    for (const g of groups) {
-      const data = g.slices.flatMap((s) => (s.audit ? [ruleCounts(s.audit, options.floorRule)] : [])).filter((x): x is { x: number; n: number } => x !== null);
-      if (data.length === 0) continue;
-      const prior = fitBetaPrior(data);
-      overallPrior ??= prior;
-      for (const s of g.slices) priors.set(sliceId(s.key), prior);
-    }
-    overallPrior ??= fitBetaPrior([overallCounts]);
-  }
-  const extras = (s: SliceStats): SliceExtras => {
-    const id = sliceId(s.key);
-    const prior = Object.keys(s.key).length === 0 ? overallPrior : priors.get(id) ?? null;
-    return {
-      annotatorFloor: s.audit && prior ? annotatorFloor(s.audit, options.floorRule, prior, options.confidence) : null,
-      curve: runs.length > 1 ? sliceCurve(perRun.get(id) ?? [], options.curveExponent, options.confidence) : null,
-    };
-  };
   const result = triage(
     groups.flatMap((g) => g.slices),
     overall,

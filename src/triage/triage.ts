@@ -22,7 +22,7 @@ export interface SliceExtras {
 }
 
 /** A proportion as the tests see it: x successes of n (effective) rows. */
-interface Prop {
+export interface Prop {
   readonly p: number;
   readonly n: number;
 }
@@ -90,8 +90,8 @@ function sliceFloor(stats: SliceStats, confidence: number): SliceFloor {
   return { value, dev: devValue, lo: ci ? ci.lo : null, hi: ci ? ci.hi : null, n, source, rule: null, raw: null, audited: null };
 }
 
-/** Everything computed for one slice before the family-wide FDR step. */
-interface Draft {
+/** Everything computed for one slice before the family-wide FDR step: its decomposition. */
+export interface Draft {
   stats: SliceStats;
   label: string;
   rows: Record<Split, number | null>;
@@ -112,7 +112,14 @@ function sliceLabel(key: Readonly<Record<string, string>>): string {
   return parts.length ? parts.join(' · ') : 'overall';
 }
 
-function draft(stats: SliceStats, devTotal: number, present: ReadonlySet<Split>, o: TriageOptions, extras: SliceExtras | null): Draft {
+/**
+ * One slice's decomposition before the family-wide FDR step (q is null): rates, floor, gaps with
+ * intervals and p-values, headroom and the thin rule. `devTotal` is the overall dev weight, `present`
+ * the splits the data holds.
+ * @example
+ * draft(stats, 20000, new Set(['train', 'dev']), DEFAULT_TRIAGE_OPTIONS, null).gaps.variance?.value; // => dev − train error
+ */
+export function draft(stats: SliceStats, devTotal: number, present: ReadonlySet<Split>, o: TriageOptions, extras: SliceExtras | null): Draft {
   const c = o.confidence;
   const props = Object.fromEntries(SPLITS.map((s) => [s, present.has(s) ? prop(stats.splits[s]) : null])) as Record<Split, Prop | null>;
   const rows = Object.fromEntries(SPLITS.map((s) => [s, present.has(s) ? stats.splits[s]?.rows ?? 0 : null])) as Record<Split, number | null>;
