@@ -74,12 +74,12 @@ export function scanProgress(io: Pick<CliIO, 'stderr' | 'env'>, mode: 'auto' | '
   };
 }
 
-/** A search of at least this many column sets shows progress under `--progress auto`. */
-const SEARCH_MIN_SETS = 20;
+/** Under `--progress auto`, a search shows progress once it has run this long. */
+const SEARCH_QUIET_MS = 1000;
 
 /**
- * Progress of discover's search on stderr: a line redrawn in place on a terminal, else one line when
- * it starts and one when it ends; under `--progress auto` only for searches of many column sets.
+ * Progress of discover's search on stderr: a line redrawn in place on a terminal, else one line once
+ * it is under way and one when it ends; under `--progress auto` only once the search has run a second.
  * @example
  * searchProgress(io, 'always')?.(3, 28); // writes 'floorgap: searching column sets 3 of 28 …'
  */
@@ -87,15 +87,18 @@ export function searchProgress(io: Pick<CliIO, 'stderr'>, mode: 'auto' | 'always
   if (mode === 'never') return undefined;
   const tty = Boolean(io.stderr.isTTY);
   const t0 = Date.now();
+  let shown = false;
   return (done, total) => {
-    if (mode === 'auto' && total < SEARCH_MIN_SETS) return;
+    const ms = Date.now() - t0;
+    if (!shown && mode === 'auto' && ms < SEARCH_QUIET_MS && done < total) return;
+    if (!shown && done === total && mode === 'auto' && ms < SEARCH_QUIET_MS) return;
     if (tty) {
-      io.stderr.write(`\r\x1b[Kfloorgap: searching column sets ${done} of ${total}  ${seconds(Date.now() - t0)}`);
-      if (done === total) io.stderr.write(`\r\x1b[Kfloorgap: rolled up ${total} column sets in ${seconds(Date.now() - t0)}\n`);
-    } else if (done === 1) {
-      io.stderr.write(`floorgap: searching ${total} column sets\n`);
-    } else if (done === total) {
-      io.stderr.write(`floorgap: rolled up ${total} column sets in ${seconds(Date.now() - t0)}\n`);
+      io.stderr.write(`\r\x1b[Kfloorgap: searching column sets ${done} of ${total}  ${seconds(ms)}`);
+      if (done === total) io.stderr.write(`\r\x1b[Kfloorgap: rolled up ${total} column sets in ${seconds(ms)}\n`);
+    } else if (!shown) {
+      io.stderr.write(`floorgap: searching ${total} column sets (${done} done)\n`);
     }
+    if (!tty && done === total) io.stderr.write(`floorgap: rolled up ${total} column sets in ${seconds(ms)}\n`);
+    shown = true;
   };
 }

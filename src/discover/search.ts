@@ -175,6 +175,7 @@ export function discover(
     part: Part;
     q: number;
     lift: Lift;
+    lifts: (LiftEstimate & { over: Record<string, string> })[];
     headroom: { value: number; lo: number };
   }
   const found: Found[] = [];
@@ -190,7 +191,7 @@ export function discover(
       const headroom = { value: share * t.gap.value, lo: share * t.gap.lo };
       if (headroom.value < o.minHeadroom) continue;
       if (!best || headroom.value > best.headroom.value) {
-        best = { c, part: t.part, q: qt, lift: { part: t.part, value: weakest.value, lo: weakest.lo, hi: weakest.hi, p: oneSided(weakest.value, weakest.p), over: weakest.over }, headroom };
+        best = { c, part: t.part, q: qt, lifts: t.lifts, lift: { part: t.part, value: weakest.value, lo: weakest.lo, hi: weakest.hi, p: oneSided(weakest.value, weakest.p), over: weakest.over }, headroom };
       }
     }
     if (best) found.push(best);
@@ -254,6 +255,18 @@ export function discover(
       part_headroom: f.headroom,
       overlap,
       explained_by: explainedBy,
+      parents: f.lifts.map((l) => {
+        const pr = Object.keys(l.over).length === 0 ? tri.overall : byId.get(sliceId(l.over)) ?? null;
+        return {
+          conditions: l.over,
+          label: pr?.label ?? 'overall',
+          gap: pr ? partGap(pr, f.part) : null,
+          dev_error: pr?.error.dev ?? null,
+          floor: pr?.floor.value ?? 0,
+          share: pr?.share ?? 0,
+          lift: { value: l.value, lo: l.lo, hi: l.hi, p: oneSided(l.value, l.p) },
+        };
+      }),
     };
   };
   shown.forEach((f, i) => out.push(asSlice(f, i + 1, [])));

@@ -1,5 +1,5 @@
 import { DEFAULTS } from '../core/defaults.js';
-import type { Report, SliceReport } from '../triage/types.js';
+import type { Gap, Rate, Report, SliceReport } from '../triage/types.js';
 
 /** A part of the decomposition a discovered slice is tested on. */
 export type Part = 'bias' | 'variance' | 'mismatch';
@@ -34,6 +34,22 @@ export interface DiscoveredSlice extends SliceReport {
   readonly overlap: readonly { readonly label: string; readonly share: number | null }[];
   /** with --all: the listed descendants a folded slice's effect lives in; [] for a listed slice */
   readonly explained_by: readonly string[];
+  /** each parent (the conditions with one left out; all rows for one condition) and the lift over its rest */
+  readonly parents: readonly ParentSummary[];
+}
+
+/** A parent of a discovered slice, with its numbers for the found part and the slice's lift over its rest. */
+export interface ParentSummary {
+  /** {} for all rows */
+  readonly conditions: Readonly<Record<string, string>>;
+  readonly label: string;
+  /** the parent's own gap of the found part */
+  readonly gap: Gap | null;
+  readonly dev_error: Rate | null;
+  readonly floor: number;
+  readonly share: number;
+  /** the slice's gap minus the gap of the parent's other rows */
+  readonly lift: { readonly value: number; readonly lo: number; readonly hi: number; readonly p: number };
 }
 
 /** The search settings, as given (or defaulted). */
