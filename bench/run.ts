@@ -244,7 +244,8 @@ const LOOP: Engine = { slices: loopRollupSlices, byRun: loopRollupByRun };
 function rollupsFor(engine: Engine, cells: CellTable, by: readonly string[] | null, overview: readonly string[], run: string | null, runs: number): { what: string; slices: SliceStats[] }[] {
   const groupings = by && by.length > 0 ? [by] : overview.map((c) => [c]);
   const out = [...groupings, []].map((g) => ({ what: `[${g.join(', ')}]`, slices: engine.slices(cells, g, run) }));
-  if (runs > 1) for (const g of [[], ...groupings]) for (const [r, slices] of engine.byRun(cells, g)) out.push({ what: `[${g.join(', ')}] run ${r}`, slices });
+  // runs by name: a map's order is no part of the roll-up's result
+  if (runs > 1) for (const g of [[], ...groupings]) for (const [r, slices] of [...engine.byRun(cells, g)].sort((x, y) => (x[0] < y[0] ? -1 : 1))) out.push({ what: `[${g.join(', ')}] run ${r}`, slices });
   return out;
 }
 

@@ -99,7 +99,7 @@ export function discover(
   for (const g of groups) {
     for (const stats of g.slices) {
       const id = sliceId(stats.key);
-      const status = isThin(stats, o.minRows) ? 'thin' : headroomBound(stats, devTotal, trainDev) < o.minHeadroom ? 'skipped' : 'examined';
+      const status = isThin(stats, o.minRows) ? 'thin' : d.prune !== false && headroomBound(stats, devTotal, trainDev) < o.minHeadroom ? 'skipped' : 'examined';
       all.set(id, { stats, id, depth: g.by.length, status, report: null, tests: [] });
     }
   }

@@ -113,6 +113,8 @@ export interface DiscoverOptions {
   readonly top: number;
   /** list folded slices too, with what explains them */
   readonly all: boolean;
+  /** skip slices through the headroom bound (default true; false examines every slice, for tests of the bound) */
+  readonly prune?: boolean;
 }
 
 /** The search's options when none is given (the values: core/defaults.ts). */
