@@ -5,7 +5,8 @@
  * the file. Every measurement runs `--reps` times (default 3), interleaved, and reports the median.
  * The cells → slices roll-up (arquero, src/slices/rollup.ts) is measured against the previous loop
  * over integer keys (bench/loop-rollup.ts) on the bench tables' cells and on synthetic cells, with the
- * regroup (roll-up + triage) beside its targets.
+ * regroup (roll-up + triage) beside its targets. `floorgap discover` at depth 2 and 3 runs from the
+ * cached cells of each table, whole process, with its peak RSS beside the report's.
  *
  *   npm run bench                                  # 1M and 10M rows, CSV and Parquet
  *   npm run bench -- --rows 1000000 --reps 5       # other sizes and repetitions
@@ -170,9 +171,9 @@ async function scanBreakdown(path: string, floors: string): Promise<Record<strin
   return Object.fromEntries(Object.entries(parts).map(([k, v]) => [k, Math.round(v)]));
 }
 
-/** The whole `floorgap report --format json` process, with its peak RSS. */
-function reportProcess(path: string, floors: string, extra: string[] = [], env: Record<string, string> = {}): { ms: number; rssMb: number | null; stdout: string } {
-  const argv = [process.execPath, CLI, 'report', path, '--floor-table', floors, '--format', 'json', '--progress', 'never', ...extra];
+/** The whole `floorgap report --format json` process (or another command's), with its peak RSS. */
+function reportProcess(path: string, floors: string, extra: string[] = [], env: Record<string, string> = {}, command = 'report'): { ms: number; rssMb: number | null; stdout: string } {
+  const argv = [process.execPath, CLI, command, path, '--floor-table', floors, '--format', 'json', '--progress', 'never', ...extra];
   const t0 = now();
   const r = hasTime
     ? spawnSync('/usr/bin/time', ['-f', '%M', ...argv], { encoding: 'utf8', maxBuffer: 1 << 28, env: { ...process.env, ...env } })
@@ -244,8 +245,11 @@ const LOOP: Engine = { slices: loopRollupSlices, byRun: loopRollupByRun };
 function rollupsFor(engine: Engine, cells: CellTable, by: readonly string[] | null, overview: readonly string[], run: string | null, runs: number): { what: string; slices: SliceStats[] }[] {
   const groupings = by && by.length > 0 ? [by] : overview.map((c) => [c]);
   const out = [...groupings, []].map((g) => ({ what: `[${g.join(', ')}]`, slices: engine.slices(cells, g, run) }));
-  // runs by name: a map's order is no part of the roll-up's result
-  if (runs > 1) for (const g of [[], ...groupings]) for (const [r, slices] of [...engine.byRun(cells, g)].sort((x, y) => (x[0] < y[0] ? -1 : 1))) out.push({ what: `[${g.join(', ')}] run ${r}`, slices });
+  // runs by name and slices by key: the order of a curve's map and lists is no part of its result
+  if (runs > 1) for (const g of [[], ...groupings]) for (const [r, slices] of [...engine.byRun(cells, g)].sort((x, y) => (x[0] < y[0] ? -1 : 1))) {
+      const id = (s: SliceStats) => JSON.stringify(Object.entries(s.key));
+      out.push({ what: `[${g.join(', ')}] run ${r}`, slices: [...slices].sort((x, y) => (id(x) < id(y) ? -1 : id(x) > id(y) ? 1 : 0)) });
+    }
   return out;
 }
 
@@ -456,13 +460,23 @@ for (const rows of sizes) {
         // reopening the unchanged file: the cells come from the cache
         const cacheHome = mkdtempSync(join(tmpdir(), 'floorgap-bench-cache-'));
         const reopen: number[] = [];
+        const reopenRss: number[] = [];
+        const discoverMs: Record<number, number[]> = { 2: [], 3: [] };
+        const discoverRss: Record<number, number[]> = { 2: [], 3: [] };
         let sameAsScan = false;
         try {
           const first = reportProcess(files[format], files.floors, [], { XDG_CACHE_HOME: cacheHome });
           for (let r = 0; r < reps; r++) {
             const p = reportProcess(files[format], files.floors, [], { XDG_CACHE_HOME: cacheHome });
             reopen.push(p.ms);
+            if (p.rssMb !== null) reopenRss.push(p.rssMb);
             sameAsScan = p.stdout === first.stdout;
+            // discover from the same cached cells, whole process, depth 2 and 3
+            for (const depth of [2, 3]) {
+              const q = reportProcess(files[format], files.floors, ['--depth', String(depth)], { XDG_CACHE_HOME: cacheHome }, 'discover');
+              discoverMs[depth].push(q.ms);
+              if (q.rssMb !== null) discoverRss[depth].push(q.rssMb);
+            }
           }
         } finally {
           rmSync(cacheHome, { recursive: true, force: true });
@@ -498,7 +512,12 @@ for (const rows of sizes) {
           frame_2000_ms: frames.length ? median(frames) : null,
           frame_2000_max_ms: frames.length ? Math.max(...frames) : null,
           reopen_ms: median(reopen),
+          reopen_rss_mb: reopenRss.length ? Math.max(...reopenRss) : null,
           reopen_same_report: sameAsScan,
+          discover_depth2_ms: median(discoverMs[2]),
+          discover_depth3_ms: median(discoverMs[3]),
+          discover_depth2_rss_mb: discoverRss[2].length ? Math.max(...discoverRss[2]) : null,
+          discover_depth3_rss_mb: discoverRss[3].length ? Math.max(...discoverRss[3]) : null,
         });
       }
     }
@@ -546,11 +565,11 @@ for (const r of results) {
   );
 }
 out.push('', 'Times in ms.', '');
-out.push('| rows | cells | re-sort 2,000 slices | ink frame, 2,000 slices (median / max) | reopen (cached cells), whole process | reopen in-process (stamps, cache, report) |');
-out.push('|---:|---:|---:|---:|---:|---:|');
+out.push('| rows | cells | re-sort 2,000 slices | ink frame, 2,000 slices (median / max) | reopen (cached cells), whole process | reopen in-process (stamps, cache, report) | discover depth 2 / 3 (cached cells, whole process; targets 2,000 / 6,000) | peak RSS MB: report reopen / discover 2 / 3 |');
+out.push('|---:|---:|---:|---:|---:|---:|---:|---:|');
 for (const r of interactive) {
   out.push(
-    `| ${Number(r.rows).toLocaleString('en')} | ${Number(r.cells).toLocaleString('en')} | ${f2(r.resort_2000_ms)} | ${r.frame_2000_ms === null ? 'n/a' : `${f0(r.frame_2000_ms)} / ${f0(r.frame_2000_max_ms)}`} | ${f0(r.reopen_ms)} | ${f0(r.reopen_in_process_ms)} |`,
+    `| ${Number(r.rows).toLocaleString('en')} | ${Number(r.cells).toLocaleString('en')} | ${f2(r.resort_2000_ms)} | ${r.frame_2000_ms === null ? 'n/a' : `${f0(r.frame_2000_ms)} / ${f0(r.frame_2000_max_ms)}`} | ${f0(r.reopen_ms)} | ${f0(r.reopen_in_process_ms)} | ${f0(r.discover_depth2_ms)} / ${f0(r.discover_depth3_ms)} | ${r.reopen_rss_mb ?? 'n/a'} / ${r.discover_depth2_rss_mb ?? 'n/a'} / ${r.discover_depth3_rss_mb ?? 'n/a'} |`,
   );
 }
 out.push('', 'The arquero roll-up against the previous loop (bench/loop-rollup.ts), and the regroup (`buildReport`: roll-up + triage), ms:', '');
