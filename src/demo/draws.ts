@@ -12,13 +12,13 @@ import {
   checkDemoOptions,
   demoErrorProbability,
   demoInspectorErrorProbability,
+  demoInteractionEffect,
   demoRunTrainRows,
   type DemoClass,
   type DemoInspector,
   type DemoOptions,
   type DemoRow,
 } from './scenario.js';
-
 
 /** Keys and weights of a share table, in a fixed order, for {@link Random.choice}. */
 function table<K extends string>(shares: Record<K, number>): { keys: K[]; weights: number[] } {
@@ -31,18 +31,51 @@ const round3 = (x: number): number => Math.round(x * 1000) / 1000;
 /** Salts of the side streams ({@link deriveSeed}); the main stream is `new Random(seed)`. */
 const AUDIT_SALT = 1;
 const RUN_SALT = 2;
+/**
+ * The interaction's stream (a run's own interaction stream derives from the run's seed). Any salt plants
+ * the same interaction; the shipped sample's overview has several slices near the edge of the FDR step
+ * (gaps the QFN and S5 plants leave in every slice), so which of them are flagged depends on the draws:
+ * 26, found by trying the salts 3, 13 … 36, is one with which the sample's overview flags the same
+ * slices as before the interaction was planted.
+ */
+const INTERACTION_SALT = 26;
 
-/** A wrong or right prediction for a row with error probability `p`, with its score (draw order is fixed). */
-function drawPrediction(rng: Random, label: DemoClass, p: number): { pred: DemoClass; score: number } {
-  if (rng.chance(p)) {
-    const others = DEMO_CLASSES.filter((c) => c !== label);
-    const pred = others[rng.int(others.length)];
-    const d = DEMO_DISTRIBUTIONS;
-    const score = rng.chance(d.confidentErrorShare) ? rng.between(0.8, 0.99) : rng.between(0.25, 0.8);
-    return { pred, score: round3(score) };
-  }
+type Prediction = { pred: DemoClass; score: number };
+
+/** A wrong class among the other four, and its score (draw order is fixed). */
+function drawWrong(rng: Random, label: DemoClass): Prediction {
+  const others = DEMO_CLASSES.filter((c) => c !== label);
+  const pred = others[rng.int(others.length)];
+  const d = DEMO_DISTRIBUTIONS;
+  const score = rng.chance(d.confidentErrorShare) ? rng.between(0.8, 0.99) : rng.between(0.25, 0.8);
+  return { pred, score: round3(score) };
+}
+
+/** The right class and its score. */
+function drawRight(rng: Random, label: DemoClass): Prediction {
   const u = rng.uniform();
   return { pred: label, score: round3(0.999 - 0.299 * u * u) }; // (0.7, 0.999], most mass near the top
+}
+
+/** A wrong or right prediction for a row with error probability `p`, with its score (draw order is fixed). */
+function drawPrediction(rng: Random, label: DemoClass, p: number): Prediction {
+  return rng.chance(p) ? drawWrong(rng, label) : drawRight(rng, label);
+}
+
+/**
+ * The interaction ({@link demoInteractionEffect}) applied to a prediction that was drawn with error
+ * probability `p`, from its own stream, so the stream that drew it draws exactly what it drew without
+ * the interaction. For an effect ε > 0 a right prediction turns wrong with probability ε / (1 − p); for
+ * ε < 0 a wrong one turns right with probability |ε| / p (ε is bounded so that both are at most 1).
+ * Either way the row is wrong with probability p + ε; a turned prediction gets its class and score
+ * from this stream as {@link drawPrediction} would draw them.
+ */
+function withInteraction(rng: Random, row: DemoRow, p: number, drawn: Prediction): Prediction {
+  const effect = demoInteractionEffect(row, p);
+  if (effect === 0) return drawn;
+  const wrong = drawn.pred !== row.label;
+  if (effect > 0) return !wrong && rng.chance(effect / (1 - p)) ? drawWrong(rng, row.label) : drawn;
+  return wrong && rng.chance(-effect / p) ? drawRight(rng, row.label) : drawn;
 }
 
 type Audit = Pick<DemoRow, DemoInspector>;
@@ -68,12 +101,14 @@ function drawAudit(rng: Random, row: Pick<DemoRow, 'package' | 'label'>): Audit 
 
 /**
  * The run-independent dataset: every example once, with the (last) run's predictions from the main
- * stream and the audit from its own stream, so the audit leaves the other columns of a seed unchanged.
+ * stream, the interaction and the audit each from its own stream, so neither changes the other columns
+ * of a seed.
  */
 function* generateExamples(rows: number, seed: number): Generator<DemoRow> {
   const d = DEMO_DISTRIBUTIONS;
   const rng = new Random(seed);
   const auditRng = new Random(deriveSeed(seed, AUDIT_SALT));
+  const interactionRng = new Random(deriveSeed(seed, INTERACTION_SALT));
   const splits = table(d.split);
   const training = table(d.stationTraining);
   const production = table(d.stationProduction);
@@ -96,10 +131,11 @@ function* generateExamples(rows: number, seed: number): Generator<DemoRow> {
     const sharpMean = pkg === '0201' ? d.sharpness.meanFor0201 : d.sharpness.mean;
     const sharpness = round3(Math.min(1, Math.max(0, rng.normal(sharpMean, d.sharpness.sd))));
     const label = rng.choice(labels.keys, labels.weights);
-    const { pred, score } = drawPrediction(rng, label, demoErrorProbability({ split, station, lighting, package: pkg }));
+    const p = demoErrorProbability({ split, station, lighting, package: pkg });
+    const drawn = drawPrediction(rng, label, p);
     const audit = drawAudit(auditRng, { package: pkg, label });
 
-    yield {
+    const row: DemoRow = {
       id: `J${String(i + 1).padStart(width, '0')}`,
       split,
       station,
@@ -109,12 +145,13 @@ function* generateExamples(rows: number, seed: number): Generator<DemoRow> {
       shift,
       sharpness,
       label,
-      pred,
-      score,
+      pred: drawn.pred,
+      score: drawn.score,
       insp_a: audit.insp_a,
       insp_b: audit.insp_b,
       insp_c: audit.insp_c,
     };
+    yield { ...row, ...withInteraction(interactionRng, row, p, drawn) };
   }
 }
 
@@ -125,7 +162,8 @@ function* generateExamples(rows: number, seed: number): Generator<DemoRow> {
  *
  * With `runs = R ≥ 2` the rows come run-major (all of `r1`, then `r2`, …), in id order within a run;
  * run R's rows equal the `runs = 1` table plus the `run` column, and run r < R draws its predictions
- * from its own stream with the learning-curve variance effect of {@link DEMO_PLANTS.variance}.
+ * from its own stream with the learning-curve variance effect of {@link DEMO_PLANTS.variance}, and its
+ * interaction from a stream of its own.
  */
 export function* generateDemoRows(options: DemoOptions): Generator<DemoRow> {
   checkDemoOptions(options);
@@ -142,11 +180,13 @@ export function* generateDemoRows(options: DemoOptions): Generator<DemoRow> {
     const run = `r${r}`;
     const size = sizes[r - 1];
     const fraction = nTrain === 0 ? 2 ** (r - runs) : size / nTrain;
-    const rng = r === runs ? null : new Random(deriveSeed(deriveSeed(seed, RUN_SALT + runs), r));
+    const runSeed = deriveSeed(deriveSeed(seed, RUN_SALT + runs), r);
+    const rng = r === runs ? null : { main: new Random(runSeed), interaction: new Random(deriveSeed(runSeed, INTERACTION_SALT)) };
     let trainSeen = 0;
     for (const e of generateExamples(rows, seed)) {
       if (e.split === 'train' && trainSeen++ >= size) continue;
-      const { pred, score } = rng === null ? e : drawPrediction(rng, e.label, demoErrorProbability(e, fraction));
+      const p = demoErrorProbability(e, fraction);
+      const { pred, score } = rng === null ? e : withInteraction(rng.interaction, e, p, drawPrediction(rng.main, e.label, p));
       yield {
         id: e.id,
         split: e.split,

@@ -128,10 +128,11 @@ const ALL_SPLITS: readonly DemoSplit[] = ['train', 'train_dev', 'dev', 'test'];
 
 /**
  * The planted truths of the demo data (our own scenario). Every row has an error probability
- * `floor(package) + Σ effects that apply to it`, capped at {@link DEMO_PLANTS.errorCap}; the effects
- * are additive. Apart from the effects below, every slice's train, train_dev, dev and test error
- * equal its rows' floor in expectation. With several training runs ({@link DemoOptions.runs}) only the
- * variance effect depends on the run (a learning curve); the other plants are the same in every run.
+ * `floor(package) + Σ effects that apply to it`, kept within [0, {@link DEMO_PLANTS.errorCap}]; the
+ * effects are additive. Apart from the effects below, every slice's train, train_dev, dev and test error
+ * equal its rows' floor in expectation; the interaction (S6 under dome light) shows in the pair only.
+ * With several training runs ({@link DemoOptions.runs}) only the variance effect depends on the run (a
+ * learning curve); the other plants are the same in every run.
  *
  * 0201 joints are so small that the model already errs at the inspectors' rate whatever the camera or
  * light, so no effect applies to them: the whole `0201` slice sits at its floor. Because the effects
@@ -181,6 +182,34 @@ export const DEMO_PLANTS = Object.freeze({
     /** β of the learning curve `effect · (n_r / n_R)^(−β)` */
     curveExponent: 0.5,
   },
+  /**
+   * S6 under dome light: a pure two-column interaction, with no main effect of its own. S6's camera was
+   * recalibrated for the brighter ring and coaxial lights, so under the dim dome light its images are
+   * underexposed and the model misses defects there, while under the other lights it does a little
+   * better than the line; the dome light in turn serves the other cameras a little better than average.
+   * As in a two-way analysis of variance, the effect on a row is
+   * `κ · (1[station = S6] − P(S6)) · (1[lighting = dome] − P(dome))`, `κ = effect / ((1 − P(S6)) (1 − P(dome)))`,
+   * with P the training shares (0.19 and 0.25), in every split (an avoidable bias), none on 0201 (the
+   * shares among the other packages are the same, as the columns are drawn independently). So S6 · dome
+   * gets `+effect`, the rest of S6 `−effect · P(dome) / (1 − P(dome))` (−0.04), the rest of dome
+   * `−effect · P(S6) / (1 − P(S6))` (≈ −0.028) and every other row `+effect · P(S6) P(dome) / ((1 − P(S6))
+   * (1 − P(dome)))` (≈ +0.0094): each station and each lighting averages to 0 over the training
+   * distribution, so the gap shows only in the pair (`--by station,lighting`).
+   *
+   * Two things leave the singles a little off 0. Where a negative effect would take a row's error
+   * probability below 0 (SOIC, floor 0.02, and 0603, 0.03, outside the dome light; SOIC under it) it
+   * stops at 0, so in train S6 keeps +0.34 points, SOIC +0.45, 0603 +0.14, dome +0.10 and the whole
+   * table +0.09 (expected values, hand arithmetic over the shares). And in dev and test, where S6 is 1/6
+   * of the rows rather than 0.19, dome's rows average κ · (1 − P(dome)) · (1/6 − 0.19) ≈ −0.35 points
+   * (−0.18 with the stops at 0). The interaction changes `pred` and `score` only: it is drawn from a
+   * stream of its own (draws.ts), the same in every run.
+   */
+  interaction: {
+    columns: ['station', 'lighting'] as const,
+    values: ['S6', 'dome'] as const,
+    effect: 0.12,
+    splits: ALL_SPLITS,
+  },
   /** upper bound on any row's error probability */
   errorCap: 0.95,
 });
@@ -214,8 +243,9 @@ function stationShares(s5: number): Record<DemoStation, number> {
 const PLANT_LIST = [DEMO_PLANTS.avoidableBias, DEMO_PLANTS.atFloor, DEMO_PLANTS.mismatch, DEMO_PLANTS.variance];
 
 /**
- * The planted error probability of a row: its package floor plus the planted effects that apply to
- * its split, capped at {@link DEMO_PLANTS.errorCap}.
+ * The planted error probability of a row without the interaction ({@link demoInteractionEffect} adds
+ * it): its package floor plus the planted effects that apply to its split, capped at
+ * {@link DEMO_PLANTS.errorCap}. The main stream draws each prediction with this probability.
  * @param trainFraction n_r / n_R, the row's run's training rows over the last run's (1, the default,
  *   for the last or only run); it scales the variance effect to `effect · trainFraction^(−β)`
  * @example demoErrorProbability({ split: 'dev', station: 'S1', lighting: 'low-angle', package: '0603' }, 0.25) // 0.03 + 0.06·2
@@ -238,6 +268,25 @@ export function demoErrorProbability(
     }
   }
   return Math.min(p, DEMO_PLANTS.errorCap);
+}
+
+/**
+ * The interaction's change to a row's error probability `p` (see {@link DEMO_PLANTS.interaction}):
+ * `κ · (1[station = S6] − P(S6)) · (1[lighting = dome] − P(dome))` in its splits, 0 on 0201, bounded
+ * so that `p` plus it stays in [0, {@link DEMO_PLANTS.errorCap}]. P are the training shares of
+ * {@link DEMO_DISTRIBUTIONS}.
+ * @param p the row's error probability without the interaction ({@link demoErrorProbability})
+ * @example demoInteractionEffect({ split: 'dev', station: 'S6', lighting: 'dome', package: 'BGA' }, 0.05) // +0.12
+ * @example demoInteractionEffect({ split: 'train', station: 'S6', lighting: 'ring', package: 'SOIC' }, 0.02) // −0.02, not −0.12/3
+ */
+export function demoInteractionEffect(row: Pick<DemoRow, 'split' | 'station' | 'lighting' | 'package'>, p: number): number {
+  const { columns, values, effect, splits } = DEMO_PLANTS.interaction;
+  if (row.package === DEMO_PLANTS.atFloor.value || !splits.includes(row.split)) return 0;
+  const pa = DEMO_DISTRIBUTIONS.stationTraining[values[0]];
+  const pb = DEMO_DISTRIBUTIONS.lighting[values[1]];
+  const kappa = effect / ((1 - pa) * (1 - pb));
+  const e = kappa * (Number(row[columns[0]] === values[0]) - pa) * (Number(row[columns[1]] === values[1]) - pb);
+  return Math.min(Math.max(p + e, 0), DEMO_PLANTS.errorCap) - p;
 }
 
 /**

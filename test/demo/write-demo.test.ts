@@ -92,12 +92,19 @@ describe('writeDemo', () => {
     }
   });
 
-  it('writes the table of several runs byte for byte as it always has', async () => {
+  it('writes the table of several runs byte for byte, every column but pred and score as before the interaction', async () => {
     const out = await writeDemo(join(root, 'four-runs'), { rows: 20_000, seed: 24, runs: 4 });
-    const sha256 = createHash('sha256').update(await readFile(out.table)).digest('hex');
+    const table = await readFile(out.table, 'utf8');
+    const sha256 = (text: string) => createHash('sha256').update(text).digest('hex');
     // sha256sum of solder-joints.csv from `floorgap demo --out X --rows 20000 --seed 24 --runs 4`, run on
-    // commit aa77190 (before the demo generator was split into scenario, draws and CSV)
-    expect(sha256).toBe('cfeca6e02dfdb670e5e4bd875d2656a92433f7bb58869375aa2a3a34223e3d12');
+    // commit 753d391, which planted the S6 · dome interaction (on commit aa77190, before the generator was
+    // split into scenario, draws and CSV, and still on 6e4a4e2, before the interaction: cfeca6e0…)
+    expect(sha256(table)).toBe('af09b0a094db21c8a5315e67029091a2b14cd1441e25d4a54dfdba519d88b49c');
+    // the interaction changed pred and score only: `cut -d, -f1-10,13- solder-joints.csv | sha256sum` (every
+    // column but pred and score) gives the same on commit 6e4a4e2 as now
+    const withoutPrediction = table.split('\n').map((line) => line.split(',').filter((_, i) => i !== 10 && i !== 11).join(',')).join('\n');
+    expect(table.split('\n', 1)[0].split(',').slice(10, 12)).toEqual(['pred', 'score']);
+    expect(sha256(withoutPrediction)).toBe('50617f49f7c8f0070c6b90e8907919ed5e964ec1caf067f17d5da26c0d7b8596');
     // hand arithmetic on the 8,026 train rows of the seed-24 sample (counted in data-samples/solder-joints.csv):
     // 4 runs × 11,974 other rows + ceil(8,026 · 2^(r−4)) train rows = 47,896 + 1,004 + 2,007 + 4,013 + 8,026
     expect(out.rows).toBe(62_946);

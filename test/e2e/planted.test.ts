@@ -45,6 +45,31 @@ describe('shipped demo sample (data-samples/, 20,000 rows, seed 24)', () => {
     expect(slice(r, 'package=0201').flagged).toBe(false);
   });
 
+  it('finds the planted S6 · dome interaction in the pair only: the singles show no gap in the overview', async () => {
+    // planted by the demo generator (our own scenario): a pure interaction, +0.12 on S6 · dome, no main
+    // effect; the thresholds are the report's (--fdr 0.05) and what a search over thousands of pairs needs
+    for (const label of ['station=S6', 'lighting=dome']) {
+      expect(slice(r, label).flagged, label).toBe(false);
+      expect(slice(r, label).gaps.avoidable_bias!.q!, label).toBeGreaterThan(0.2);
+    }
+    expect(flaggedLabels(r).sort()).toEqual(['lighting=low-angle', 'package=QFN', 'station=S5']);
+    const byPair = await report([...files, '--by', 'station,lighting']);
+    const pair = slice(byPair, 'station=S6 · lighting=dome');
+    expect(pair.flagged).toBe(true);
+    expect(pair.focus).toBe('bias');
+    expect(pair.gaps.avoidable_bias!.p!).toBeLessThan(1e-6);
+    // the pair's train error over the rest of its station and of its lighting: planted 0.12 + 0.04 and
+    // 0.12 + 0.028 on the 3/4 of rows that are not 0201 (hand arithmetic: 12 and 11 points, a little less
+    // where the rest stops at 0), at least 8 points
+    const trainErrors = (s: SliceReport) => ({ errors: s.error.train!.value * s.rows.train!, rows: s.rows.train! });
+    const p = trainErrors(pair);
+    for (const [by, label] of [['station', 'station=S6'], ['lighting', 'lighting=dome']] as const) {
+      const whole = trainErrors(slice(await report([...files, '--by', by]), label));
+      const rest = (whole.errors - p.errors) / (whole.rows - p.rows);
+      expect(p.errors / p.rows - rest, label).toBeGreaterThan(0.08);
+    }
+  });
+
   it('is the overview: one-column slices whose shares add to 1 within each column', () => {
     expect(r.by).toBeNull();
     for (const col of ['station', 'lighting', 'package', 'finish', 'shift']) {
@@ -79,6 +104,15 @@ describe('a larger demo (100,000 rows, seed 101): recovery and no flags where no
     expect(r.slices[0].label).toBe('station=S5');
   });
 
+  it('by station and lighting: S6 · dome is flagged with its planted focus, bias', async () => {
+    const r = await report([...files, '--by', 'station,lighting']);
+    // planted by the demo generator (our own scenario): +0.12 on the pair in every split
+    const pair = slice(r, 'station=S6 · lighting=dome');
+    expect(pair.flagged).toBe(true);
+    expect(pair.focus).toBe('bias');
+    expect(pair.gaps.avoidable_bias!.p!).toBeLessThan(1e-6);
+  });
+
   it('by package, outside S5 and low-angle: only QFN is flagged', async () => {
     const r = await report([...files, '--by', 'package', '--where', "station <> 'S5' AND lighting <> 'low-angle'"]);
     expect(flaggedLabels(r)).toEqual(['QFN'].map((v) => `package=${v}`));
@@ -97,7 +131,9 @@ describe('a larger demo (100,000 rows, seed 101): recovery and no flags where no
   });
 
   it('with every planted slice removed, nothing is flagged', async () => {
-    const r = await report([...files, '--where', "package <> 'QFN' AND station <> 'S5' AND lighting <> 'low-angle'"]);
+    // without the S6 · dome cell, what is left of the interaction is below 0 on S6 and on dome, ≤ 0 elsewhere
+    const where = "package <> 'QFN' AND station <> 'S5' AND lighting <> 'low-angle' AND NOT (station = 'S6' AND lighting = 'dome')";
+    const r = await report([...files, '--where', where]);
     expect(r.slices.length).toBeGreaterThan(15);
     expect(flaggedLabels(r)).toEqual([]);
   });
