@@ -224,7 +224,8 @@ export function discover(
       const g = partGap(od, f.part);
       folds = !(g && g.lo !== null && g.lo > 0);
     }
-    if (folds) explained.set(f, desc.map((l) => l.c.report!.label));
+    // by label: the order of the cells (a multi-threaded scan) must not change the output
+    if (folds) explained.set(f, desc.map((l) => l.c.report!.label).sort());
     else listed.push(f);
   }
   if (unfoldable > 0) {

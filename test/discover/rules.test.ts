@@ -88,6 +88,9 @@ describe('discover on hand-built cells', () => {
     expect(s.lift.value).toBeCloseTo(0.075, 12);
     expect(s.lift.over).toEqual({ A: 'a1' });
     expect(d.counts.folded).toBe(3);
+    // the same cells in another order (a multi-threaded scan returns them in any order): the same output
+    const reversed = run(cross({ A: ['a0', 'a1'], B: ['b0', 'b1', 'b2'] }, (k) => (k.A === 'a1' && k.B !== 'b0' ? 0.2 : 0.05)).reverse(), { depth: 2 });
+    expect(reversed.slices.map((x) => [x.label, x.rank, x.explained_by])).toEqual(d.slices.map((x) => [x.label, x.rank, x.explained_by]));
   });
 
   it('a child explained by one parent but not the other is not listed', () => {

@@ -96,3 +96,27 @@ describe('discover: bad options', () => {
     });
   }
 });
+
+describe('discover finds what the demo plants (src/demo/scenario.ts DEMO_PLANTS: our own planted truth)', () => {
+  for (const depth of ['2', '3']) {
+    it(`depth ${depth}: the four plants and nothing else; the S6 · dome interaction with exactly its two conditions`, async () => {
+      const r = await runCli([...SAMPLE, '--format', 'json', '--depth', depth]);
+      expect(r.code).toBe(0);
+      const d = JSON.parse(r.stdout) as Discovery;
+      const byLabel = Object.fromEntries(d.slices.map((s) => [s.label, s]));
+      // planted: S5 mismatch, low-angle variance, QFN bias (one column each) and S6 × dome bias (a pure
+      // interaction: neither single column has a main effect)
+      expect(Object.keys(byLabel).sort()).toEqual(['lighting=low-angle', 'package=QFN', 'station=S5', 'station=S6 · lighting=dome']);
+      expect(byLabel['station=S6 · lighting=dome'].conditions).toEqual({ station: 'S6', lighting: 'dome' });
+      expect(byLabel['station=S6 · lighting=dome'].part).toBe('bias');
+      expect(byLabel['package=QFN'].part).toBe('bias');
+      expect(byLabel['station=S5'].part).toBe('mismatch');
+      expect(byLabel['lighting=low-angle'].part).toBe('variance');
+      // the pair is the first slice of more than one condition; the one-column plants rank above it
+      // because they give back more overall dev error (the ranking key), not because they are simpler
+      const pair = byLabel['station=S6 · lighting=dome'];
+      expect(d.slices.filter((s) => Object.keys(s.conditions).length > 1)[0].label).toBe(pair.label);
+      expect(pair.part_headroom.lo).toBeLessThan(byLabel['lighting=low-angle'].part_headroom.lo);
+    });
+  }
+});
