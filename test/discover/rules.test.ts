@@ -8,10 +8,10 @@
  */
 import { describe, expect, it } from 'vitest';
 import { discover } from '../../src/discover/search.js';
-import { liftOf } from '../../src/discover/lift.js';
+import { liftOf, type Decomposed } from '../../src/discover/lift.js';
 import { restOf } from '../../src/discover/rest.js';
 import { DISCOVER_DEFAULTS, type DiscoverOptions, type Discovery } from '../../src/discover/types.js';
-import { rollupSlices } from '../../src/slices/rollup.js';
+import { rollupSlices, type SliceStats } from '../../src/slices/rollup.js';
 import { draft, triage } from '../../src/triage/triage.js';
 import { DEFAULT_TRIAGE_OPTIONS } from '../../src/triage/types.js';
 import type { ReportContext } from '../../src/triage/report.js';
@@ -39,6 +39,12 @@ function cross(values: Record<string, string[]>, errorOf: (key: Record<string, s
 function run(records: CellRecord[], options: Partial<DiscoverOptions> = {}): Discovery {
   const cells = cellsOf(records);
   return discover(cells, cells.columns, CONTEXT, DEFAULT_TRIAGE_OPTIONS, { ...DISCOVER_DEFAULTS, depth: 3, all: true, top: 100, ...options });
+}
+
+/** A slice decomposed as triage does (6 cells' dev rows in all), for a lift. */
+function dec(s: SliceStats): Decomposed {
+  const r = draft(s, 6 * N, new Set(['train', 'dev'] as const), DEFAULT_TRIAGE_OPTIONS, null);
+  return { stats: s, error: r.error, floor: r.floor };
 }
 
 const listed = (d: Discovery) => d.slices.filter((s) => s.explained_by.length === 0).map((s) => s.label);
@@ -101,11 +107,6 @@ describe('discover on hand-built cells', () => {
     const [a1] = rollupSlices(cells, ['A']).filter((s) => s.key.A === 'a1');
     const [b1] = rollupSlices(cells, ['B']).filter((s) => s.key.B === 'b1');
     const [c] = rollupSlices(cells, ['A', 'B']).filter((s) => s.key.A === 'a1' && s.key.B === 'b1');
-    const present = new Set(['train', 'dev'] as const);
-    const dec = (s: typeof c) => {
-      const r = draft(s, 6 * N, present, DEFAULT_TRIAGE_OPTIONS, null);
-      return { stats: s, error: r.error, floor: r.floor };
-    };
     // lift over the rest of A=a1: bias 10 − 10 = 0; over the rest of B=b1: 10 − 0 = 10 points (hand arithmetic)
     expect(liftOf('bias', dec(c), dec(restOf(a1, c)), false, 0.95)!.value).toBeCloseTo(0, 12);
     expect(liftOf('bias', dec(c), dec(restOf(b1, c)), false, 0.95)!.value).toBeCloseTo(0.1, 12);
@@ -144,11 +145,6 @@ describe('discover on hand-built cells', () => {
     const cells = cellsOf(records);
     const [a1] = rollupSlices(cells, ['A']).filter((s) => s.key.A === 'a1');
     const [c] = rollupSlices(cells, ['A', 'B']).filter((s) => s.key.A === 'a1' && s.key.B === 'b0');
-    const present = new Set(['train', 'dev'] as const);
-    const dec = (s: typeof c) => {
-      const r = draft(s, 6 * N, present, DEFAULT_TRIAGE_OPTIONS, null);
-      return { stats: s, error: r.error, floor: r.floor };
-    };
     // a1·b0: bias 5 points (significant); the rest of A=a1 has bias 10: lift −5 points (hand arithmetic)
     const lift = liftOf('bias', dec(c), dec(restOf(a1, c)), false, 0.95)!;
     expect(lift.value).toBeCloseTo(-0.05, 12);
