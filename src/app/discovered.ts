@@ -137,9 +137,10 @@ export function checkDiscoveryColumns(path: string, saved: SavedDiscovery, input
  * @param saved the checked discovery
  * @param cells the analysis' cells (their slice columns and values)
  * @param run the run the analysis reports (null: the input has no runs)
+ * @param binned the slice columns cut into bins (a value there depends on --bins and --bin-method)
  * @throws FloorgapError `found.json: slices[2] ("sharpness=[0.5, 0.6)"): no row has sharpness="[0.5, 0.6)"; …`
  */
-export function checkDiscoveryCells(path: string, saved: SavedDiscovery, cells: CellTable, run: string | null): void {
+export function checkDiscoveryCells(path: string, saved: SavedDiscovery, cells: CellTable, run: string | null, binned: readonly string[]): void {
   saved.slices.forEach((s, i) => {
     for (const [c, v] of Object.entries(s.conditions)) {
       const ci = cells.columns.indexOf(c);
@@ -151,7 +152,8 @@ export function checkDiscoveryCells(path: string, saved: SavedDiscovery, cells: 
       if (!cells.dicts[ci].includes(v)) {
         const known = cells.dicts[ci];
         const list = known.slice(0, 12).map((x) => JSON.stringify(x)).join(', ') + (known.length > 12 ? ', …' : '');
-        throw error(`${sliceAt(path, s, i)}: no row has ${c}=${JSON.stringify(v)}; the values of ${JSON.stringify(c)} are ${list} (give the --bins and --bin-method the discovery was made with)`);
+        const hint = binned.includes(c) ? ' (give the --bins and --bin-method the discovery was made with)' : '';
+        throw error(`${sliceAt(path, s, i)}: no row has ${c}=${JSON.stringify(v)}; the values of ${JSON.stringify(c)} are ${list}${hint}`);
       }
     }
   });

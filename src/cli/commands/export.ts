@@ -177,7 +177,8 @@ export async function runExport(args: ExportArgs, io: CliIO, argv: readonly stri
       const discovery = discover(loaded.table, loaded.overviewColumns, analysis.context, analysis.options, search, searchProgress(io, args.progress ?? 'auto'));
       found = { slices: discovery.slices, settings: discovery.settings };
     } else if (mode?.kind === 'from') {
-      checkDiscoveryCells(mode.path, saved!, loaded.table, report.run);
+      const binned = loaded.columns.filter((c) => c.kind === 'binned').map((c) => c.name);
+      checkDiscoveryCells(mode.path, saved!, loaded.table, report.run, binned);
       found = { slices: args.top === undefined ? saved!.slices : saved!.slices.slice(0, args.top), settings: saved!.settings };
     }
     const resolve = (c: string) => (source.columns.includes(c) ? c : c === 'label' ? loaded.roles.label ?? c : c === 'pred' ? loaded.roles.pred ?? c : c);
