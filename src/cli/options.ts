@@ -159,7 +159,7 @@ export const OPTIONS = {
   depth: { type: 'number', default: DEFAULTS.depth, describe: 'conditions per slice, 1 to 3 (3 needs the full cross of the slice columns)', group: 'Search:' },
   'min-lift': { type: 'number', default: DEFAULTS.minLift, describe: "smallest gap above every simpler slice's rest (fraction: 0.02 = 2 points)", group: 'Search:' },
   all: { type: 'boolean', default: false, describe: 'also list found slices explained by slices within them (explained_by)', group: 'Search:' },
-  discovered: { type: 'boolean', default: false, describe: 'the slices floorgap discover finds with the same options (--depth, --min-lift, --all)', group: 'Export:' },
+  discovered: { type: 'boolean', default: false, describe: 'the slices floorgap discover finds with the same options, the Search: ones included', group: 'Export:' },
   from: { type: 'string', describe: 'the slices of a saved floorgap discover --format json result, in its order', group: 'Export:' },
   slice: { type: 'string', describe: 'a slice by its key, e.g. "station=S5,lighting=dome" (repeatable; \\, for a comma in a value)', group: 'Export:' },
   splits: { type: 'string', default: DEFAULTS.exportSplits, describe: 'splits whose rows are written: train, train_dev, dev, test', group: 'Export:' },
