@@ -152,13 +152,15 @@ export const OPTIONS = {
   },
   // export
   top: {
-    type: 'number', describe: "the first N slices in the report's order (default: the flagged slices)", group: 'Export:',
+    type: 'number', describe: "the first N slices in the report's order, or of the discovered ones (default: the flagged slices)", group: 'Export:',
     for: { discover: { describe: `discovered slices listed (default ${DEFAULTS.top})`, group: 'Search:' } },
   },
   // discover
   depth: { type: 'number', default: DEFAULTS.depth, describe: 'conditions per slice, 1 to 3 (3 needs the full cross of the slice columns)', group: 'Search:' },
   'min-lift': { type: 'number', default: DEFAULTS.minLift, describe: "smallest gap above every simpler slice's rest (fraction: 0.02 = 2 points)", group: 'Search:' },
   all: { type: 'boolean', default: false, describe: 'also list found slices explained by slices within them (explained_by)', group: 'Search:' },
+  discovered: { type: 'boolean', default: false, describe: 'the slices floorgap discover finds with the same options, the Search: ones included', group: 'Export:' },
+  from: { type: 'string', describe: 'the slices of a saved floorgap discover --format json result, in its order', group: 'Export:' },
   slice: { type: 'string', describe: 'a slice by its key, e.g. "station=S5,lighting=dome" (repeatable; \\, for a comma in a value)', group: 'Export:' },
   splits: { type: 'string', default: DEFAULTS.exportSplits, describe: 'splits whose rows are written: train, train_dev, dev, test', group: 'Export:' },
   'errors-only': { type: 'boolean', default: false, describe: 'only rows the model got wrong', group: 'Export:' },
@@ -201,7 +203,7 @@ export const COMMAND_OPTIONS: Readonly<Record<Command, readonly OptionName[]>> =
   discover: [...ANALYSIS.filter((o) => o !== 'by'), 'depth', 'min-lift', 'top', 'all', 'format'],
   explore: [...ANALYSIS, 'format', 'ascii'],
   check: [...ANALYSIS, 'max-bias', 'max-variance', 'max-mismatch', 'max-dev-error', 'strict', 'baseline', 'format', 'junit'],
-  export: [...ANALYSIS, 'out', 'top', 'slice', 'splits', 'errors-only', 'limit-per-slice', 'raw', 'force'],
+  export: [...ANALYSIS, 'out', 'top', 'slice', 'discovered', 'from', 'depth', 'min-lift', 'all', 'splits', 'errors-only', 'limit-per-slice', 'raw', 'force'],
   // the options that shape cells, and where and how the query runs
   sql: [
     'files',

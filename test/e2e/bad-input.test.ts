@@ -5,7 +5,7 @@
  * project's contract (README "Exit codes", docs/reliability.md). Expected numbers come from how each
  * fixture is built (make.mjs: 40 train and 40 dev rows, one error in every 4 rows).
  */
-import { mkdtempSync, rmSync, writeFileSync } from 'node:fs';
+import { existsSync, mkdtempSync, readdirSync, rmSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
@@ -131,6 +131,40 @@ describe.concurrent('bad files: exit 2 and one line naming what is wrong', () =>
       await expectError(args, message);
     });
   }
+});
+
+describe.concurrent('export --from a bad saved discovery: exit 2, one line, nothing written', () => {
+  let dir: string;
+  beforeAll(() => {
+    dir = mkdtempSync(join(tmpdir(), 'floorgap-bad-from-'));
+  });
+  afterAll(() => rmSync(dir, { recursive: true, force: true }));
+  const expected = 'expected a discovery saved with floorgap discover --format json \\(schema floorgap\\.discover\\/1\\)$';
+  const cases: [string, string, RegExp][] = [
+    ['a discovery cut short: not JSON', f('discovery-cut.json'), new RegExp(`discovery-cut\\.json: not valid JSON \\(.*\\); ${expected}`)],
+    ['a saved report, not a discovery', f('baseline-report.json'), new RegExp(`baseline-report\\.json: a JSON document with schema "floorgap\\.report/1"; ${expected}`)],
+    ['a folder', BAD, new RegExp(`test/fixtures/bad: is a folder; ${expected}`)],
+    ['a file that is not there', f('no-such-discovery.json'), new RegExp(`no-such-discovery\\.json: no such file; ${expected}`)],
+    ['a slice found on no known part', f('discovery-bad-part.json'), /discovery-bad-part\.json: slices\[0\]\.part: expected "bias", "variance" or "mismatch", got "noise"$/],
+    ['a condition on a column the input does not have', f('discovery-unknown-column.json'), /discovery-unknown-column\.json: slices\[0\] \("conveyor=C2"\): no column "conveyor"; the columns are "id", "split", "station", "package", "label", "pred", "weight"$/],
+    ['a condition on a value no row has', f('discovery-no-row.json'), /discovery-no-row\.json: slices\[0\] \("station=S9"\): no row has station="S9"; the values of "station" are "S1", "S2", "S3", "S4"$/],
+  ];
+  for (const [name, from, message] of cases) {
+    it(name, async () => {
+      const out = join(dir, `${name.replace(/\W+/g, '-')}.csv`);
+      await expectError(['export', f('valid.csv'), '--from', from, '--out', out, '--no-cache'], message);
+      expect(existsSync(out)).toBe(false);
+      expect(readdirSync(dir).filter((n) => n.includes(name.replace(/\W+/g, '-')))).toEqual([]);
+    });
+  }
+
+  it('the hand-made discovery they are cut from is read: the rows of station=S1', async () => {
+    const out = join(dir, 'valid-from.csv');
+    const r = await runCli(['export', f('valid.csv'), '--from', f('discovery-valid.json'), '--out', out, '--no-cache']);
+    expect(r.code, r.stderr).toBe(0);
+    // make.mjs: station S1 is row i % 4 == 0, 10 of the 40 train rows and 10 of the 40 dev rows
+    expect(r.stdout).toMatch(/^wrote 20 rows of 1 slice to /);
+  });
 });
 
 describe.concurrent('awkward but valid files: the right report', () => {

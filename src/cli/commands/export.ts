@@ -8,6 +8,11 @@ import { namedGrouping, parseSliceKey, selectSlices, type ChosenSlice, type Name
 import { VERSION } from '../../core/version.js';
 import { error } from '../../core/errors.js';
 import { analysisReads, analyzeWith, withDuck } from '../../app/analysis.js';
+import { checkDiscoveryCells, checkDiscoveryColumns, exportSlicesOf, readDiscovery, type SavedDiscovery } from '../../app/discovered.js';
+import { discover } from '../../discover/search.js';
+import { DISCOVER_DEFAULTS, type DiscoveredSlice, type DiscoverSettings } from '../../discover/types.js';
+import type { ExportSlice } from '../../rows/export-sql.js';
+import { searchProgress } from '../progress.js';
 import type { CliIO } from '../io.js';
 import { writeOut } from '../io.js';
 import { analysisHooks, analysisRequest, toLoadOptions, type AnalysisArgs } from '../options.js';
@@ -19,6 +24,13 @@ export interface ExportArgs extends AnalysisArgs {
   out: string;
   top?: number;
   slice?: string | string[];
+  /** --discovered: the slices `floorgap discover` finds with the same options */
+  discovered?: boolean;
+  /** --from F: the slices of a saved discovery */
+  from?: string;
+  depth?: number;
+  'min-lift'?: number;
+  all?: boolean;
   splits: string;
   'errors-only': boolean;
   'limit-per-slice'?: number;
@@ -50,6 +62,37 @@ export function parseSplits(text: string): Split[] {
 function asList(v: string | string[] | undefined): string[] {
   if (v === undefined) return [];
   return (Array.isArray(v) ? v : [v]).map(String);
+}
+
+/** How discovered slices are chosen: searched now, or read from a saved discovery. */
+type DiscoveredMode = { readonly kind: 'discovered' } | { readonly kind: 'from'; readonly path: string };
+
+/** The search options, as typed on the command line (a project file sets none of them). */
+const SEARCH_FLAG = /^--(depth|min-lift|minLift|all|no-all)(=|$)/;
+
+/**
+ * `--discovered` or `--from F`, checked against the flags that choose slices otherwise; null for neither.
+ * @param argv the command line as given: search options typed with --from are refused (they would do nothing)
+ */
+function discoveredModeOf(args: ExportArgs, argv: readonly string[]): DiscoveredMode | null {
+  const from = args.from === undefined ? undefined : String(args.from);
+  if (args.discovered === true && from !== undefined) {
+    throw error('--from and --discovered choose slices in two ways (a saved discovery, or a search now); give one of them');
+  }
+  const typed = argv.find((a) => SEARCH_FLAG.test(a))?.split('=')[0];
+  if (from === undefined && args.discovered !== true) {
+    if (typed !== undefined) throw error(`${typed} is an option of the search: give it with --discovered`);
+    return null;
+  }
+  const flag = from === undefined ? '--discovered' : '--from';
+  if (asList(args.slice).length > 0) throw error(`${flag} and --slice choose slices in two ways; give one of them`);
+  if (args.by !== undefined) throw error(`${flag}: discovered slices are conditions on the slice columns (--slice-cols), not a --by grouping; leave out --by`);
+  if (from === undefined) return { kind: 'discovered' };
+  if (from.trim() === '') throw error('--from: expected a file saved with floorgap discover --format json, e.g. --from found.json');
+  if (typed !== undefined) {
+    throw error(`--from takes the slices of a saved search, so ${typed} does nothing; leave it out, or search again with --discovered`);
+  }
+  return { kind: 'from', path: from };
 }
 
 /**
@@ -95,7 +138,11 @@ export async function runExport(args: ExportArgs, io: CliIO, argv: readonly stri
   const format = exportFormatFor(out);
   const splits = parseSplits(args.splits);
   const limit = args['limit-per-slice'] ?? null;
-  const { selection, byColumns, named } = selectionOf(args);
+  const mode = discoveredModeOf(args, argv);
+  const { selection, byColumns, named } = mode ? { selection: { kind: 'flagged' } as Selection, byColumns: undefined, named: [] } : selectionOf(args);
+  // a saved discovery is read and checked before any work
+  const saved: SavedDiscovery | null = mode?.kind === 'from' ? await readDiscovery(mode.path) : null;
+  const fromFile = mode?.kind === 'from' ? await fingerprint(mode.path) : null;
   const analysisArgs: AnalysisArgs = byColumns ? { ...args, byColumns } : args;
   const request = analysisRequest(analysisArgs, io);
   const loadOptions = toLoadOptions(analysisArgs);
@@ -120,18 +167,34 @@ export async function runExport(args: ExportArgs, io: CliIO, argv: readonly stri
         }
       }
     }
-    const { report, loaded } = await analyzeWith(duck, request, analysisHooks(analysisArgs, io));
+    if (mode?.kind === 'from') checkDiscoveryColumns(mode.path, saved!, source.columns);
+    const analysis = await analyzeWith(duck, request, analysisHooks(analysisArgs, io));
+    const { report, loaded } = analysis;
+    // discovered slices: a search on the same cells, as floorgap discover runs it, or a saved one
+    let found: { slices: readonly DiscoveredSlice[]; settings: DiscoverSettings } | null = null;
+    if (mode?.kind === 'discovered') {
+      const search = { depth: args.depth ?? DISCOVER_DEFAULTS.depth, minLift: args['min-lift'] ?? DISCOVER_DEFAULTS.minLift, top: args.top ?? DISCOVER_DEFAULTS.top, all: args.all === true };
+      const discovery = discover(loaded.table, loaded.overviewColumns, analysis.context, analysis.options, search, searchProgress(io, args.progress ?? 'auto'));
+      found = { slices: discovery.slices, settings: discovery.settings };
+    } else if (mode?.kind === 'from') {
+      const binned = loaded.columns.filter((c) => c.kind === 'binned').map((c) => c.name);
+      checkDiscoveryCells(mode.path, saved!, loaded.table, report.run, binned);
+      found = { slices: args.top === undefined ? saved!.slices : saved!.slices.slice(0, args.top), settings: saved!.settings };
+    }
     const resolve = (c: string) => (source.columns.includes(c) ? c : c === 'label' ? loaded.roles.label ?? c : c === 'pred' ? loaded.roles.pred ?? c : c);
     const resolved: Selection =
       selection.kind === 'named'
         ? { kind: 'named', slices: selection.slices.map((s) => ({ text: s.text, pairs: s.pairs.map(([c, v]) => [resolve(c), v] as const) })) }
         : selection;
-    const chosen = selectSlices(report, resolved);
+    const chosen = found ? [] : selectSlices(report, resolved);
+    const exported: ExportSlice[] = found
+      ? exportSlicesOf(found.slices)
+      : chosen.map((c) => ({ key: c.slice.key, label: c.slice.label, focus: c.slice.focus, rank: c.slice.rank, reason: c.reason }));
     const query: ExportQuery = {
       columns: loaded.source.columns,
       plan: { roles: loaded.roles, splitColumn: loaded.roles.split ?? loaded.source.splitColumn!, where: loaded.plan.where, annotators: loaded.annotators },
       sliceColumns: loaded.columns,
-      slices: chosen.map((c) => ({ key: c.slice.key, label: c.slice.label, focus: c.slice.focus, rank: c.slice.rank, reason: c.reason })),
+      slices: exported,
       splits,
       errorsOnly: args['errors-only'],
       limitPerSlice: limit,
@@ -157,7 +220,7 @@ export async function runExport(args: ExportArgs, io: CliIO, argv: readonly stri
         version: VERSION,
         argv: ['floorgap', ...argv],
         selection: {
-          mode: selection.kind,
+          mode: mode?.kind ?? selection.kind,
           top: selection.kind === 'top' ? selection.n : null,
           named: named.map((s) => s.text),
           chosen_in: args.chosenIn ?? 'command line',
@@ -167,9 +230,13 @@ export async function runExport(args: ExportArgs, io: CliIO, argv: readonly stri
           limit_per_slice: limit,
           raw: args.raw,
           run: report.run,
+          search: found?.settings ?? null,
+          from: fromFile,
         },
         options: Object.fromEntries(SHAPING.filter((k) => analysisArgs[k] !== undefined).map((k) => [k, analysisArgs[k]])),
-        slices: chosen.map((c, i) => manifestSlice(c, (r) => Number(r[`s${i}`] ?? 0), perSplit, selection)),
+        slices: found
+          ? found.slices.map((s, i) => manifestDiscovered(s, exported[i], mode!.kind, perSplit((r) => Number(r[`s${i}`] ?? 0))))
+          : chosen.map((c, i) => manifestSlice(c, (r) => Number(r[`s${i}`] ?? 0), perSplit, selection)),
         rows: { total, ...perSplit((r) => Number(r.rows ?? 0)) },
         columns: [...loaded.source.columns, ...EXPORT_COLUMNS],
         inputs,
@@ -177,13 +244,18 @@ export async function runExport(args: ExportArgs, io: CliIO, argv: readonly stri
       };
     };
     const written = await writeExport(duck, { path: out, format, sql: exportSql(query), force: args.force, manifest, hooks, tempData });
-    if (chosen.length === 0) {
-      const why = selection.kind === 'flagged' ? 'no slice is flagged' : 'the report has no slices';
-      io.stderr.write(`floorgap: ${why}, so no rows were written; choose slices with --top N or --slice KEY\n`);
+    if (exported.length === 0) {
+      if (mode) {
+        const why = mode.kind === 'from' ? `${mode.path} lists no slices` : 'the search found no slices';
+        io.stderr.write(`floorgap: ${sanitize(why)}, so no rows were written\n`);
+      } else {
+        const why = selection.kind === 'flagged' ? 'no slice is flagged' : 'the report has no slices';
+        io.stderr.write(`floorgap: ${why}, so no rows were written; choose slices with --top N or --slice KEY\n`);
+      }
     }
     await writeOut(
       io,
-      `wrote ${total} rows of ${chosen.length} slice${chosen.length === 1 ? '' : 's'} to ${sanitize(written.data)} (manifest ${sanitize(manifestPathFor(out))})\n`,
+      `wrote ${total} rows of ${exported.length} slice${exported.length === 1 ? '' : 's'} to ${sanitize(written.data)} (manifest ${sanitize(manifestPathFor(out))})\n`,
     );
     return 0;
   });
@@ -205,6 +277,26 @@ function manifestSlice(
     chosen: c.chosen === 'top' && selection.kind === 'top' ? `top ${selection.n}` : c.chosen,
     named: c.named,
     reason: c.reason,
+    rows: { total: Object.values(rows).reduce((a, b) => a + b, 0), ...rows },
+  };
+}
+
+/** A discovered slice in the manifest: what every chosen slice records, and the search's numbers. */
+function manifestDiscovered(s: DiscoveredSlice, e: ExportSlice, chosen: DiscoveredMode['kind'], rows: Record<string, number>) {
+  return {
+    rank: s.rank,
+    label: s.label,
+    key: s.conditions,
+    focus: e.focus,
+    flagged: s.flagged,
+    chosen,
+    named: null,
+    reason: e.reason,
+    part: s.part,
+    lift: s.lift,
+    q: s.q,
+    part_headroom: s.part_headroom,
+    explained_by: s.explained_by,
     rows: { total: Object.values(rows).reduce((a, b) => a + b, 0), ...rows },
   };
 }
