@@ -26,6 +26,11 @@ export interface ExportArgs extends AnalysisArgs {
   force: boolean;
   /** set by the explorer, whose marked slices come as `slice` keys; never a flag */
   chosenIn?: 'explorer';
+  /**
+   * set by the explorer for slices it found itself (discovered slices, of any columns): written as
+   * given, with their own focus, rank and reason, while `slice` holds their keys for the manifest; never a flag
+   */
+  chosen?: readonly ChosenSlice[];
 }
 
 /**
@@ -61,6 +66,8 @@ function selectionOf(args: ExportArgs): { selection: Selection; byColumns: strin
   const top = args.top ?? null;
   if (named.length > 0 && top !== null) throw error('--top and --slice choose slices in two ways; give one of them');
   if (named.length === 0) return { selection: top === null ? { kind: 'flagged' } : { kind: 'top', n: top }, byColumns: undefined, named };
+  // slices chosen ahead (the explorer's discovered ones) need no grouping of their own
+  if (args.chosen) return { selection: { kind: 'named', slices: named }, byColumns: undefined, named };
   const grouping = namedGrouping(named);
   if (args.by !== undefined) {
     const by = String(args.by).split(',').map((s) => s.trim()).filter(Boolean);
@@ -126,7 +133,7 @@ export async function runExport(args: ExportArgs, io: CliIO, argv: readonly stri
       selection.kind === 'named'
         ? { kind: 'named', slices: selection.slices.map((s) => ({ text: s.text, pairs: s.pairs.map(([c, v]) => [resolve(c), v] as const) })) }
         : selection;
-    const chosen = selectSlices(report, resolved);
+    const chosen = args.chosen ?? selectSlices(report, resolved);
     const query: ExportQuery = {
       columns: loaded.source.columns,
       plan: { roles: loaded.roles, splitColumn: loaded.roles.split ?? loaded.source.splitColumn!, where: loaded.plan.where, annotators: loaded.annotators },
