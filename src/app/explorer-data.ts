@@ -13,8 +13,28 @@ import { cellsWithin, mergeCells, type CellTable } from '../cells/cell-table.js'
 import { buildReport } from '../triage/report.js';
 import { withReadErrors } from '../read/read-errors.js';
 import { error } from '../core/errors.js';
+import { discoverAsync } from '../discover/search.js';
+import { DISCOVER_DEFAULTS, type DiscoveredSlice } from '../discover/types.js';
+import { signedPoints } from '../render/format.js';
 
 export type { Exporter, ExplorerData };
+
+/** A discovered slice's gap of its part. */
+function partGap(s: DiscoveredSlice) {
+  return s.part === 'bias' ? s.gaps.avoidable_bias : s.part === 'variance' ? s.gaps.variance : s.gaps.mismatch;
+}
+
+/**
+ * Why a discovered slice's rows were exported: its part's gap and its lift over the rest of its weakest
+ * parent, in points.
+ * @example
+ * foundReason(s); // => 'bias +12.3 pts, lift +10.1 over the rest of station=S2' ('… over all other rows' for one condition)
+ */
+export function foundReason(s: DiscoveredSlice): string {
+  const over = Object.entries(s.lift.over).map(([k, v]) => `${k}=${v}`);
+  const where = over.length > 0 ? `the rest of ${over.join(' · ')}` : 'all other rows';
+  return `${s.part} ${signedPoints(partGap(s)?.value)} pts, lift ${signedPoints(s.lift.value)} over ${where}`;
+}
 
 /**
  * Wraps an analysis for the explorer. `duck` stays open on the rows until `close`.
@@ -64,6 +84,19 @@ export function explorerData(duck: Duck | null, analysis: Analysis, exporter: Ex
     async exportSlices(slices, path, force) {
       if (!exporter) return 'export needs the rows (the input is ready-made cells)';
       return exporter(slices, path, force);
+    },
+    discover(onProgress, signal) {
+      // the loaded cells, as `floorgap discover` searches them (never those a regroup scanned in)
+      return discoverAsync(loaded.table, loaded.overviewColumns, context, options, DISCOVER_DEFAULTS, { onProgress, signal });
+    },
+    async exportFound(slices, path, force) {
+      if (!exporter) return 'export needs the rows (the input is ready-made cells)';
+      return exporter(
+        slices.map((s) => ({ ...s, focus: s.part })),
+        path,
+        force,
+        slices.map(foundReason),
+      );
     },
   };
 }

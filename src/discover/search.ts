@@ -77,6 +77,64 @@ export function discover(
   d: DiscoverOptions,
   onProgress?: DiscoverProgress,
 ): Discovery {
+  const steps = searchSteps(cells, columns, context, o, d);
+  for (;;) {
+    const step = steps.next();
+    if (step.done) return step.value;
+    if (step.value) onProgress?.(step.value.done, step.value.total);
+  }
+}
+
+/** How {@link discoverAsync} reports and can be stopped. */
+export interface DiscoverAsyncOptions {
+  readonly onProgress?: DiscoverProgress;
+  /** stops the search at its next step; the promise then rejects with the signal's reason */
+  readonly signal?: AbortSignal;
+  /** how the search yields between steps; the default gives the event loop a turn (setImmediate) */
+  readonly pause?: () => Promise<void>;
+}
+
+const nextTurn = () => new Promise<void>((r) => setImmediate(r));
+
+/**
+ * The same search as {@link discover}, giving the event loop a turn after each column set's roll-up
+ * (and after the tests), so a screen stays responsive while it runs; stopped early by `signal`.
+ * @example
+ * await discoverAsync(cells, ['station', 'lighting'], ctx, DEFAULT_TRIAGE_OPTIONS, DISCOVER_DEFAULTS, { signal }); // => the Discovery discover() returns
+ */
+export async function discoverAsync(
+  cells: CellTable,
+  columns: readonly string[],
+  context: ReportContext,
+  o: TriageOptions,
+  d: DiscoverOptions,
+  options: DiscoverAsyncOptions = {},
+): Promise<Discovery> {
+  const { onProgress, signal, pause = nextTurn } = options;
+  signal?.throwIfAborted();
+  const steps = searchSteps(cells, columns, context, o, d);
+  // a stopped search's generator holds nothing but memory: it is left to the garbage collector
+  for (;;) {
+    const step = steps.next();
+    if (step.done) return step.value;
+    if (step.value) onProgress?.(step.value.done, step.value.total);
+    await pause();
+    signal?.throwIfAborted();
+  }
+}
+
+/**
+ * The search itself, one step at a time: it yields after each column set's roll-up (with how many of
+ * them are done) and after the heavier later phases (null), and returns the discovery. `discover`
+ * runs it straight through, `discoverAsync` with a turn of the event loop between steps.
+ */
+function* searchSteps(
+  cells: CellTable,
+  columns: readonly string[],
+  context: ReportContext,
+  o: TriageOptions,
+  d: DiscoverOptions,
+): Generator<{ done: number; total: number } | null, Discovery, void> {
   checkDiscoverOptions(cells, columns, d);
   const run = chooseRun(cells, o.run);
   const overall = rollupSlices(cells, [], run)[0] ?? EMPTY;
@@ -88,10 +146,10 @@ export function discover(
   // every slice of every column set, one arquero roll-up per set
   const sets = columnSets(columns, d.depth);
   const groups: { by: string[]; slices: SliceStats[] }[] = [];
-  sets.forEach((by, i) => {
+  for (const [i, by] of sets.entries()) {
     groups.push({ by, slices: rollupSlices(cells, by, run) });
-    onProgress?.(i + 1, sets.length);
-  });
+    yield { done: i + 1, total: sets.length };
+  }
   const extras = sliceExtras(groups, overall, o, null);
 
   // thin, skipped by the bound, or examined; a slice under a skipped one is skipped too (its bound is no larger)
@@ -112,6 +170,7 @@ export function discover(
     extras,
   );
   const byId = new Map(tri.slices.map((r) => [sliceId(r.key), r]));
+  yield null;
 
   // the family: one-sided intersection–union p-values, max(p_gap, p_lift over every parent)
   const family: number[] = [];
@@ -168,6 +227,7 @@ export function discover(
   const skipped = [...all.values()].filter((c) => c.status === 'skipped').length;
   for (let i = 0; i < skipped * parts.length; i++) family.push(1);
   const q = (o.fdrMethod === 'by' ? benjaminiYekutieli : benjaminiHochberg)(family);
+  yield null;
 
   // found: significant, the gap's interval above 0, lift over every parent's rest ≥ min-lift, headroom ≥ min-headroom
   interface Found {

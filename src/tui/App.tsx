@@ -3,8 +3,11 @@ import { useCallback, useEffect, useMemo, useReducer } from 'react';
 import { Header } from './components/Header.js';
 import { KeyHints } from './components/KeyHints.js';
 import { StatusBar } from './components/StatusBar.js';
+import type { DiscoveredSlice } from '../discover/types.js';
 import type { ExplorerData } from './data.js';
+import { searchNote } from './found.js';
 import { useDetailData } from './hooks/use-detail-data.js';
+import { useDiscovery } from './hooks/use-discovery.js';
 import { useExit } from './hooks/use-exit.js';
 import { useExplorerData, type LoadProgress } from './hooks/use-explorer-data.js';
 import { useExplorerKeys } from './hooks/use-explorer-keys.js';
@@ -13,6 +16,7 @@ import { useTerminalSize } from './hooks/use-terminal-size.js';
 import { clampCursor, MIN_COLUMNS, screenLayout } from './model.js';
 import { DetailPane } from './screens/DetailPane.js';
 import { FailureScreen } from './screens/FailureScreen.js';
+import { FoundTableScreen } from './screens/FoundTableScreen.js';
 import { GroupPicker } from './screens/GroupPicker.js';
 import { HelpScreen } from './screens/HelpScreen.js';
 import { LoadingScreen } from './screens/LoadingScreen.js';
@@ -66,8 +70,10 @@ export function App(props: AppProps) {
     exit,
     failed,
   });
-  const { report, mode, sortKey, descending, filter } = state;
-  const shown = useMemo(() => shownSlices({ report, filter, sortKey, descending }), [report, filter, sortKey, descending]);
+  const { report, mode, sortKey, descending, filter, view, discovery } = state;
+  const found = view === 'found';
+  const shown = useMemo(() => shownSlices({ report, filter, sortKey, descending, view, discovery }), [report, filter, sortKey, descending, view, discovery]);
+  const ranks = useMemo(() => new Map((discovery?.slices ?? []).filter((s) => s.rank > 0).map((s) => [s.label, s.rank])), [discovery]);
   const cursor = clampCursor(state.cursor, shown.length);
   const selected = shown[cursor];
   const tableRows = Math.max(1, layout.body - 1); // the body less the table's header line
@@ -76,6 +82,8 @@ export function App(props: AppProps) {
     dispatch({ type: 'page', page: tableRows });
   }, [tableRows]);
   const extras = useDetailData({ open: mode === 'detail', data, selected, drillIndex: state.drillIndex, dispatch, failed });
+  useDiscovery({ data, searching: state.search !== null, dispatch, failed });
+  const foundDetail = useMemo(() => (found && selected ? { slice: selected as DiscoveredSlice, ranks } : null), [found, selected, ranks]);
   const onScrollLimit = useCallback((max: number) => dispatch({ type: 'detail-limit', max }), []);
   useExplorerKeys({ dispatch, exit, failure, defaultExportPath: props.defaultExportPath, fileExists: props.fileExists });
 
@@ -102,6 +110,22 @@ export function App(props: AppProps) {
         scroll={state.detailScroll}
         onScrollLimit={onScrollLimit}
         color={props.color}
+        found={foundDetail}
+      />
+    );
+  } else if (found) {
+    body = (
+      <FoundTableScreen
+        slices={shown as DiscoveredSlice[]}
+        discovery={discovery}
+        search={state.search}
+        filter={filter}
+        cursor={cursor}
+        start={start}
+        height={tableRows}
+        marked={state.marked}
+        width={width}
+        color={props.color}
       />
     );
   } else {
@@ -124,7 +148,7 @@ export function App(props: AppProps) {
   }
   return (
     <Box flexDirection="column" width={width} height={layout.lines}>
-      {layout.header ? <Header report={report} width={width} color={props.color} /> : null}
+      {layout.header ? <Header report={report} width={width} color={props.color} found={found ? { discovery, search: state.search } : null} /> : null}
       {body}
       <Box flexGrow={1} />
       {layout.status ? (
@@ -133,17 +157,18 @@ export function App(props: AppProps) {
           descending={descending}
           filter={filter}
           shown={shown.length}
-          total={report.slices.length}
+          total={found ? discovery?.slices.length ?? 0 : report.slices.length}
           marked={state.marked.size}
           intervals={state.intervals}
           position={selected ? cursor + 1 : null}
-          note={state.busy ?? state.message}
+          note={state.busy ?? (state.search ? searchNote(state.search) : state.message)}
           width={width}
           ascii={props.ascii}
           color={props.color}
+          found={found}
         />
       ) : null}
-      <KeyHints mode={mode} draft={state.draft} width={width} ascii={props.ascii} color={props.color} />
+      <KeyHints mode={mode} draft={state.draft} width={width} ascii={props.ascii} color={props.color} found={found} />
     </Box>
   );
 }

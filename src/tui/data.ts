@@ -1,4 +1,5 @@
 /** What the explorer's screens ask of its data (app/explorer-data.ts implements it; a fake does in tests). */
+import type { DiscoveredSlice, Discovery } from '../discover/types.js';
 import type { ErrorExample } from '../rows/examples.js';
 import type { Report, SliceReport } from '../triage/types.js';
 
@@ -16,8 +17,19 @@ export interface ExplorerData {
   examples(slice: SliceReport): Promise<ErrorExample[] | string>;
   /** writes the rows of the slices to `path`; returns a one-line message */
   exportSlices(slices: readonly SliceReport[], path: string, force: boolean): Promise<string>;
+  /**
+   * the discovered slices of the loaded cells (the default search options, the explorer's triage
+   * options), searched in steps that leave the screen responsive; stops (rejects) once `signal` aborts
+   */
+  discover(onProgress: (done: number, total: number) => void, signal: AbortSignal): Promise<Discovery>;
+  /** writes the rows of discovered slices to `path`, each with its part as focus and why it was found; a one-line message */
+  exportFound(slices: readonly DiscoveredSlice[], path: string, force: boolean): Promise<string>;
 }
 
-/** Exports through the export command's own code (injected, so the explorer stays free of the CLI). */
-export type Exporter = (slices: readonly SliceReport[], path: string, force: boolean) => Promise<string>;
+/**
+ * Exports through the export command's own code (injected, so the explorer stays free of the CLI).
+ * Without `reasons` the slices are the report's, chosen by their keys; with them, each slice is written
+ * as given (its key, focus and rank, of any columns) with its reason.
+ */
+export type Exporter = (slices: readonly SliceReport[], path: string, force: boolean, reasons?: readonly string[]) => Promise<string>;
 

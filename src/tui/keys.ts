@@ -6,13 +6,14 @@ export const KEYS: readonly (readonly [string, string])[] = [
   ['PgUp PgDn  Home End', 'move a page, to the top, to the bottom'],
   ['← →', 'in the detail pane: previous / next slice'],
   ['Enter', 'open or close the detail pane of the selected slice'],
-  ['s', 'sort by the next column (report order, headroom, yield, bias, variance, mismatch, dev error, rows, name)'],
+  ['f', 'discovered slices: switch the table to the slices the search found, and back (the first time, it searches in the background)'],
+  ['s', 'sort by the next column (report order, headroom, yield, bias, variance, mismatch, dev error, rows, name; discovered: rank, headroom, lift, name)'],
   ['r', 'reverse the sort'],
   ['h', 'sort by headroom, largest first'],
-  ['g', 'regroup: pick slice columns (space toggles, Enter applies, none = overview)'],
+  ['g', 'regroup: pick slice columns (space toggles, Enter applies, none = overview); shows the grouping'],
   ['/', 'filter: text in the label, focus=variance, flagged, col=value (Esc clears)'],
   ['space', 'mark or unmark the selected slice'],
-  ['e', 'export the rows of the marked slices (the flagged ones when none is marked)'],
+  ['e', 'export the rows of the marked slices (the flagged ones when none is marked; discovered: all listed)'],
   ['d', 'in the detail pane: break the slice down by the next column'],
   ['i', 'show or hide interval half-widths in the table'],
   ['?', 'this help'],
@@ -20,8 +21,11 @@ export const KEYS: readonly (readonly [string, string])[] = [
 ];
 
 /** The one-line hint shown at the bottom of the table. */
-export const HINT = '↑↓ move  ⏎ detail  s sort  r rev  h headroom  g group  / filter  ␣ mark  e export  ? help  q quit';
-export const HINT_ASCII = 'arrows move  Enter detail  s sort  r rev  h headroom  g group  / filter  space mark  e export  ? help  q quit';
+export const HINT = '↑↓ move  ⏎ detail  f found  s sort  r rev  h headroom  g group  / filter  ␣ mark  e export  ? help  q quit';
+export const HINT_ASCII = 'arrows move  Enter detail  f found  s sort  r rev  h headroom  g group  / filter  space mark  e export  ? help  q quit';
+/** The hint under the discovered table: `f` goes back to the grouping. */
+export const FOUND_HINT = '↑↓ move  ⏎ detail  f back  s sort  r rev  / filter  ␣ mark  e export  g group  ? help  q quit';
+export const FOUND_HINT_ASCII = 'arrows move  Enter detail  f back  s sort  r rev  / filter  space mark  e export  g group  ? help  q quit';
 export const DETAIL_HINT = '↑↓ scroll  ←→ prev/next slice  d breakdown  ⏎ back  ? help  q quit';
 export const DETAIL_HINT_ASCII = 'up/down scroll  left/right slice  d breakdown  Enter back  ? help  q quit';
 

@@ -6,11 +6,26 @@
 import { count, NULL_MARK, points, signedPoints } from '../render/format.js';
 import { sanitize } from '../terminal/sanitize.js';
 import { pad } from '../terminal/width.js';
+import type { DiscoveredSlice } from '../discover/types.js';
 import type { Focus, SliceReport } from '../triage/types.js';
 
 /** Sort columns, in the order the sort key cycles through them. */
 export const SORT_KEYS = ['rank', 'headroom', 'yield', 'bias', 'variance', 'mismatch', 'dev', 'rows', 'name'] as const;
-export type SortKey = (typeof SORT_KEYS)[number];
+/** The discovered table's sort columns: rank (the lower end of the part headroom), its point value, the lift, the name. */
+export const FOUND_SORT_KEYS = ['rank', 'headroom', 'lift', 'name'] as const;
+export type SortKey = (typeof SORT_KEYS)[number] | (typeof FOUND_SORT_KEYS)[number];
+
+/** How the status line names the discovered table's sorts. */
+export const FOUND_SORT_LABEL: Readonly<Record<(typeof FOUND_SORT_KEYS)[number], string>> = {
+  rank: 'rank',
+  headroom: 'headroom (point)',
+  lift: 'lift',
+  name: 'name',
+};
+
+function isFound(s: SliceReport): s is DiscoveredSlice {
+  return 'part_headroom' in s;
+}
 
 export const SORT_LABEL: Readonly<Record<SortKey, string>> = {
   rank: 'report order',
@@ -22,6 +37,7 @@ export const SORT_LABEL: Readonly<Record<SortKey, string>> = {
   dev: 'dev error',
   rows: 'dev rows',
   name: 'name',
+  lift: 'lift',
 };
 
 function sortValue(s: SliceReport, key: SortKey): number | string | null {
@@ -29,7 +45,10 @@ function sortValue(s: SliceReport, key: SortKey): number | string | null {
     case 'rank':
       return -s.rank;
     case 'headroom':
-      return s.headroom?.total ?? null;
+      // a discovered slice by the headroom of the part it was found on
+      return isFound(s) ? s.part_headroom.value : s.headroom?.total ?? null;
+    case 'lift':
+      return isFound(s) ? s.lift.value : null;
     case 'yield':
       return s.yield;
     case 'bias':
@@ -54,7 +73,7 @@ function sortValue(s: SliceReport, key: SortKey): number | string | null {
  * @example
  * sortSlices(report.slices, 'headroom', true)[0].label; // => the slice with the most headroom
  */
-export function sortSlices(slices: readonly SliceReport[], key: SortKey, descending: boolean): SliceReport[] {
+export function sortSlices<T extends SliceReport>(slices: readonly T[], key: SortKey, descending: boolean): T[] {
   const dir = descending ? -1 : 1;
   return [...slices].sort((a, b) => {
     const va = sortValue(a, key);

@@ -4,15 +4,31 @@
  * Side effects (regroup, export, quit) are requested in `request` and carried out by the App.
  */
 import type { Key } from 'ink';
+import type { DiscoveredSlice, Discovery } from '../discover/types.js';
 import type { Report, SliceReport } from '../triage/types.js';
-import { clampCursor, defaultDescending, SORT_KEYS, sliceFilter, sortSlices, type SortKey } from './model.js';
+import { clampCursor, defaultDescending, FOUND_SORT_KEYS, SORT_KEYS, sliceFilter, sortSlices, type SortKey } from './model.js';
 
 export type Mode = 'table' | 'detail' | 'picker' | 'help' | 'filter' | 'export-path' | 'export-confirm';
+
+/** Which slices the table lists: the report's grouping, or the slices the search found. */
+export type View = 'grouping' | 'found';
+
+/** What each view keeps of its own while the other is shown: the cursor, the marks, the sort and the filter. */
+export interface ViewPlace {
+  readonly cursor: number;
+  readonly marked: ReadonlySet<string>;
+  readonly sortKey: SortKey;
+  readonly descending: boolean;
+  readonly filter: string;
+}
+
+const FRESH_PLACE: ViewPlace = { cursor: 0, marked: new Set(), sortKey: 'rank', descending: true, filter: '' };
 
 /** Work the App must do for the reducer (the reducer itself stays pure). */
 export type Request =
   | { readonly kind: 'regroup'; readonly by: readonly string[] }
   | { readonly kind: 'export'; readonly path: string; readonly force: boolean; readonly slices: readonly SliceReport[] }
+  | { readonly kind: 'export-found'; readonly path: string; readonly force: boolean; readonly slices: readonly DiscoveredSlice[] }
   | { readonly kind: 'exit'; readonly code: number };
 
 export interface ExplorerState {
@@ -39,6 +55,13 @@ export interface ExplorerState {
   readonly request: Request | null;
   /** increases with every request, so the same request twice still runs twice */
   readonly requestId: number;
+  readonly view: View;
+  /** the view not shown: its place, restored when it comes back */
+  readonly away: ViewPlace;
+  /** the slices the search found, kept for the session once it has run */
+  readonly discovery: Discovery | null;
+  /** the search while it runs (column sets rolled up of all; 0 of 0 before the first), else null */
+  readonly search: { readonly done: number; readonly total: number } | null;
 }
 
 export const initialState: ExplorerState = {
@@ -62,6 +85,10 @@ export const initialState: ExplorerState = {
   page: 10,
   request: null,
   requestId: 0,
+  view: 'grouping',
+  away: FRESH_PLACE,
+  discovery: null,
+  search: null,
 };
 
 /** What the reducer is told. */
@@ -69,15 +96,41 @@ export type Action =
   | { readonly type: 'loaded'; readonly report: Report; readonly columns: readonly string[] }
   | { readonly type: 'regrouped'; readonly report: Report; readonly message: string }
   | { readonly type: 'done'; readonly message: string }
+  | { readonly type: 'search-progress'; readonly done: number; readonly total: number }
+  | { readonly type: 'discovered'; readonly discovery: Discovery }
+  /** the search failed with a FloorgapError (its line); another search may be started */
+  | { readonly type: 'search-failed'; readonly message: string }
   | { readonly type: 'page'; readonly page: number }
   /** the detail pane's largest useful scroll (its lines − the room for them) */
   | { readonly type: 'detail-limit'; readonly max: number }
   | { readonly type: 'key'; readonly input: string; readonly key: Partial<Key>; readonly defaultExportPath: string; readonly fileExists: (path: string) => boolean };
 
-/** The slices on screen: the report's, filtered then sorted. */
-export function shownSlices(state: Pick<ExplorerState, 'report' | 'filter' | 'sortKey' | 'descending'>): SliceReport[] {
+/** The slices on screen: the report's (or in the discovered view, the discovered ones), filtered then sorted. */
+export function shownSlices(state: Pick<ExplorerState, 'report' | 'filter' | 'sortKey' | 'descending' | 'view' | 'discovery'>): SliceReport[] {
+  if (state.view === 'found') return shownFound(state);
   if (!state.report) return [];
   return sortSlices(state.report.slices.filter(sliceFilter(state.filter)), state.sortKey, state.descending);
+}
+
+/** The discovered slices on screen, filtered then sorted ([] before the search has ended). */
+function shownFound(state: Pick<ExplorerState, 'filter' | 'sortKey' | 'descending' | 'discovery'>): DiscoveredSlice[] {
+  if (!state.discovery) return [];
+  return sortSlices(state.discovery.slices.filter(sliceFilter(state.filter)), state.sortKey, state.descending);
+}
+
+/** The place of the view shown. */
+function placeOf(state: ExplorerState): ViewPlace {
+  return { cursor: state.cursor, marked: state.marked, sortKey: state.sortKey, descending: state.descending, filter: state.filter };
+}
+
+/**
+ * Shows the other view, where it was left; the first time the discovered view shows, the search
+ * starts (its hook runs while `search` is set), and it is kept for the session once it has ended.
+ */
+function switchView(state: ExplorerState): ExplorerState {
+  const view: View = state.view === 'found' ? 'grouping' : 'found';
+  const start = view === 'found' && !state.discovery && !state.search;
+  return { ...state, ...state.away, away: placeOf(state), view, mode: 'table', detailScroll: 0, search: start ? { done: 0, total: 0 } : state.search };
 }
 
 /** The selected slice, if any. */
@@ -119,10 +172,25 @@ export function reduce(state: ExplorerState, action: Action): ExplorerState {
   switch (action.type) {
     case 'loaded':
       return { ...state, report: action.report, columns: action.columns, picked: new Set(action.report.by ?? []) };
-    case 'regrouped':
-      return { ...state, report: action.report, marked: new Set(), cursor: 0, detailScroll: 0, busy: null, message: action.message, mode: state.mode === 'detail' ? 'table' : state.mode };
+    case 'regrouped': {
+      // a regroup asked for in the discovered view shows the grouping, with its sort and filter
+      const back = state.view === 'found' ? { ...state.away, view: 'grouping' as const, away: placeOf(state) } : {};
+      return { ...state, ...back, report: action.report, marked: new Set(), cursor: 0, detailScroll: 0, busy: null, message: action.message, mode: state.mode === 'detail' ? 'table' : state.mode };
+    }
     case 'done':
       return { ...state, busy: null, message: action.message };
+    case 'search-progress':
+      return state.search ? { ...state, search: { done: action.done, total: action.total } } : state;
+    case 'discovered': {
+      const n = action.discovery.slices.length;
+      const found = n === 0 ? 'no slice passed' : `${n} slice${n === 1 ? '' : 's'} found`;
+      return { ...state, search: null, discovery: action.discovery, message: state.view === 'found' ? found : `slice search done: ${found} (f shows them)` };
+    }
+    case 'search-failed': {
+      // back to the grouping, unless a prompt or the picker is open there
+      const after = state.view === 'found' && (state.mode === 'table' || state.mode === 'detail') ? switchView(state) : state;
+      return { ...after, search: null, message: action.message };
+    }
     case 'page':
       return action.page === state.page ? state : { ...state, page: action.page };
     case 'detail-limit':
@@ -176,6 +244,8 @@ function onKey(state: ExplorerState, a: Extract<Action, { type: 'key' }>): Explo
 
   if (input === 'q') return request(state, { kind: 'exit', code: 0 });
   if (input === '?') return { ...state, mode: 'help' };
+  if (input === 'f') return switchView(state);
+  const found = state.view === 'found';
   if (state.mode === 'detail') {
     if (key.return || key.escape) return { ...state, mode: 'table' };
     if (key.upArrow || input === 'k') return { ...state, detailScroll: Math.max(0, state.detailScroll - 1) };
@@ -197,12 +267,13 @@ function onKey(state: ExplorerState, a: Extract<Action, { type: 'key' }>): Explo
     if (key.escape && state.filter) return reorder(state, { filter: '' });
   }
   if (input === 's') {
-    const next = SORT_KEYS[(SORT_KEYS.indexOf(state.sortKey) + 1) % SORT_KEYS.length];
+    const keys: readonly SortKey[] = found ? FOUND_SORT_KEYS : SORT_KEYS;
+    const next = keys[(keys.indexOf(state.sortKey) + 1) % keys.length];
     return reorder(state, { sortKey: next, descending: defaultDescending(next) });
   }
   if (input === 'r') return reorder(state, { descending: !state.descending });
   if (input === 'h') return reorder(state, { sortKey: 'headroom', descending: true });
-  if (input === 'i') return { ...state, intervals: !state.intervals };
+  if (input === 'i') return found ? { ...state, message: 'i: the discovered table shows no intervals; the detail pane (Enter) does' } : { ...state, intervals: !state.intervals };
   if (input === '/') return { ...state, mode: 'filter', draft: state.filter };
   if (input === 'g') return { ...state, mode: 'picker', pickerCursor: 0, picked: new Set(report.by ?? []) };
   if (input === ' ') {
@@ -214,6 +285,12 @@ function onKey(state: ExplorerState, a: Extract<Action, { type: 'key' }>): Explo
 }
 
 function startExport(state: ExplorerState, path: string, force: boolean): ExplorerState {
+  if (state.view === 'found') {
+    const listed = state.discovery?.slices.filter((s) => s.rank > 0) ?? [];
+    const slices = state.marked.size > 0 ? listed.filter((s) => state.marked.has(s.label)) : listed;
+    if (slices.length === 0) return { ...state, mode: 'table', message: state.discovery ? 'nothing to export: no slice passed the search' : 'nothing to export yet: the search is still running' };
+    return request(state, { kind: 'export-found', path, force, slices }, { mode: 'table', busy: `exporting ${slices.length} discovered slice${slices.length === 1 ? '' : 's'}…` });
+  }
   const report = state.report!;
   const slices = state.marked.size > 0 ? report.slices.filter((s) => state.marked.has(s.label)) : report.slices.filter((s) => s.flagged);
   if (slices.length === 0) return { ...state, mode: 'table', message: 'nothing to export: no slice is marked or flagged' };

@@ -10,11 +10,14 @@ import { join } from 'node:path';
 import yargs from 'yargs';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { analyze } from '../../src/app/analysis.js';
+import { explorerData, foundReason } from '../../src/app/explorer-data.js';
+import type { DiscoveredSlice } from '../../src/discover/types.js';
 import { explorerExporter, sliceKeyText } from '../../src/cli/commands/explore-terminal.js';
 import type { ExploreArgs } from '../../src/cli/commands/explore.js';
 import { analysisRequest, commandOptions } from '../../src/cli/options.js';
 import type { SliceReport } from '../../src/triage/types.js';
 import { Captured } from '../helpers/run-main.js';
+import { parseCsv, records } from '../helpers/engine-fixture.js';
 
 const ARGV = ['explore', 'data-samples/solder-joints.csv', '--floor-table', 'data-samples/inspector-floors.csv', '--threads', '1'];
 
@@ -61,6 +64,50 @@ describe("the explorer's export", () => {
       [{ package: 'QFN' }, 'package=QFN'],
       [{ station: 'S3' }, 'station=S3'],
     ]);
+  }, 60_000);
+
+  it('writes discovered slices of different columns and depths to one file, each with its part as focus and why it was found', async () => {
+    const args = await parsed(ARGV);
+    const io = { stdout: new Captured(), stderr: new Captured(), env: process.env, cwd: process.cwd() };
+    const analysis = await analyze(analysisRequest(args, io));
+    const data = explorerData(null, analysis, explorerExporter(args, io, ARGV));
+    const discovery = await data.discover(() => undefined, new AbortController().signal);
+    // what discover() finds on the sample: one-condition slices only; a second slice with two conditions
+    // stands beside the first (its key and label edited, hand-built), so one file holds two depths
+    const [first, second] = discovery.slices;
+    expect(first && second).toBeTruthy();
+    const twoConditions: DiscoveredSlice = { ...second, key: { station: 'S2', lighting: 'dome' }, conditions: { station: 'S2', lighting: 'dome' }, label: 'station=S2 · lighting=dome', rank: 2 };
+    const out = join(dir, 'found.csv');
+    const line = await data.exportFound([first, twoConditions], out, false);
+
+    // the rows of the train and dev splits (the export's default) in either slice, counted in the sample itself
+    const rows = records(parseCsv(readFileSync('data-samples/solder-joints.csv', 'utf8')));
+    const inFirst = (r: Record<string, string>) => Object.entries(first.key).every(([k, v]) => r[k] === v);
+    const inSecond = (r: Record<string, string>) => r.station === 'S2' && r.lighting === 'dome';
+    const want = rows.filter((r) => (r.split === 'train' || r.split === 'dev') && (inFirst(r) || inSecond(r))).length;
+    expect(want).toBeGreaterThan(0);
+    expect(line).toBe(`wrote ${want} rows of 2 slices to ${out} (manifest ${out}.manifest.json)`);
+
+    const manifest = JSON.parse(readFileSync(`${out}.manifest.json`, 'utf8')) as {
+      selection: { mode: string; named: string[]; chosen_in: string };
+      slices: { rank: number; key: Record<string, string>; focus: string; reason: string; rows: { total: number } }[];
+      rows: { total: number };
+    };
+    expect(manifest.rows.total).toBe(want);
+    expect(manifest.selection).toMatchObject({ mode: 'named', chosen_in: 'explorer', named: [sliceKeyText(first), 'station=S2,lighting=dome'] });
+    expect(manifest.slices.map((s) => [s.rank, s.key, s.focus, s.reason])).toEqual([
+      [first.rank, first.key, first.part, foundReason(first)],
+      [2, { station: 'S2', lighting: 'dome' }, second.part, foundReason(twoConditions)],
+    ]);
+    // the reason names the part's gap and the lift over the weakest parent's rest (a one-condition slice's parent is all rows)
+    expect(foundReason(first)).toMatch(new RegExp(`^${first.part} [+-]\\d+\\.\\d pts, lift [+-]\\d+\\.\\d over all other rows$`));
+    // every written row names the slices it lies in, with their parts as focus
+    const written = records(parseCsv(readFileSync(out, 'utf8')));
+    expect(written).toHaveLength(want);
+    for (const r of written) {
+      const focus = [inFirst(r) ? first.part : null, inSecond(r) ? second.part : null].filter(Boolean).join(' | ');
+      expect(r.fg_focus).toBe(focus);
+    }
   }, 60_000);
 
   it('a key names its slice as --slice reads it: commas, = and backslashes escaped', () => {

@@ -5,6 +5,7 @@
  * and records every call, so a test can check what the explorer asked for.
  */
 import type { ErrorExample } from '../../src/rows/examples.js';
+import type { Discovery } from '../../src/discover/types.js';
 import type { ExplorerData } from '../../src/tui/data.js';
 import type { Report, SliceReport } from '../../src/triage/types.js';
 import { reportFixture } from './report-fixture.js';
@@ -64,6 +65,9 @@ export interface FakeCalls {
   readonly drill: { slice: string; column: string }[];
   readonly examples: string[];
   readonly exportSlices: { slices: string[]; path: string; force: boolean }[];
+  /** one entry per search started */
+  readonly discover: AbortSignal[];
+  readonly exportFound: { slices: string[]; path: string; force: boolean }[];
 }
 
 /** Parts of the fake a test may replace. */
@@ -76,6 +80,8 @@ export interface FakeOptions {
   readonly examples?: readonly ErrorExample[] | string;
   /** the one-line message exportSlices returns */
   readonly exportMessage?: string;
+  /** the search; by default it never ends (the fake has no discovery of its own) */
+  readonly discover?: ExplorerData['discover'];
 }
 
 /**
@@ -85,7 +91,7 @@ export interface FakeOptions {
  * await data.exportSlices([], 'x.csv', false); calls.exportSlices.length; // => 1
  */
 export function fakeExplorerData(options: FakeOptions = {}): { data: ExplorerData; calls: FakeCalls } {
-  const calls: FakeCalls = { regroup: [], drill: [], examples: [], exportSlices: [] };
+  const calls: FakeCalls = { regroup: [], drill: [], examples: [], exportSlices: [], discover: [], exportFound: [] };
   const data: ExplorerData = {
     report: options.report ?? reportFixture(),
     columns: options.columns ?? FAKE_COLUMNS,
@@ -106,6 +112,14 @@ export function fakeExplorerData(options: FakeOptions = {}): { data: ExplorerDat
     async exportSlices(slices, path, force) {
       calls.exportSlices.push({ slices: slices.map((s) => s.label), path, force });
       return options.exportMessage ?? `wrote ${slices.length} slices to ${path}`;
+    },
+    discover(onProgress, signal) {
+      calls.discover.push(signal);
+      return options.discover ? options.discover(onProgress, signal) : new Promise<Discovery>(() => undefined);
+    },
+    async exportFound(slices, path, force) {
+      calls.exportFound.push({ slices: slices.map((s) => s.label), path, force });
+      return options.exportMessage ?? `wrote ${slices.length} found slices to ${path}`;
     },
   };
   return { data, calls };

@@ -74,13 +74,15 @@ describe('FailureScreen', () => {
 
 describe('HelpScreen', () => {
   it('every key, the legend of the gap bar, how to close it', () => {
-    const { lines } = drawn(<HelpScreen width={80} height={18} color={false} ascii />);
-    // 'keys', one line per entry of KEYS (15), the legend and the closing line: 18 lines
-    expect(lines).toHaveLength(18);
+    const { lines } = drawn(<HelpScreen width={80} height={20} color={false} ascii />);
+    // 'keys', one line per entry of KEYS (16), the legend, the discovered view's caution and the closing line: 20 lines
+    expect(KEYS).toHaveLength(16);
+    expect(lines).toHaveLength(20);
     expect(lines[0]).toBe('keys');
     expect(lines[1]).toBe(`  ${KEYS[0][0].padEnd(20)} ${KEYS[0][1]}`);
-    expect(lines[16]).toBe('  gap bar: . floor  # bias  = variance  ~ mismatch   * flagged  + marked');
-    expect(lines[17]).toBe('  any key closes this help');
+    expect(lines[17]).toBe('  gap bar: . floor  # bias  = variance  ~ mismatch   * flagged  + marked');
+    expect(lines[18]).toBe('  discovered slices: a discovered slice is a lead to investigate, not a verdict'); // FOUND_CAUTION (src/tui/found.ts)
+    expect(lines[19]).toBe('  any key closes this help');
   });
 
   it('is cut to the lines available', () => {

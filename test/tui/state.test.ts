@@ -1,5 +1,6 @@
 import type { Key } from 'ink';
 import { describe, expect, it } from 'vitest';
+import type { DiscoveredSlice, Discovery } from '../../src/discover/types.js';
 import { SORT_KEYS } from '../../src/tui/model.js';
 import { initialState, reduce, selectedSlice, shownSlices, type ExplorerState } from '../../src/tui/state.js';
 import { FAKE_COLUMNS, FAKE_EXPORT_PATH, regroupedFixture } from '../helpers/explorer-fixture.js';
@@ -418,5 +419,68 @@ describe('a burst of keys', () => {
   it('takes a chunk of text typed at once in the prompts, control characters stripped', () => {
     expect(press(press(loaded(), '/'), 'do\u0000me').draft).toBe('dome');
     expect(press(press(loaded(), 'e'), '.bak').draft).toBe(`${FAKE_EXPORT_PATH}.bak`);
+  });
+});
+
+describe('the discovered view (f)', () => {
+  // a discovery of two slices built from fixture slices (hand-built): S3 · dome found on bias (rank 1),
+  // S1 · ring on variance (rank 2); only the fields the reducer reads are filled in
+  const report = reportFixture();
+  const of = (rank: number, to: number, part: 'bias' | 'variance'): DiscoveredSlice =>
+    ({ ...report.slices.find((s) => s.rank === rank)!, rank: to, part, part_headroom: { value: 0.01 * to, lo: 0.005 }, lift: { part, value: 0.02, lo: 0.01, hi: 0.03, p: 0.01, over: {} } }) as unknown as DiscoveredSlice;
+  const discovery = { slices: [of(6, 1, 'bias'), of(5, 2, 'variance')] } as unknown as Discovery;
+
+  it('starts the search once, keeps each view where it was, and lists the discovery when it comes', () => {
+    let s = keys(loaded(), 'j', 'j', ' ', 's'); // the grouping: S4 selected after marking S7, sorted by headroom
+    const grouping = { cursor: s.cursor, marked: [...s.marked], sortKey: s.sortKey };
+    s = press(s, 'f');
+    expect(s.view).toBe('found');
+    expect(s.search).toEqual({ done: 0, total: 0 });
+    expect(shownSlices(s)).toEqual([]);
+    expect([s.cursor, [...s.marked], s.sortKey]).toEqual([0, [], 'rank']);
+    s = reduce(s, { type: 'search-progress', done: 3, total: 45 });
+    expect(s.search).toEqual({ done: 3, total: 45 });
+    s = press(s, 'f');
+    expect(s.view).toBe('grouping');
+    expect({ cursor: s.cursor, marked: [...s.marked], sortKey: s.sortKey }).toEqual(grouping);
+    expect(s.search).toEqual({ done: 3, total: 45 }); // still running
+    s = reduce(s, { type: 'discovered', discovery });
+    expect(s.search).toBeNull();
+    expect(s.message).toBe('slice search done: 2 slices found (f shows them)');
+    s = keys(s, 'f', 'j', ' ');
+    expect(labels(s)).toEqual([LABEL.s3, LABEL.s1]);
+    expect([...s.marked]).toEqual([LABEL.s1]);
+    s = keys(s, 'f', 'f');
+    expect(s.search).toBeNull(); // never a second search
+    expect([...s.marked]).toEqual([LABEL.s1]);
+  });
+
+  it('cycles its own sorts: rank, headroom (point), lift, name', () => {
+    let s = reduce(press(loaded(), 'f'), { type: 'discovered', discovery });
+    const seen: string[] = [];
+    for (let i = 0; i < 4; i++) {
+      s = press(s, 's');
+      seen.push(s.sortKey);
+    }
+    expect(seen).toEqual(['headroom', 'lift', 'name', 'rank']);
+    s = press(s, 'h');
+    expect(labels(s)).toEqual([LABEL.s1, LABEL.s3]); // headroom 0.02 before 0.01 (the values above)
+  });
+
+  it('exports the marked discovered slices, or all listed ones when none is marked', () => {
+    const exported = (st: ExplorerState) => (st.request?.kind === 'export-found' ? st.request.slices.map((x) => x.label) : null);
+    let s = reduce(press(loaded(), 'f'), { type: 'discovered', discovery });
+    s = keys(s, 'e', ENTER);
+    expect(s.request).toMatchObject({ kind: 'export-found', path: FAKE_EXPORT_PATH, force: false });
+    expect(exported(s)).toEqual([LABEL.s3, LABEL.s1]);
+    s = keys(s, 'j', ' ', 'e', ENTER);
+    expect(exported(s)).toEqual([LABEL.s1]);
+  });
+
+  it('goes back to the grouping when the search fails, and may search again', () => {
+    let s = press(loaded(), 'f');
+    s = reduce(s, { type: 'search-failed', message: 'slice search failed: preds.csv went away' });
+    expect([s.view, s.search, s.message]).toEqual(['grouping', null, 'slice search failed: preds.csv went away']);
+    expect(press(s, 'f').search).toEqual({ done: 0, total: 0 });
   });
 });

@@ -61,7 +61,7 @@ export function withoutScrollbackClear(stdout: NodeJS.WriteStream): NodeJS.Write
  * @param argv the explorer's command line as given (after `floorgap`)
  */
 export function explorerExporter(args: ExploreArgs, io: CliIO, argv: readonly string[]): Exporter {
-  return async (slices, path, force) => {
+  return async (slices, path, force, reasons) => {
     const out: string[] = [];
     const capture = { write: (chunk: string | Uint8Array, cb?: (e?: Error | null) => void) => (out.push(String(chunk)), cb?.(), true) } as unknown as NodeJS.WritableStream;
     const exportArgs: ExportArgs = {
@@ -74,6 +74,8 @@ export function explorerExporter(args: ExploreArgs, io: CliIO, argv: readonly st
       'errors-only': false,
       raw: false,
       chosenIn: 'explorer',
+      // discovered slices: written as they are, each with the reason it was found
+      ...(reasons ? { chosen: slices.map((s, i) => ({ slice: s, chosen: 'named' as const, named: sliceKeyText(s), reason: reasons[i] ?? '' })) } : {}),
     };
     try {
       await runExport(exportArgs, { ...io, stdout: capture, stderr: capture }, argv);

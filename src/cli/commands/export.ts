@@ -38,6 +38,11 @@ export interface ExportArgs extends AnalysisArgs {
   force: boolean;
   /** set by the explorer, whose marked slices come as `slice` keys; never a flag */
   chosenIn?: 'explorer';
+  /**
+   * set by the explorer for slices it found itself (discovered slices, of any columns): written as
+   * given, with their own focus, rank and reason, while `slice` holds their keys for the manifest; never a flag
+   */
+  chosen?: readonly ChosenSlice[];
 }
 
 /**
@@ -104,6 +109,8 @@ function selectionOf(args: ExportArgs): { selection: Selection; byColumns: strin
   const top = args.top ?? null;
   if (named.length > 0 && top !== null) throw error('--top and --slice choose slices in two ways; give one of them');
   if (named.length === 0) return { selection: top === null ? { kind: 'flagged' } : { kind: 'top', n: top }, byColumns: undefined, named };
+  // slices chosen ahead (the explorer's discovered ones) need no grouping of their own
+  if (args.chosen) return { selection: { kind: 'named', slices: named }, byColumns: undefined, named };
   const grouping = namedGrouping(named);
   if (args.by !== undefined) {
     const by = String(args.by).split(',').map((s) => s.trim()).filter(Boolean);
@@ -186,7 +193,7 @@ export async function runExport(args: ExportArgs, io: CliIO, argv: readonly stri
       selection.kind === 'named'
         ? { kind: 'named', slices: selection.slices.map((s) => ({ text: s.text, pairs: s.pairs.map(([c, v]) => [resolve(c), v] as const) })) }
         : selection;
-    const chosen = found ? [] : selectSlices(report, resolved);
+    const chosen = found ? [] : args.chosen ?? selectSlices(report, resolved);
     const exported: ExportSlice[] = found
       ? exportSlicesOf(found.slices)
       : chosen.map((c) => ({ key: c.slice.key, label: c.slice.label, focus: c.slice.focus, rank: c.slice.rank, reason: c.reason }));

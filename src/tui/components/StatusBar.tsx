@@ -1,6 +1,6 @@
 import { sanitize } from '../../terminal/sanitize.js';
 import { truncate } from '../../terminal/width.js';
-import { SORT_LABEL, type SortKey } from '../model.js';
+import { FOUND_SORT_LABEL, SORT_LABEL, type SortKey } from '../model.js';
 import { Line } from './Line.js';
 
 /** Props of {@link StatusBar}. */
@@ -21,6 +21,8 @@ export interface StatusBarProps {
   readonly width: number;
   readonly ascii: boolean;
   readonly color: boolean;
+  /** the discovered view is shown: its sorts are named as its table's */
+  readonly found?: boolean;
 }
 
 /**
@@ -33,7 +35,7 @@ export interface StatusBarProps {
 export function StatusBar(p: StatusBarProps) {
   const arrow = p.ascii ? (p.descending ? 'v' : '^') : p.descending ? '↓' : '↑';
   const parts = [
-    `sort ${SORT_LABEL[p.sortKey]} ${arrow}`,
+    `sort ${(p.found ? (FOUND_SORT_LABEL as Partial<Record<SortKey, string>>)[p.sortKey] : undefined) ?? SORT_LABEL[p.sortKey]} ${arrow}`,
     p.filter ? `filter "${truncate(sanitize(p.filter), 24)}" (${p.shown} of ${p.total})` : `${p.shown} slices`,
     `${p.marked} marked`,
   ];

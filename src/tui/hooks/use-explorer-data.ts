@@ -37,7 +37,7 @@ export interface ExplorerDataState {
 
 /**
  * Loads the explorer's data (polling the progress meanwhile), tells the reducer when it is loaded, and
- * carries out what the reducer requests: regroup, export, exit. A request that fails with a
+ * carries out what the reducer requests: regroup, export (of the grouping's or of discovered slices), exit. A request that fails with a
  * FloorgapError leaves its message on the status line; any other failure ends the explorer.
  * @example
  * const { data, failure, progress, elapsed } = useExplorerData({ load, progress, request, requestId, dispatch, exit, failed });
@@ -94,6 +94,8 @@ export function useExplorerData(options: ExplorerDataOptions): ExplorerDataState
       );
     } else if (request.kind === 'export') {
       data.exportSlices(request.slices, request.path, request.force).then(say, failed('export failed', say));
+    } else if (request.kind === 'export-found') {
+      data.exportFound(request.slices, request.path, request.force).then(say, failed('export failed', say));
     }
     // each request runs once, when its id changes: the request stays in the state after it ran, and data,
     // dispatch, exit and failed do not change once a request can be made

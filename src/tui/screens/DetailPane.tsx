@@ -1,7 +1,9 @@
 import { useEffect, useMemo } from 'react';
+import type { DiscoveredSlice } from '../../discover/types.js';
 import type { Report, SliceReport } from '../../triage/types.js';
 import { Line } from '../components/Line.js';
 import { detailLines, type DetailExtras } from '../detail.js';
+import { foundDetailLines } from '../found.js';
 
 /** Props of {@link DetailPane}. */
 export interface DetailPaneProps {
@@ -17,6 +19,8 @@ export interface DetailPaneProps {
   /** told how far the pane can scroll whenever that changes, so ↑ works at once after a long ↓ */
   readonly onScrollLimit: (max: number) => void;
   readonly color: boolean;
+  /** a discovered slice (the same as `slice`) and every listed one's rank by label: its part, lift, parents and overlaps under its title */
+  readonly found?: { readonly slice: DiscoveredSlice; readonly ranks: ReadonlyMap<string, number> } | null;
 }
 
 /**
@@ -24,9 +28,12 @@ export interface DetailPaneProps {
  * @example
  * <DetailPane slice={s5} report={report} extras={{ drillColumn: 'shift', drill: 'loading', examples: 'loading' }} … /> // => 'station=S5  focus bias  * flagged  rank 1' / …
  */
-export function DetailPane({ slice, report, extras, width, height, scroll, onScrollLimit, color }: DetailPaneProps) {
+export function DetailPane({ slice, report, extras, width, height, scroll, onScrollLimit, color, found }: DetailPaneProps) {
   const room = Math.max(1, height);
-  const lines = useMemo(() => detailLines(slice, report, extras, width), [slice, report, extras, width]);
+  const lines = useMemo(() => {
+    const all = detailLines(slice, report, extras, width);
+    return found ? [all[0], ...foundDetailLines(found.slice, report, found.ranks, width), ...all.slice(1)] : all;
+  }, [slice, report, extras, width, found]);
   const max = Math.max(0, lines.length - room);
   useEffect(() => {
     onScrollLimit(max);

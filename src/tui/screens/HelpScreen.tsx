@@ -1,5 +1,6 @@
 import { truncate } from '../../terminal/width.js';
 import { Line } from '../components/Line.js';
+import { FOUND_CAUTION } from '../found.js';
 import { KEYS } from '../keys.js';
 import { lineOf, type Span } from '../theme.js';
 
@@ -21,6 +22,7 @@ export function HelpScreen({ width, height, color, ascii }: HelpScreenProps) {
   const lines: Span[][] = [lineOf('keys', { bold: true })];
   for (const [k, what] of KEYS) lines.push(lineOf(truncate(`  ${k.padEnd(20)} ${what}`, width)));
   lines.push(lineOf('  gap bar: ' + (ascii ? '. floor  # bias  = variance  ~ mismatch' : '░ floor  █ bias  ▓ variance  ▒ mismatch') + '   * flagged  + marked', { dim: true }));
+  lines.push(lineOf(truncate(`  discovered slices: ${FOUND_CAUTION}`, width), { color: 'yellow' }));
   lines.push(lineOf('  any key closes this help', { dim: true }));
   return (
     <>
