@@ -21,6 +21,8 @@ export { mcnemarTest } from './mcnemar-test.js';
 export type { TangoScoreResult } from './tango-score-test.js';
 export { tangoScoreTest } from './tango-score-test.js';
 export { tangoInterval } from './tango-interval.js';
+export type { PairedMean, PairedWeightSums } from './paired-mean-interval.js';
+export { pairedMeanInterval } from './paired-mean-interval.js';
 export { benjaminiHochberg } from './benjamini-hochberg.js';
 export { benjaminiYekutieli } from './benjamini-yekutieli.js';
 export { cohensKappa } from './cohens-kappa.js';
