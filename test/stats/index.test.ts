@@ -18,6 +18,9 @@ describe('src/stats/index.ts', () => {
       'proportionTest',
       'twoProportionTest',
       'mcnemarTest',
+      'tangoScoreTest',
+      'tangoInterval',
+      'pairedMeanInterval',
       'benjaminiHochberg',
       'benjaminiYekutieli',
       'cohensKappa',
@@ -47,6 +50,19 @@ describe('src/stats/index.ts', () => {
     // type-level check (compiled by tsc -p tsconfig.test.json); contract (mcnemarTest): no discordant pairs -> p = 1
     const result: stats.McNemarResult = stats.mcnemarTest(0, 0);
     expect(result).toEqual({ statistic: null, p: 1, method: 'exact' });
+  });
+
+  it('exports the TangoScoreResult type', () => {
+    // type-level check (compiled by tsc -p tsconfig.test.json); contract (tangoScoreTest): no discordant pairs -> z = 0, p = 1
+    const result: stats.TangoScoreResult | null = stats.tangoScoreTest(0, 0, 10);
+    expect(result).toEqual({ z: 0, statistic: 0, p: 1 });
+  });
+
+  it('exports the PairedWeightSums and PairedMean types', () => {
+    // type-level check (compiled by tsc -p tsconfig.test.json); contract (pairedMeanInterval): no weight -> null
+    const sums: stats.PairedWeightSums = { sumW: 0, sumW2: 0, bSumW: 0, bSumW2: 0, cSumW: 0, cSumW2: 0 };
+    const result: stats.PairedMean | null = stats.pairedMeanInterval(sums);
+    expect(result).toBeNull();
   });
 
   it('exports the Interval type', () => {
