@@ -120,3 +120,28 @@ describe('discover finds what the demo plants (src/demo/scenario.ts DEMO_PLANTS:
     });
   }
 });
+
+describe('discover: text from data', () => {
+  it('a value holding a terminal escape and markdown syntax is sanitised in text and escaped in md', async () => {
+    // a table of our own: the value with the escape has 20 % error, the others 5 %, floor 5 %
+    const dir = mkdtempSync(join(tmpdir(), 'fg-discover-'));
+    try {
+      const bad = 'S\u001b[31mX|y';
+      const lines = ['station,split,label,pred'];
+      for (const st of [bad, 'S1', 'S2']) for (const split of ['train', 'dev']) {
+        const wrong = Math.round((st === bad ? 0.2 : 0.05) * 400);
+        for (let i = 0; i < 400; i++) lines.push(`"${st}",${split},ok,${i < wrong ? 'defect' : 'ok'}`);
+      }
+      writeFileSync(join(dir, 't.csv'), lines.join('\n') + '\n');
+      const text = await runCli(['discover', join(dir, 't.csv'), '--floor', '0.05', '--no-cache']);
+      expect(text.code).toBe(0);
+      expect(text.stdout).toContain('station=S');
+      expect(text.stdout).not.toContain('\u001b');
+      const md = await runCli(['discover', join(dir, 't.csv'), '--floor', '0.05', '--no-cache', '--format', 'md']);
+      expect(md.stdout).not.toContain('\u001b');
+      expect(md.stdout).toMatch(/X\\\|y/);
+    } finally {
+      rmSync(dir, { recursive: true, force: true });
+    }
+  });
+});
