@@ -85,9 +85,15 @@ describe('HelpScreen', () => {
     expect(lines[19]).toBe('  any key closes this help');
   });
 
-  it('is cut to the lines available', () => {
+  it('too tall for the lines available: the title goes, then the last line says what is left and how to close', () => {
     const { lines } = drawn(<HelpScreen width={80} height={3} color={false} ascii={false} />);
-    expect(lines).toEqual(['keys', `  ${KEYS[0][0].padEnd(20)} ${KEYS[0][1]}`, `  ${KEYS[1][0].padEnd(20)} ${KEYS[1][1]}`]);
+    // 19 lines without the title (16 keys, legend, caution, closing line); 2 shown, the third says 17 more (hand count)
+    expect(lines).toEqual([`  ${KEYS[0][0].padEnd(20)} ${KEYS[0][1]}`, `  ${KEYS[1][0].padEnd(20)} ${KEYS[1][1]}`, '  … 17 more lines in a taller terminal · any key closes this help']);
+    // 80×24 gives the help 18 lines: without the title 19, so 17 shown and 2 more (hand count)
+    const tall = drawn(<HelpScreen width={80} height={18} color={false} ascii={false} />).lines;
+    expect(tall).toHaveLength(18);
+    expect(tall[17]).toBe('  … 2 more lines in a taller terminal · any key closes this help');
+    expect(drawn(<HelpScreen width={80} height={20} color={false} ascii />).lines[19]).toBe('  any key closes this help');
   });
 });
 

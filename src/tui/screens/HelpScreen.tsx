@@ -24,6 +24,13 @@ export function HelpScreen({ width, height, color, ascii }: HelpScreenProps) {
   lines.push(lineOf('  gap bar: ' + (ascii ? '. floor  # bias  = variance  ~ mismatch' : '░ floor  █ bias  ▓ variance  ▒ mismatch') + '   * flagged  + marked', { dim: true }));
   lines.push(lineOf(truncate(`  discovered slices: ${FOUND_CAUTION}`, width), { color: 'yellow' }));
   lines.push(lineOf('  any key closes this help', { dim: true }));
+  // too tall for the terminal (80×24 holds 18 lines): the title goes first, then the last line left
+  // says how many more there are, so what closes the help is never cut away
+  if (lines.length > height) lines.shift();
+  if (lines.length > height && height >= 1) {
+    const more = lines.length - (height - 1);
+    lines.splice(height - 1, lines.length, lineOf(truncate(`  … ${more} more lines in a taller terminal · any key closes this help`, width), { dim: true }));
+  }
   return (
     <>
       {lines.slice(0, height).map((l, i) => (
