@@ -6,7 +6,7 @@
  */
 import { cpus, totalmem } from 'node:os';
 import { COST_EXPECTED, COST_RANGE } from '../read/keyed-table.js';
-import { DEMO_MAX_RUNS } from '../demo/scenario.js';
+import { DEMO_MAX_MODELS, DEMO_MAX_RUNS } from '../demo/scenario.js';
 import { error } from '../core/errors.js';
 
 /** A numeric option's domain: whole or real, and its ends (open ends exclude the value). */
@@ -62,6 +62,7 @@ export const NUMBER_BOUNDS: Readonly<Record<string, NumberBound>> = {
   rows: whole(1, 100_000_000),
   seed: whole(0, 2 ** 31 - 1),
   runs: whole(1, DEMO_MAX_RUNS, 'each run doubles the training rows'),
+  models: whole(1, DEMO_MAX_MODELS, 'the first model and the after model'),
 };
 
 function describeBound(b: NumberBound): string {

@@ -180,6 +180,7 @@ export const OPTIONS = {
   rows: { type: 'number', default: DEFAULTS.demoRows, describe: 'rows to generate' },
   seed: { type: 'number', default: DEFAULTS.demoSeed, describe: 'random seed' },
   runs: { type: 'number', default: DEFAULTS.demoRuns, describe: 'training runs with doubling training sizes (adds a run column)' },
+  models: { type: 'number', default: DEFAULTS.demoModels, describe: "2: also write a retrained model's predictions of the same rows (solder-joints-after.csv)" },
 } as const satisfies Record<string, Declaration>;
 
 export type OptionName = keyof typeof OPTIONS;
@@ -214,7 +215,7 @@ export const COMMAND_OPTIONS: Readonly<Record<Command, readonly OptionName[]>> =
     'floor', 'floor-table', 'annotators', 'cost-table',
     'threads', 'memory-limit', 'progress',
   ],
-  demo: ['out', 'rows', 'seed', 'runs', 'force'],
+  demo: ['out', 'rows', 'seed', 'runs', 'models', 'force'],
 };
 
 /**

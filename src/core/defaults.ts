@@ -62,4 +62,5 @@ export const DEFAULTS = {
   demoRows: 20_000,
   demoSeed: 24,
   demoRuns: 1,
+  demoModels: 1,
 } as const;

@@ -9,6 +9,7 @@ import {
   DEMO_CLASSES,
   DEMO_DISTRIBUTIONS,
   DEMO_INSPECTORS,
+  DEMO_PLANTS,
   checkDemoOptions,
   demoErrorProbability,
   demoInspectorErrorProbability,
@@ -39,6 +40,8 @@ const RUN_SALT = 2;
  * slices as before the interaction was planted.
  */
 const INTERACTION_SALT = 26;
+/** The after model's stream ({@link generateDemoAfterRows}); a salt no other stream of a seed uses. */
+const AFTER_SALT = 41;
 
 type Prediction = { pred: DemoClass; score: number };
 
@@ -76,6 +79,26 @@ function withInteraction(rng: Random, row: DemoRow, p: number, drawn: Prediction
   const wrong = drawn.pred !== row.label;
   if (effect > 0) return !wrong && rng.chance(effect / (1 - p)) ? drawWrong(rng, row.label) : drawn;
   return wrong && rng.chance(-effect / p) ? drawRight(rng, row.label) : drawn;
+}
+
+/**
+ * The after model's prediction for a row the first model predicted as `before`, with error probability
+ * `p` for the first model and `q` for the after one (each with the interaction), from the after
+ * model's own stream (see {@link DEMO_PLANTS.after}). Where q = p the outcome is kept unless, with
+ * probability `churn`, it is drawn afresh at rate p: a right one turns wrong with probability churn · p,
+ * a wrong one right with churn · (1 − p). Where q > p a right one turns wrong with probability
+ * (q − p) / (1 − p); where q < p a wrong one turns right with (p − q) / p. Either way the row is wrong
+ * with probability q, and a turned prediction gets its class and score as {@link drawPrediction} would.
+ */
+function afterPrediction(rng: Random, label: DemoClass, p: number, q: number, before: Prediction): Prediction {
+  const wrong = before.pred !== label;
+  if (q === p) {
+    const churn = DEMO_PLANTS.after.churn;
+    if (wrong) return rng.chance(churn * (1 - p)) ? drawRight(rng, label) : before;
+    return rng.chance(churn * p) ? drawWrong(rng, label) : before;
+  }
+  if (q > p) return !wrong && rng.chance((q - p) / (1 - p)) ? drawWrong(rng, label) : before;
+  return wrong && rng.chance((p - q) / p) ? drawRight(rng, label) : before;
 }
 
 type Audit = Pick<DemoRow, DemoInspector>;
@@ -205,5 +228,24 @@ export function* generateDemoRows(options: DemoOptions): Generator<DemoRow> {
         insp_c: e.insp_c,
       };
     }
+  }
+}
+
+/**
+ * The after model's table ({@link DEMO_PLANTS.after}, `--models 2`): the rows of the `runs = 1` table
+ * of `options` (same ids, splits, labels, slice and audit columns, in the same order) with the after
+ * model's `pred` and `score`, drawn from a stream of its own, so the first table is the same whether or
+ * not this one is written. Lazy, as {@link generateDemoRows}.
+ */
+export function* generateDemoAfterRows(options: DemoOptions): Generator<DemoRow> {
+  checkDemoOptions(options);
+  if ((options.runs ?? 1) !== 1) throw new RangeError(`the after model is of one training run, got runs ${options.runs}`);
+  const rng = new Random(deriveSeed(options.seed, AFTER_SALT));
+  for (const row of generateExamples(options.rows, options.seed)) {
+    const base = demoErrorProbability(row);
+    const p = base + demoInteractionEffect(row, base);
+    const afterBase = demoErrorProbability(row, 1, 'after');
+    const q = afterBase + demoInteractionEffect(row, afterBase);
+    yield { ...row, ...afterPrediction(rng, row.label, p, q, { pred: row.pred, score: row.score }) };
   }
 }

@@ -69,12 +69,29 @@ export interface DemoOptions {
    * inspector labels) with its own predictions. The last run's rows are the `runs = 1` table.
    */
   readonly runs?: number;
+  /**
+   * Models, 1 or {@link DEMO_MAX_MODELS}; default 1. With 2 the demo also writes the after model's
+   * predictions for the same rows ({@link DEMO_PLANTS.after}); only with `runs = 1`. The first table
+   * is the same either way.
+   */
+  readonly models?: number;
 }
 
-export const DEMO_DEFAULTS: DemoOptions = Object.freeze({ rows: DEFAULTS.demoRows, seed: DEFAULTS.demoSeed, runs: DEFAULTS.demoRuns });
+export const DEMO_DEFAULTS: DemoOptions = Object.freeze({
+  rows: DEFAULTS.demoRows,
+  seed: DEFAULTS.demoSeed,
+  runs: DEFAULTS.demoRuns,
+  models: DEFAULTS.demoModels,
+});
 
 /** Largest accepted `runs` (run 1 then trains on 1/512 of the train rows). */
 export const DEMO_MAX_RUNS = 10;
+
+/** Largest accepted `models`: the first model and the after model. */
+export const DEMO_MAX_MODELS = 2;
+
+/** The demo's models: the first (`before`, the table of every demo) and the retrained `after` one. */
+export type DemoModel = 'before' | 'after';
 
 /** CSV header of the demo table (one run, no `run` column), in column order; see {@link demoColumns}. */
 export const DEMO_COLUMNS = [
@@ -210,6 +227,36 @@ export const DEMO_PLANTS = Object.freeze({
     effect: 0.12,
     splits: ALL_SPLITS,
   },
+  /**
+   * The after model (`--models 2`, the file `solder-joints-after.csv`): the line retrained with a
+   * stronger augmentation for low-angle light (training images relit with long, raking shadows). The
+   * same rows, with the after model's `pred` and `score`; every other plant (QFN, S5, 0201, S6 · dome)
+   * as in the first model, and two changes:
+   * - `fix`: the low-angle variance is gone. Low-angle joints err in train_dev, dev and test as in
+   *   train (floor, plus the other plants that apply); their train error, and so their bias, unchanged.
+   * - `regression`: the same augmentation washed out the flat, shadowless coaxial images the model had
+   *   learnt from, so it now misreads coaxial joints: +`effect` in every split (an avoidable bias that
+   *   shows in dev error), none on 0201 as for every plant; the whole `lighting=coaxial` slice, whose
+   *   rows are a quarter 0201, rises by 0.75 · 0.048 = 3.6 points (hand arithmetic on the shares).
+   * Both changes are in the lighting column, so no other lighting slice picks up either, and the effect
+   * is sized so that they cancel over every other column: per row off 0201, the fix takes 0.2 · 0.06 =
+   * 0.012 in train_dev, dev and test and the regression adds 0.25 · 0.048 = 0.012 (the lighting shares;
+   * hand arithmetic), so a slice of another column (drawn independently of lighting) and the whole
+   * table keep their dev and test error in expectation (a little off where the interaction stops at 0);
+   * only their train error rises, by 0.75 · 0.012 = 0.9 points (no fix in train).
+   *
+   * Everywhere else the after model is the first one: it keeps the first model's outcome (right or
+   * wrong) unless its side stream, with probability `churn`, draws the outcome afresh at the same rate
+   * p; so a row turns wrong with probability churn · p(1 − p), as often as one turns right, and its
+   * error probability stays p (about 1 % of rows each way at p ≈ 0.05). Where a change applies the
+   * outcomes turn only its way, as the interaction does (draws.ts), so the row errs with the after
+   * model's probability exactly. A kept outcome keeps its class and score.
+   */
+  after: {
+    fix: { column: 'lighting', value: 'low-angle', removes: 'variance' },
+    regression: { column: 'lighting', value: 'coaxial', effect: 0.048, splits: ALL_SPLITS },
+    churn: 0.2,
+  },
   /** upper bound on any row's error probability */
   errorCap: 0.95,
 });
@@ -241,6 +288,8 @@ function stationShares(s5: number): Record<DemoStation, number> {
 }
 
 const PLANT_LIST = [DEMO_PLANTS.avoidableBias, DEMO_PLANTS.atFloor, DEMO_PLANTS.mismatch, DEMO_PLANTS.variance];
+/** The after model's plants: the fix takes the variance plant out, the regression comes in. */
+const AFTER_PLANT_LIST = [DEMO_PLANTS.avoidableBias, DEMO_PLANTS.atFloor, DEMO_PLANTS.mismatch, DEMO_PLANTS.after.regression];
 
 /**
  * The planted error probability of a row without the interaction ({@link demoInteractionEffect} adds
@@ -248,18 +297,22 @@ const PLANT_LIST = [DEMO_PLANTS.avoidableBias, DEMO_PLANTS.atFloor, DEMO_PLANTS.
  * {@link DEMO_PLANTS.errorCap}. The main stream draws each prediction with this probability.
  * @param trainFraction n_r / n_R, the row's run's training rows over the last run's (1, the default,
  *   for the last or only run); it scales the variance effect to `effect · trainFraction^(−β)`
+ * @param model `after`: the after model's plants ({@link DEMO_PLANTS.after}: no variance plant, the
+ *   regression added)
  * @example demoErrorProbability({ split: 'dev', station: 'S1', lighting: 'low-angle', package: '0603' }, 0.25) // 0.03 + 0.06·2
+ * @example demoErrorProbability({ split: 'dev', station: 'S1', lighting: 'coaxial', package: '0603' }, 1, 'after') // 0.03 + 0.08
  */
 export function demoErrorProbability(
   row: Pick<DemoRow, 'split' | 'station' | 'lighting' | 'package'>,
   trainFraction = 1,
+  model: DemoModel = 'before',
 ): number {
   if (!(trainFraction > 0 && trainFraction <= 1)) {
     throw new RangeError(`trainFraction must be in (0, 1], got ${trainFraction}`);
   }
   let p = DEMO_FLOORS[row.package].floor;
   if (row.package === DEMO_PLANTS.atFloor.value) return p;
-  for (const plant of PLANT_LIST) {
+  for (const plant of model === 'after' ? AFTER_PLANT_LIST : PLANT_LIST) {
     if (row[plant.column as 'package' | 'station' | 'lighting'] === plant.value && plant.splits.includes(row.split)) {
       p +=
         plant === DEMO_PLANTS.variance && trainFraction !== 1
@@ -368,5 +421,12 @@ export function checkDemoOptions(options: DemoOptions): void {
   const runs = options.runs ?? 1;
   if (!Number.isSafeInteger(runs) || runs < 1 || runs > DEMO_MAX_RUNS) {
     throw new RangeError(`runs must be an integer from 1 to ${DEMO_MAX_RUNS}, got ${options.runs}`);
+  }
+  const models = options.models ?? 1;
+  if (!Number.isSafeInteger(models) || models < 1 || models > DEMO_MAX_MODELS) {
+    throw new RangeError(`models must be 1 or ${DEMO_MAX_MODELS}, got ${options.models}`);
+  }
+  if (models === 2 && runs !== 1) {
+    throw new RangeError(`models 2 needs runs 1 (the after model is of one training run), got runs ${runs}`);
   }
 }

@@ -46,7 +46,7 @@ describe('defaults and bounds', () => {
       floorRule: OPTIONS['floor-rule'].default,
       run: null,
     });
-    expect(DEMO_DEFAULTS).toEqual({ rows: OPTIONS.rows.default, seed: OPTIONS.seed.default, runs: OPTIONS.runs.default });
+    expect(DEMO_DEFAULTS).toEqual({ rows: OPTIONS.rows.default, seed: OPTIONS.seed.default, runs: OPTIONS.runs.default, models: OPTIONS.models.default });
   });
 });
 
