@@ -19,6 +19,7 @@ export const LAYERS = [
   'slices', // cells → slices: the arquero roll-up
   'triage', // slices + floors + costs → the report; pure
   'discover', // the search over conjunctions of conditions for discovered slices; pure
+  'compare', // two reports of the same slices → the change of each measure, paired where rows pair; pure
   'rows', // SQL over rows behind slices: export, examples, paired rows
   'render', // text, markdown, csv, json, junit
   'tui', // the explorer's screens, components, hooks and state

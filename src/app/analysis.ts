@@ -63,8 +63,8 @@ export interface Prepared {
   readonly options: TriageOptions;
 }
 
-/** cells → slices → triage: the report of loaded cells. */
-function reportOf(loaded: Loaded, triageOptions: TriageOptions, where: string | null): Analysis {
+/** cells → slices → triage: the report of loaded cells (compare builds each side's this way). */
+export function reportOf(loaded: Loaded, triageOptions: TriageOptions, where: string | null): Analysis {
   const p = prepare(loaded, triageOptions, where);
   const report = buildReport(loaded.table, loaded.by, loaded.overviewColumns, p.context, triageOptions);
   return { ...p, report };

@@ -84,8 +84,11 @@ async function scanSource(duck: Duck, options: LoadOptions, source: Source): Pro
 }
 
 
-/** The scan of a planned load: cells, checks of the rows set aside, warnings. */
-async function scanPlanned(duck: Duck, planned: ScanPlan): Promise<Loaded> {
+/**
+ * The scan of a planned load: cells, checks of the rows set aside, warnings. `compare` scans its
+ * second table with the first table's plan (same columns and bins) this way.
+ */
+export async function scanPlanned(duck: Duck, planned: ScanPlan): Promise<Loaded> {
   const { source, roles, plan, grouping, columns, by, floorTable, costTable, profile, annotators } = planned;
   const warnings = [...planned.warnings];
   const scanned = await scanCells(duck, plan, grouping, source.native ?? null).catch(async (e) => {

@@ -52,6 +52,7 @@ export const NUMBER_BOUNDS: Readonly<Record<string, NumberBound>> = {
   confidence: fraction(true),
   fdr: fraction(true),
   'floor-margin': fraction(false),
+  margin: fraction(false),
   'min-headroom': fraction(false),
   'curve-exponent': { integer: false, min: 0, max: 10, openMin: true },
   'label-cost': { integer: false, min: COST_RANGE.min, max: COST_RANGE.max, expected: COST_EXPECTED },

@@ -4,6 +4,7 @@ import { readConfig } from '../read/config.js';
 import { checkBounds, type ShowOption } from './bounds.js';
 import { VERSION } from '../core/version.js';
 import { runCheck, type CheckArgs } from './commands/check.js';
+import { runCompare, type CompareArgs } from './commands/compare.js';
 import { runDemo, type DemoArgs } from './commands/demo.js';
 import { runDiscover, type DiscoverArgs } from './commands/discover.js';
 import { runExport, type ExportArgs } from './commands/export.js';
@@ -99,6 +100,14 @@ export async function main(argv: readonly string[], io: CliIO): Promise<number> 
         (y) => projectDefaults(commandOptions(y, 'discover'), config),
         async (args) => {
           code = await runDiscover(args as unknown as DiscoverArgs, io);
+        },
+      )
+      .command(
+        'compare [files..]',
+        'compare two models slice by slice: the change of dev error, bias, variance and mismatch, paired by id where rows pair',
+        (y) => projectDefaults(commandOptions(y, 'compare'), config),
+        async (args) => {
+          code = await runCompare(args as unknown as CompareArgs, io);
         },
       )
       .command(

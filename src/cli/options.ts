@@ -13,7 +13,7 @@ import { DIALECTS } from '../sql/dialect.js';
 import type { TriageOptions } from '../triage/types.js';
 
 /** The commands, each taking the options {@link COMMAND_OPTIONS} lists. */
-export type Command = 'report' | 'discover' | 'explore' | 'check' | 'export' | 'sql' | 'demo';
+export type Command = 'report' | 'discover' | 'compare' | 'explore' | 'check' | 'export' | 'sql' | 'demo';
 
 /** What a command may say differently about an option it shares: never its type or its default. */
 type Wording = Pick<Options, 'describe' | 'group' | 'choices' | 'alias' | 'demandOption'>;
@@ -35,7 +35,10 @@ const PROGRESS = ['auto', 'always', 'never'] as const;
 export const OPTIONS = {
   files: {
     positional: true, type: 'string', array: true, describe: 'prediction table(s) with a split column',
-    for: { sql: { describe: 'a local sample of the table (optional): columns, bins and grouping are then chosen as a local report would' } },
+    for: {
+      sql: { describe: 'a local sample of the table (optional): columns, bins and grouping are then chosen as a local report would' },
+      compare: { describe: "BEFORE AFTER: the two models' prediction tables, with the same columns" },
+    },
   },
   // inputs
   train: { type: 'string', describe: 'file holding the train split', group: 'Inputs:' },
@@ -135,7 +138,7 @@ export const OPTIONS = {
   // outputs
   format: {
     alias: 'f', choices: FORMATS, default: DEFAULTS.format, describe: 'output format', group: 'Output:',
-    for: { check: { choices: ['text', 'json'] } },
+    for: { check: { choices: ['text', 'json'] }, compare: { choices: ['text', 'json'] } },
   },
   ascii: { type: 'boolean', default: false, describe: 'draw with ASCII only (no block glyphs or arrows)', group: 'Output:' },
   junit: { type: 'string', describe: 'also write a JUnit XML file (one test case per slice and limit)', group: 'Output:' },
@@ -154,6 +157,10 @@ export const OPTIONS = {
   top: {
     type: 'number', describe: "the first N slices in the report's order, or of the discovered ones (default: the flagged slices)", group: 'Export:',
     for: { discover: { describe: `discovered slices listed (default ${DEFAULTS.top})`, group: 'Search:' } },
+  },
+  // compare
+  margin: {
+    type: 'number', describe: 'a change whose whole interval lies within ±M (fraction: 0.01 = 1 point) reads "within margin"', group: 'Statistics:',
   },
   // discover
   depth: { type: 'number', default: DEFAULTS.depth, describe: 'conditions per slice, 1 to 3 (3 needs the full cross of the slice columns)', group: 'Search:' },
@@ -202,6 +209,8 @@ export const COMMAND_OPTIONS: Readonly<Record<Command, readonly OptionName[]>> =
   report: [...ANALYSIS, 'format'],
   // the candidate columns are --slice-cols (or those detected): no --by
   discover: [...ANALYSIS.filter((o) => o !== 'by'), 'depth', 'min-lift', 'top', 'all', 'format'],
+  // two tables read with one plan: no per-split files, no ready-made cells, no cache
+  compare: [...ANALYSIS.filter((o) => !['train', 'train-dev', 'dev', 'test', 'cells', 'cache', 'progress'].includes(o)), 'margin', 'format'],
   explore: [...ANALYSIS, 'format', 'ascii'],
   check: [...ANALYSIS, 'max-bias', 'max-variance', 'max-mismatch', 'max-dev-error', 'strict', 'baseline', 'format', 'junit'],
   export: [...ANALYSIS, 'out', 'top', 'slice', 'discovered', 'from', 'depth', 'min-lift', 'all', 'splits', 'errors-only', 'limit-per-slice', 'raw', 'force'],

@@ -13,6 +13,7 @@ export { wilsonInterval } from './wilson-interval.js';
 export type { LimitedEstimate, ProportionTerm } from './mover-interval.js';
 export { moverInterval, moverLimits, moverPValue } from './mover-interval.js';
 export { newcombeInterval } from './newcombe-interval.js';
+export { intervalPValue } from './interval-p-value.js';
 export { binomialTestTwoSided } from './binomial-test.js';
 export { proportionTest } from './proportion-test.js';
 export { twoProportionTest } from './two-proportion-test.js';
