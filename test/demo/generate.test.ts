@@ -401,7 +401,7 @@ describe('generateDemoRows: planted parameters', () => {
   // DEMO_PLANTS, DEMO_FLOORS and DEMO_DISTRIBUTIONS, so they follow any change to them; these literals are
   // what make a silent parameter change fail.
   it('pins the defaults, split shares, plants and floors', () => {
-    expect(DEMO_DEFAULTS).toEqual({ rows: 20_000, seed: 24, runs: 1 });
+    expect(DEMO_DEFAULTS).toEqual({ rows: 20_000, seed: 24, runs: 1, models: 1 });
     expect(DEMO_DISTRIBUTIONS.split).toEqual({ train: 0.4, train_dev: 0.2, dev: 0.2, test: 0.2 });
     expect(DEMO_PLANTS.avoidableBias).toEqual({
       column: 'package',
