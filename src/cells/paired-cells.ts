@@ -16,7 +16,7 @@ import { keySql, rowError, rowSplit, rowWeight } from './row-sql.js';
 import { groupingCovers } from './grouping.js';
 
 /** The two sides' keyed rows, as temporary tables. */
-export const PAIR_SIDES = { before: 'fg_pair_before', after: 'fg_pair_after' } as const;
+const PAIR_SIDES = { before: 'fg_pair_before', after: 'fg_pair_after' } as const;
 export type Side = keyof typeof PAIR_SIDES;
 
 /** One paired cell: the slice columns' keys (null where a grouping set does not group), split, sums. */

@@ -16,7 +16,6 @@ import { FDR_METHOD_NAME } from './words.js';
 
 /** The formats compare writes. */
 export type CompareFormat = 'text' | 'json';
-export const COMPARE_FORMATS: readonly CompareFormat[] = ['text', 'json'];
 
 const VERDICT_WORD: Readonly<Record<Verdict, string>> = {
   improved: 'improved',

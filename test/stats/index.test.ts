@@ -14,6 +14,7 @@ describe('src/stats/index.ts', () => {
       'moverInterval',
       'moverLimits',
       'moverPValue',
+      'intervalPValue',
       'binomialTestTwoSided',
       'proportionTest',
       'twoProportionTest',
