@@ -6,7 +6,7 @@
  * the same `SliceStats[]` as `rollupSlices` (and the same map as `rollupByRun`), for a full cross and
  * for grouping sets. Nothing in src/ imports it, and floorgap never runs it.
  */
-import { cellColumns, type CellColumns, type CellTable } from '../src/cells/cell-table.js';
+import { auditFromFields, cellColumns, type CellColumns, type CellTable } from '../src/cells/cell-table.js';
 import type { AuditSums } from '../src/core/cell.js';
 import { SPLITS, type Split } from '../src/core/split.js';
 import type { FloorPart, SliceStats, SplitSums } from '../src/slices/rollup.js';
@@ -49,19 +49,6 @@ function prepare(cells: CellTable): Prepared {
   p = { c, entryMin, entryMax, masks };
   prepared.set(cells, p);
   return p;
-}
-
-function auditFromFields(get: (f: number) => number, annotators: number, classes: number): AuditSums {
-  const annRows: number[] = [];
-  const annErrors: number[] = [];
-  const classCounts: number[][] = [];
-  for (let j = 0; j < annotators; j++) {
-    const base = 4 + j * (2 + classes);
-    annRows.push(get(base));
-    annErrors.push(get(base + 1));
-    classCounts.push(Array.from({ length: classes }, (_, k) => get(base + 2 + k)));
-  }
-  return { audited: get(0), panelRows: get(1), panelErrors: get(2), agreeSum: get(3), annRows, annErrors, classCounts };
 }
 
 /**

@@ -5,6 +5,7 @@
  * scan (or a cells file, or the cache) to the roll-up (slices/rollup.ts).
  */
 import * as aq from 'arquero';
+import type { AuditSums } from '../core/cell.js';
 import { SPLITS, type Split } from '../core/split.js';
 
 type ColumnTable = ReturnType<typeof aq.table>;
@@ -21,6 +22,24 @@ export const auditColumn = (f: number): string => `a${f}`;
 /** Number of audit fields for a shape: audited, panel rows, panel errors, agreement sum, then per annotator rows, errors and one count per class. */
 export function auditFieldCount(annotators: number, classes: number): number {
   return 4 + annotators * (2 + classes);
+}
+
+/**
+ * Audit sums from their flat fields in the order of {@link auditFieldCount}, read through `get`.
+ * @example
+ * auditFromFields((f) => row[auditColumn(f)], 3, 6).annRows.length; // => 3
+ */
+export function auditFromFields(get: (f: number) => number, annotators: number, classes: number): AuditSums {
+  const annRows: number[] = [];
+  const annErrors: number[] = [];
+  const classCounts: number[][] = [];
+  for (let j = 0; j < annotators; j++) {
+    const base = 4 + j * (2 + classes);
+    annRows.push(get(base));
+    annErrors.push(get(base + 1));
+    classCounts.push(Array.from({ length: classes }, (_, k) => get(base + 2 + k)));
+  }
+  return { audited: get(0), panelRows: get(1), panelErrors: get(2), agreeSum: get(3), annRows, annErrors, classCounts };
 }
 
 /** The shape of the audit sums the cells carry. */

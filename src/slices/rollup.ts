@@ -5,7 +5,7 @@
  * entry) and, only over cells that hold audited rows, the annotator sums.
  */
 import * as aq from 'arquero';
-import { auditColumn, auditFieldCount, keyColumn, servingCells, SUM_COLUMNS, type CellTable, type SumColumn } from '../cells/cell-table.js';
+import { auditColumn, auditFieldCount, auditFromFields, keyColumn, servingCells, SUM_COLUMNS, type CellTable, type SumColumn } from '../cells/cell-table.js';
 import type { AuditSums } from '../core/cell.js';
 import { SPLITS, type Split } from '../core/split.js';
 
@@ -46,20 +46,6 @@ export interface SliceStats {
 
 const TRAIN = SPLITS.indexOf('train');
 const DEV = SPLITS.indexOf('dev');
-
-/** Audit sums from the flat fields (audited, panel rows, panel errors, agreement, then per annotator rows, errors, classes). */
-function auditSums(get: (f: number) => number, annotators: number, classes: number): AuditSums {
-  const annRows: number[] = [];
-  const annErrors: number[] = [];
-  const classCounts: number[][] = [];
-  for (let j = 0; j < annotators; j++) {
-    const base = 4 + j * (2 + classes);
-    annRows.push(get(base));
-    annErrors.push(get(base + 1));
-    classCounts.push(Array.from({ length: classes }, (_, k) => get(base + 2 + k)));
-  }
-  return { audited: get(0), panelRows: get(1), panelErrors: get(2), agreeSum: get(3), annRows, annErrors, classCounts };
-}
 
 /** A slice of the result being assembled. */
 interface Slot {
@@ -192,6 +178,13 @@ function groupSums(
  * cells that hold audited rows only, its annotator sums. Slices come in the order their first cell
  * appears.
  */
+/** A new slice for a roll-up row: its key decoded from the row's codes `c0 …`, no sums yet. */
+function emptySlot(cells: CellTable, idx: readonly number[], by: readonly string[], r: Row): Slot {
+  const key: Record<string, string> = {};
+  idx.forEach((c, b) => (key[by[b]] = cells.dicts[c][r[`c${b}`]]));
+  return { key, splits: {}, floorParts: [], devFloorParts: [], audit: null };
+}
+
 function rollup(cells: CellTable, t: ColumnTable, by: readonly string[]): Slot[] {
   const idx = by.map((b) => cells.columns.indexOf(b));
   const facts = factsOf(cells);
@@ -201,9 +194,7 @@ function rollup(cells: CellTable, t: ColumnTable, by: readonly string[]): Slot[]
     const id = idx.map((_, b) => r[`c${b}`]).join(',');
     let slot = slots.get(id);
     if (!slot) {
-      const key: Record<string, string> = {};
-      idx.forEach((c, b) => (key[by[b]] = cells.dicts[c][r[`c${b}`]]));
-      slot = { key, splits: {}, floorParts: [], devFloorParts: [], audit: null };
+      slot = emptySlot(cells, idx, by, r);
       slots.set(id, slot);
       out.push(slot);
     }
@@ -231,13 +222,13 @@ function rollup(cells: CellTable, t: ColumnTable, by: readonly string[]): Slot[]
   if (cells.audit) {
     const { annotators, classes } = cells.audit;
     const fields = auditFieldCount(annotators, classes);
-    const zero = auditSums(() => 0, annotators, classes);
+    const zero = auditFromFields(() => 0, annotators, classes);
     for (const slot of out) slot.audit = zero;
     // only cells that hold audited rows carry audit sums: the wide roll-up runs over those alone
     const audited = t.filter((d: Row) => d.a0 > 0);
     if (audited.numRows() > 0) {
       const aSums = Object.fromEntries(Array.from({ length: fields }, (_, f) => [auditColumn(f), op.sum(auditColumn(f))]));
-      for (const r of groupSums(cells, audited, idx, [], aSums)) slotOf(r).audit = auditSums((f) => r[auditColumn(f)], annotators, classes);
+      for (const r of groupSums(cells, audited, idx, [], aSums)) slotOf(r).audit = auditFromFields((f) => r[auditColumn(f)], annotators, classes);
     }
   }
   return out;
@@ -282,9 +273,7 @@ export function rollupByRun(cells: CellTable, by: readonly string[]): Map<string
     const id = `${r[`c${m}`]}|${idx.map((_, b) => r[`c${b}`]).join(',')}`;
     let slot = slots.get(id);
     if (!slot) {
-      const key: Record<string, string> = {};
-      idx.forEach((c, b) => (key[by[b]] = cells.dicts[c][r[`c${b}`]]));
-      slot = { key, splits: {}, floorParts: [], devFloorParts: [], audit: null };
+      slot = emptySlot(cells, idx, by, r);
       slots.set(id, slot);
       const list = result.get(run) ?? [];
       list.push(slot);

@@ -9,33 +9,10 @@ import { explorerData } from '../../src/app/explorer-data.js';
 import { analysisRequest, type AnalysisArgs } from '../../src/cli/options.js';
 import { DEFAULTS } from '../../src/core/defaults.js';
 import type { Duck } from '../../src/sql/duck.js';
+import { FLOORS, SAMPLE, sampleArgs } from '../helpers/sample-analysis.js';
 import { ROOT } from '../helpers/run-cli.js';
 
-const SAMPLE = `${ROOT}/data-samples/solder-joints.csv`;
-const FLOORS = `${ROOT}/data-samples/inspector-floors.csv`;
-
-function args(over: Partial<AnalysisArgs>): AnalysisArgs {
-  return {
-    files: [SAMPLE],
-    'floor-table': FLOORS,
-    bins: DEFAULTS.bins,
-    'max-cells': DEFAULTS.maxCells,
-    'max-slices': DEFAULTS.maxSlices,
-    confidence: 0.95,
-    fdr: 0.05,
-    'fdr-method': 'bh',
-    'min-rows': 30,
-    'floor-margin': 0.01,
-    'min-headroom': 0.001,
-    'curve-exponent': 0.5,
-    'label-cost': 1,
-    'floor-rule': 'panel',
-    threads: 1,
-    'memory-limit': '1GB',
-    cache: false,
-    ...over,
-  } as AnalysisArgs;
-}
+const args = sampleArgs;
 
 let duck: Duck;
 beforeAll(async () => {

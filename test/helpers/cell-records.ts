@@ -3,7 +3,7 @@
  * at floor 2 %"), and the cell table they stand for (src/cells/cell-table.ts builds it). Test-only:
  * floorgap itself never holds cells as objects.
  */
-import { auditFieldCount, cellColumns, cellTable, keyColumn, SUM_COLUMNS, type CellTable, type SumColumn } from '../../src/cells/cell-table.js';
+import { auditFieldCount, auditFromFields, cellColumns, cellTable, keyColumn, SUM_COLUMNS, type CellTable, type SumColumn } from '../../src/cells/cell-table.js';
 import type { AuditSums } from '../../src/core/cell.js';
 import { SPLITS, type Split } from '../../src/core/split.js';
 
@@ -77,21 +77,7 @@ export function recordsOf(cells: CellTable): CellRecord[] {
   for (let i = 0; i < cells.size; i++) {
     const key: Record<string, string | null> = {};
     c.columns.forEach((name, k) => (key[name] = c.codes[k][i] < 0 ? null : c.dicts[k][c.codes[k][i]]));
-    let audit: AuditSums | null = null;
-    if (c.audit) {
-      const get = (f: number) => c.audit!.fields[f][i];
-      const { annotators, classes } = c.audit;
-      const annRows: number[] = [];
-      const annErrors: number[] = [];
-      const classCounts: number[][] = [];
-      for (let j = 0; j < annotators; j++) {
-        const base = 4 + j * (2 + classes);
-        annRows.push(get(base));
-        annErrors.push(get(base + 1));
-        classCounts.push(Array.from({ length: classes }, (_, k) => get(base + 2 + k)));
-      }
-      audit = { audited: get(0), panelRows: get(1), panelErrors: get(2), agreeSum: get(3), annRows, annErrors, classCounts };
-    }
+    const audit: AuditSums | null = c.audit ? auditFromFields((f) => c.audit!.fields[f][i], c.audit.annotators, c.audit.classes) : null;
     out.push({
       key,
       split: SPLITS[c.split[i]],
